@@ -1,0 +1,73 @@
+import { TOOL } from '../version.ts';
+import { fingerprint } from '../model/canonical.ts';
+import { pointScenario, type Scenario, type PointScenario } from '../model/scenario.ts';
+import { alleeThreshold, lowDensityRate } from '../model/growth.ts';
+import { buildLayout } from './layout.ts';
+import { linearSpreadSpeed } from './discretise.ts';
+import { runLayout, summariseRun } from './simulate.ts';
+import { allCautions } from './cautions.ts';
+import { RESULT_VERSION, type OptionResult, type ResultDocument } from './result.ts';
+
+export interface EvaluateOptions {
+  /** Polled during runs; returning true cancels (the result then carries status 'cancelled'). */
+  shouldCancel?: () => boolean;
+  /** Progress in [0, 1] with a short label of the current stage. */
+  onProgress?: (fraction: number, stage: string) => void;
+  /** Clock for the run date (tests pass a fixed date). */
+  now?: () => Date;
+}
+
+/** Model facts printed with every result. */
+export function modelFacts(s: PointScenario): ResultDocument['model'] {
+  const g = s.pest.growth;
+  return {
+    growthForm: g.form,
+    lowDensityRate: lowDensityRate(g, 1),
+    alleeThreshold: alleeThreshold(g, 1),
+    linearSpeedKmPerYear: linearSpreadSpeed(s),
+    hostDepletion: s.pest.hostKillRate > 0,
+  };
+}
+
+/**
+ * Evaluates a validated scenario: baseline run and one run per barrier option.
+ * The function every front end calls (CLI, web routes, workers, briefing).
+ */
+export function evaluateScenario(scenario: Scenario, opts: EvaluateOptions = {}): ResultDocument {
+  const s = pointScenario(scenario);
+  const options = s.barrier?.options ?? [];
+  const nRuns = 1 + options.length;
+  const progress = (k: number, label: string) => (f: number) => opts.onProgress?.((k + f) / nRuns, label);
+  const baselineOut = runLayout({
+    scenario: s,
+    pieces: buildLayout(s),
+    shouldCancel: opts.shouldCancel,
+    onProgress: progress(0, 'baseline'),
+  });
+  const optionResults: OptionResult[] = options.map((o, k) => {
+    const out = runLayout({
+      scenario: s,
+      pieces: buildLayout(s, o),
+      shouldCancel: opts.shouldCancel,
+      onProgress: progress(k + 1, `option ${o.name}`),
+    });
+    return { name: o.name, fromKm: o.fromKm, widthM: o.widthM, cover: o.cover, run: summariseRun(out, s) };
+  });
+  opts.onProgress?.(1, 'done');
+  return {
+    resultVersion: RESULT_VERSION,
+    tool: { ...TOOL },
+    scenarioFingerprint: fingerprint(scenario),
+    runAt: (opts.now?.() ?? new Date()).toISOString(),
+    title: s.title,
+    description: s.description,
+    region: s.region,
+    pest: { name: s.pest.name, illustrative: s.pest.illustrative },
+    horizonYears: s.horizonYears,
+    detectionLevel: s.detectionLevel,
+    model: modelFacts(s),
+    baseline: summariseRun(baselineOut, s),
+    options: optionResults,
+    cautions: allCautions(),
+  };
+}

@@ -1,0 +1,166 @@
+import type { Grid } from '../numerics/grid.ts';
+import { cellIndexAt } from '../numerics/grid.ts';
+import type { FieldState, Observer } from '../numerics/time-loop.ts';
+
+/**
+ * Position of the farthest point to the right where u ≥ level [km], or NaN when no cell reaches the level.
+ * Between the last cell above and the first below, the position is interpolated in log-density
+ * (fronts decay exponentially ahead), which makes front positions smooth in time.
+ */
+export function rightFrontKm(grid: Grid, u: Float64Array, level: number): number {
+  const c = grid.centersKm;
+  for (let i = grid.nCells - 1; i >= 0; i--) {
+    if (u[i] >= level) {
+      if (i === grid.nCells - 1) return c[i];
+      const next = u[i + 1];
+      if (next <= 0) return c[i];
+      return c[i] + ((c[i + 1] - c[i]) * Math.log(u[i] / level)) / Math.log(u[i] / next);
+    }
+  }
+  return NaN;
+}
+
+/** Mirror of {@link rightFrontKm}: the farthest point to the left where u ≥ level [km], or NaN. */
+export function leftFrontKm(grid: Grid, u: Float64Array, level: number): number {
+  const c = grid.centersKm;
+  for (let i = 0; i < grid.nCells; i++) {
+    if (u[i] >= level) {
+      if (i === 0) return c[0];
+      const prev = u[i - 1];
+      if (prev <= 0) return c[i];
+      return c[i] - ((c[i] - c[i - 1]) * Math.log(u[i] / level)) / Math.log(u[i] / prev);
+    }
+  }
+  return NaN;
+}
+
+/** ∫ u dx over the transect [km × relative density]. */
+export function totalInsects(grid: Grid, u: Float64Array): number {
+  let s = 0;
+  const w = grid.widthsKm;
+  for (let i = 0; i < grid.nCells; i++) s += u[i] * w[i];
+  return s;
+}
+
+/** Records, after every step, the two front positions and the total number of insects. */
+export class FrontTracker implements Observer {
+  readonly times: number[] = [];
+  readonly rightKm: number[] = [];
+  readonly leftKm: number[] = [];
+  readonly total: number[] = [];
+  constructor(
+    private readonly grid: Grid,
+    private readonly level: number,
+  ) {}
+  initialize(s: FieldState): void {
+    this.handle(s);
+  }
+  handle(s: FieldState): void {
+    this.times.push(s.t);
+    this.rightKm.push(rightFrontKm(this.grid, s.u, this.level));
+    this.leftKm.push(leftFrontKm(this.grid, s.u, this.level));
+    this.total.push(totalInsects(this.grid, s.u));
+  }
+}
+
+/** First time the density at each site reaches the level, linearly interpolated between steps [yr]; null if never. */
+export class ArrivalTracker implements Observer {
+  readonly arrivalYears: (number | null)[];
+  private readonly cells: number[];
+  private lastT = 0;
+  private readonly lastU: number[];
+  constructor(
+    grid: Grid,
+    sitesKm: readonly number[],
+    private readonly level: number,
+  ) {
+    this.cells = sitesKm.map((x) => cellIndexAt(grid, x));
+    this.arrivalYears = sitesKm.map(() => null);
+    this.lastU = sitesKm.map(() => 0);
+  }
+  initialize(s: FieldState): void {
+    this.cells.forEach((c, k) => {
+      this.lastU[k] = s.u[c];
+      if (s.u[c] >= this.level) this.arrivalYears[k] = 0;
+    });
+    this.lastT = s.t;
+  }
+  handle(s: FieldState): void {
+    this.cells.forEach((c, k) => {
+      const now = s.u[c];
+      if (this.arrivalYears[k] === null && now >= this.level) {
+        const before = this.lastU[k];
+        const frac = now > before ? (this.level - before) / (now - before) : 1;
+        this.arrivalYears[k] = this.lastT + Math.min(1, Math.max(0, frac)) * (s.t - this.lastT);
+      }
+      this.lastU[k] = now;
+    });
+    this.lastT = s.t;
+  }
+  /** True once every site has been reached. */
+  allArrived(): boolean {
+    return this.arrivalYears.every((a) => a !== null);
+  }
+}
+
+/**
+ * Chooses which cells represent a profile in outputs: every habitat piece keeps at least `minPerPiece`
+ * cells (its first, last and evenly spaced ones), so narrow clearings remain visible, and the total
+ * stays near `maxPoints`.
+ */
+export function profileCells(grid: Grid, maxPoints = 600, minPerPiece = 3): Int32Array {
+  const total = grid.facesKm[grid.nCells] - grid.facesKm[0];
+  const picked: number[] = [];
+  const nPieces = grid.firstCellOfSegment.length - 1;
+  for (let k = 0; k < nPieces; k++) {
+    const first = grid.firstCellOfSegment[k];
+    const last = grid.firstCellOfSegment[k + 1] - 1;
+    const n = last - first + 1;
+    const length = grid.facesKm[last + 1] - grid.facesKm[first];
+    const m = Math.min(n, Math.max(minPerPiece, Math.round((maxPoints * length) / total)));
+    if (m === 1) picked.push(first);
+    else for (let j = 0; j < m; j++) picked.push(first + Math.round((j * (n - 1)) / (m - 1)));
+  }
+  return Int32Array.from(new Set(picked));
+}
+
+/** Profiles of density and host at chosen times (first step at or after each target time). */
+export interface Snapshot {
+  timeYears: number;
+  density: number[];
+  host: number[];
+}
+
+/** Records density and host at the target times, at the chosen cells. */
+export class SnapshotRecorder implements Observer {
+  readonly snapshots: Snapshot[] = [];
+  private next = 0;
+  constructor(
+    private readonly cells: Int32Array,
+    private readonly targetsYears: readonly number[],
+  ) {}
+  initialize(s: FieldState): void {
+    this.handle(s);
+  }
+  handle(s: FieldState): void {
+    while (this.next < this.targetsYears.length && s.t >= this.targetsYears[this.next] - 1e-9) {
+      this.snapshots.push({
+        timeYears: s.t,
+        density: Array.from(this.cells, (c) => s.u[c]),
+        host: Array.from(this.cells, (c) => s.h[c]),
+      });
+      this.next++;
+    }
+  }
+  /** Makes sure the final state is recorded even if the run stopped early. */
+  finalize(s: FieldState): void {
+    const last = this.snapshots[this.snapshots.length - 1];
+    if (!last || last.timeYears < s.t) {
+      this.snapshots.push({
+        timeYears: s.t,
+        density: Array.from(this.cells, (c) => s.u[c]),
+        host: Array.from(this.cells, (c) => s.h[c]),
+      });
+    }
+  }
+}

@@ -1,0 +1,345 @@
+/**
+ * Every physical number a user can set: label, unit, allowed range, typical range, help text and the
+ * source of its default. The zod schemas, the scenario form and the briefing's parameter table all
+ * read from here, so a range is written once.
+ */
+export interface FieldSpec {
+  /** Short label for forms and tables. */
+  readonly label: string;
+  /** Unit as printed (SI-like, with ² and ⁻¹ where needed); '' for dimensionless. */
+  readonly unit: string;
+  /** Smallest allowed value. */
+  readonly min: number;
+  /** True when `min` itself is not allowed. */
+  readonly minExclusive?: boolean;
+  /** Largest allowed value. */
+  readonly max: number;
+  readonly maxExclusive?: boolean;
+  /** Range usually seen in practice, as text. */
+  readonly typical: string;
+  /** What the number means, in plain words. */
+  readonly help: string;
+  /** Value used when the field is left out (undefined: the field is required). */
+  readonly defaultValue?: number;
+  /** Where the default or the typical range comes from. */
+  readonly source: string;
+  /** Whether the field may be given as a distribution instead of a value. */
+  readonly uncertain?: boolean;
+}
+
+/** Human-readable allowed range, e.g. "> 0 and ≤ 1000 km²/yr". */
+export function describeRange(spec: FieldSpec): string {
+  const lo = `${spec.minExclusive ? '>' : '≥'} ${spec.min}`;
+  const hi = Number.isFinite(spec.max) ? ` and ${spec.maxExclusive ? '<' : '≤'} ${spec.max}` : '';
+  return `${lo}${hi}${spec.unit ? ` ${spec.unit}` : ''}`;
+}
+
+/** True when v lies in the field's allowed range. */
+export function inRange(spec: FieldSpec, v: number): boolean {
+  if (!Number.isFinite(v)) return false;
+  if (spec.minExclusive ? v <= spec.min : v < spec.min) return false;
+  if (spec.maxExclusive ? v >= spec.max : v > spec.max) return false;
+  return true;
+}
+
+const SPREAD_NOTE =
+  'Back-calculated from natural spread of a few hundred m/yr to a few km/yr for wood-boring beetles via ' +
+  'c = 2√(rD) (Fisher 1937; common practice, no source for the spread range)';
+
+export const FIELDS = {
+  diffusionHost: {
+    label: 'Movement in host forest',
+    unit: 'km²/yr',
+    min: 0,
+    minExclusive: true,
+    max: 1000,
+    typical: '0.001–12',
+    help: 'Diffusion coefficient D of adults moving through host forest. Spread speed in intact forest is about 2√(rD).',
+    defaultValue: 0.5,
+    source: SPREAD_NOTE,
+    uncertain: true,
+  },
+  diffusionOpen: {
+    label: 'Movement in the open (clearing)',
+    unit: 'km²/yr',
+    min: 0,
+    minExclusive: true,
+    max: 1000,
+    typical: '0.001–50',
+    help: 'Diffusion coefficient in host-free open ground. Many insects move faster and straighter where there is no host.',
+    defaultValue: 0.5,
+    source: 'Default equal to host forest (no behavioural change); set from field data where available (illustrative)',
+    uncertain: true,
+  },
+  diffusionNonHost: {
+    label: 'Movement in non-host forest',
+    unit: 'km²/yr',
+    min: 0,
+    minExclusive: true,
+    max: 1000,
+    typical: '0.001–50',
+    help: 'Diffusion coefficient in forest of species the pest cannot breed in.',
+    defaultValue: 0.5,
+    source: 'Default equal to host forest (illustrative)',
+    uncertain: true,
+  },
+  edgePreferenceOpen: {
+    label: 'Edge preference, host forest vs open',
+    unit: '',
+    min: 0,
+    minExclusive: true,
+    max: 1,
+    maxExclusive: true,
+    typical: '0.5–0.95',
+    help:
+      'Probability that an insect standing at a forest/open edge steps back into host forest. ' +
+      '0.5 means no preference; values near 1 mean it rarely leaves the forest.',
+    defaultValue: 0.5,
+    source: 'No preference (0.5) unless observed; edge-choice random walk of Ovaskainen & Cornell (2003)',
+    uncertain: true,
+  },
+  edgePreferenceNonHost: {
+    label: 'Edge preference, host vs non-host forest',
+    unit: '',
+    min: 0,
+    minExclusive: true,
+    max: 1,
+    maxExclusive: true,
+    typical: '0.5–0.9',
+    help: 'Probability that an insect at a host/non-host forest edge steps into host forest.',
+    defaultValue: 0.5,
+    source: 'No preference (0.5) unless observed (illustrative)',
+    uncertain: true,
+  },
+  growthRate: {
+    label: 'Growth rate',
+    unit: '1/yr',
+    min: 0,
+    minExclusive: true,
+    max: 50,
+    typical: '0.2–3',
+    help: 'Intrinsic per-capita growth rate r in fully stocked host forest at low density (without an Allee effect).',
+    defaultValue: 1,
+    source: 'Illustrative; one generation per year or two for many wood-borers (common practice, no source)',
+    uncertain: true,
+  },
+  alleeThreshold: {
+    label: 'Allee threshold',
+    unit: 'of capacity',
+    min: 0,
+    minExclusive: true,
+    max: 1,
+    maxExclusive: true,
+    typical: '0.01–0.4',
+    help:
+      'Density (as a fraction of carrying capacity) below which a local group declines because mates are hard to find. ' +
+      'Above 0.5 the pest retreats even in intact forest.',
+    defaultValue: 0.1,
+    source: 'Rarely measured; treat as uncertain (illustrative)',
+    uncertain: true,
+  },
+  birthRate: {
+    label: 'Reproduction per unit host',
+    unit: '1/yr',
+    min: 0,
+    minExclusive: true,
+    max: 50,
+    typical: '0.5–5',
+    help: 'Per-capita recruitment b when mated and hosts are fully available (consumer–resource form).',
+    defaultValue: 2,
+    source: 'Illustrative',
+    uncertain: true,
+  },
+  deathRate: {
+    label: 'Death rate in host forest',
+    unit: '1/yr',
+    min: 0,
+    max: 50,
+    typical: '0.2–2',
+    help: 'Per-capita loss m in host forest (consumer–resource form).',
+    defaultValue: 1,
+    source: 'Illustrative',
+    uncertain: true,
+  },
+  crowding: {
+    label: 'Crowding',
+    unit: '1/yr',
+    min: 0,
+    max: 50,
+    typical: '0–2',
+    help: 'Extra per-capita loss γu at high density (competition for breeding sites). 0 switches it off.',
+    defaultValue: 0,
+    source: 'Illustrative',
+    uncertain: true,
+  },
+  mateScale: {
+    label: 'Mate-finding scale',
+    unit: 'of capacity',
+    min: 0,
+    minExclusive: true,
+    max: 10,
+    typical: '0.01–1',
+    help: 'Density θ at which mate finding is half (saturating) or 63 % (exponential) successful.',
+    defaultValue: 0.1,
+    source: 'Illustrative; mating functions of Dennis (1989) and McCarthy (1997)',
+    uncertain: true,
+  },
+  hostKillRate: {
+    label: 'Host-kill rate',
+    unit: '1/yr',
+    min: 0,
+    max: 100,
+    typical: '0–2',
+    help: 'Rate c at which a full-capacity population kills its host trees (dh/dt = −c·u·h). 0 means hosts are not depleted.',
+    defaultValue: 0.3,
+    source: 'Illustrative; borers often kill a stand within a few years of arrival (common practice, no source)',
+    uncertain: true,
+  },
+  mortalityOpen: {
+    label: 'Mortality in the open',
+    unit: '1/yr',
+    min: 0,
+    max: 1000,
+    typical: '0.1–20',
+    help: 'Per-capita death rate of insects in host-free open ground (exposure, predation, no food).',
+    defaultValue: 2,
+    source: 'Illustrative',
+    uncertain: true,
+  },
+  mortalityNonHost: {
+    label: 'Mortality in non-host forest',
+    unit: '1/yr',
+    min: 0,
+    max: 1000,
+    typical: '0.1–10',
+    help: 'Per-capita death rate in forest the pest cannot breed in.',
+    defaultValue: 1,
+    source: 'Illustrative',
+    uncertain: true,
+  },
+  stocking: {
+    label: 'Host stocking',
+    unit: '',
+    min: 0,
+    max: 1,
+    typical: '0.2–1',
+    help: 'Share of a fully stocked host stand present (1 = fully stocked). Sets local carrying capacity and food.',
+    defaultValue: 1,
+    source: 'Forest inventory',
+    uncertain: true,
+  },
+  stemsPerHa: {
+    label: 'Host stem density',
+    unit: 'trees/ha',
+    min: 0,
+    max: 20000,
+    typical: '100–1500',
+    help: 'Host trees per hectare at full stocking ×stocking; used to count the trees a clearing removes.',
+    defaultValue: 400,
+    source: 'Forest inventory; 400/ha is an illustrative mid-aged stand',
+    uncertain: true,
+  },
+  lengthKm: {
+    label: 'Length',
+    unit: 'km',
+    min: 0,
+    minExclusive: true,
+    max: 5000,
+    typical: '0.05–100',
+    help: 'Length of this stretch along the transect.',
+    source: 'Map of the area',
+  },
+  positionKm: {
+    label: 'Position',
+    unit: 'km',
+    min: -1e6,
+    max: 1e6,
+    typical: 'within the transect',
+    help: 'Distance along the transect from its origin.',
+    source: 'Map of the area',
+  },
+  infestedDensity: {
+    label: 'Density in the infested stretch',
+    unit: 'of capacity',
+    min: 0,
+    minExclusive: true,
+    max: 10,
+    typical: '0.1–1',
+    help: 'Current insect density in the infested stretch, relative to the capacity of the stand there (1 = fully infested).',
+    defaultValue: 1,
+    source: 'Survey; 1 means the stretch is fully infested',
+  },
+  horizonYears: {
+    label: 'Horizon',
+    unit: 'yr',
+    min: 0,
+    minExclusive: true,
+    max: 500,
+    typical: '10–50',
+    help: 'How many years ahead to simulate.',
+    defaultValue: 30,
+    source: 'Planning horizon of the programme',
+  },
+  detectionLevel: {
+    label: 'Detection level',
+    unit: 'of capacity',
+    min: 0,
+    minExclusive: true,
+    max: 1,
+    maxExclusive: true,
+    typical: '0.001–0.1',
+    help: 'Density at which a place counts as infested (front position, arrival times).',
+    defaultValue: 0.01,
+    source: 'Default 1 % of capacity (common practice, no source)',
+  },
+  cellM: {
+    label: 'Cell size',
+    unit: 'm',
+    min: 0.5,
+    max: 5000,
+    typical: '10–200',
+    help: 'Largest finite-volume cell. Leave empty for the automatic choice (a tenth of the shortest movement length).',
+    source: 'Automatic default documented in DEVELOPERS.md',
+  },
+  stepYears: {
+    label: 'Time step',
+    unit: 'yr',
+    min: 1e-5,
+    max: 1,
+    typical: '0.005–0.1',
+    help: 'Time step. Leave empty for the automatic choice.',
+    source: 'Automatic default documented in DEVELOPERS.md',
+  },
+  widthM: {
+    label: 'Width',
+    unit: 'm',
+    min: 0,
+    minExclusive: true,
+    max: 100000,
+    typical: '50–2000',
+    help: 'Width of the host-free clearing along the transect.',
+    source: 'Option under study',
+  },
+  barrierLengthKm: {
+    label: 'Barrier length across the front',
+    unit: 'km',
+    min: 0,
+    minExclusive: true,
+    max: 10000,
+    typical: '1–50',
+    help: 'How long the clearing runs across the direction of spread; used to count trees removed.',
+    defaultValue: 1,
+    source: 'Option under study',
+  },
+  costPerStem: {
+    label: 'Cost per host tree removed',
+    unit: 'per tree',
+    min: 0,
+    max: 1e7,
+    typical: 'programme rates',
+    help: 'Optional cost of felling and disposing of one host tree (any currency; the briefing repeats the unit you give).',
+    source: 'Programme contract rates',
+  },
+} as const satisfies Record<string, FieldSpec>;
+
+export type FieldName = keyof typeof FIELDS;

@@ -1,0 +1,251 @@
+import { z } from 'zod';
+import { FIELDS, describeRange } from './fields.ts';
+import { PestSchema, NON_HOST_PEST_FIELDS } from './pest.ts';
+import { quantitySchema, valueSchema, resolveQuantities, type Resolved } from './quantity.ts';
+import { ScenarioError, problemsFromZod, formatPath, type Problem } from './errors.ts';
+
+/** Habitat types a transect segment can have. */
+export const HABITATS = ['host-forest', 'clearing', 'non-host-forest'] as const;
+export type Habitat = (typeof HABITATS)[number];
+
+/** What the ground of a barrier option becomes once the host trees are removed. */
+export const BARRIER_COVERS = ['clearing', 'non-host-forest'] as const;
+
+const optionalFrom = valueSchema(FIELDS.positionKm).optional();
+
+export const HostForestSegmentSchema = z.strictObject({
+  habitat: z.literal('host-forest'),
+  name: z.string().max(80).optional(),
+  /** Start [km]; optional, checked against the end of the previous segment when given. */
+  fromKm: optionalFrom,
+  lengthKm: valueSchema(FIELDS.lengthKm),
+  /** Relative host stocking, 0–1. */
+  stocking: quantitySchema(FIELDS.stocking),
+  /** Host stems per hectare at this stocking [trees/ha]. */
+  stemsPerHa: quantitySchema(FIELDS.stemsPerHa),
+});
+
+export const OtherSegmentSchema = z.strictObject({
+  habitat: z.enum(['clearing', 'non-host-forest']),
+  name: z.string().max(80).optional(),
+  fromKm: optionalFrom,
+  lengthKm: valueSchema(FIELDS.lengthKm),
+});
+
+export const SegmentSchema = z.discriminatedUnion('habitat', [HostForestSegmentSchema, OtherSegmentSchema], {
+  error: `habitat must be one of ${HABITATS.join(', ')}`,
+});
+
+export const END_CONDITIONS = ['reflecting', 'absorbing'] as const;
+
+export const TransectSchema = z.strictObject({
+  /** Position of the first segment's start [km]. */
+  originKm: valueSchema(FIELDS.positionKm).default(0),
+  segments: z
+    .array(SegmentSchema)
+    .min(1, { error: 'needs at least one segment' })
+    .max(500, { error: 'must have at most 500 segments' }),
+  /** Transect ends: reflecting (no one leaves) by default; absorbing (lethal surroundings). */
+  ends: z
+    .strictObject({
+      left: z.enum(END_CONDITIONS).default('reflecting'),
+      right: z.enum(END_CONDITIONS).default('reflecting'),
+    })
+    .default({ left: 'reflecting', right: 'reflecting' }),
+});
+
+export const SiteSchema = z.strictObject({
+  name: z.string().min(1, { error: 'must not be empty' }).max(80),
+  atKm: valueSchema(FIELDS.positionKm),
+});
+
+export const BarrierOptionSchema = z.strictObject({
+  name: z.string().min(1, { error: 'must not be empty' }).max(80),
+  /** Start of the clearing along the transect [km]. */
+  fromKm: valueSchema(FIELDS.positionKm),
+  widthM: valueSchema(FIELDS.widthM),
+  cover: z.enum(BARRIER_COVERS, { error: `must be one of ${BARRIER_COVERS.join(', ')}` }).default('clearing'),
+});
+
+export const BarrierSchema = z.strictObject({
+  /** Length of the clearing across the direction of spread [km]. */
+  lengthKm: valueSchema(FIELDS.barrierLengthKm),
+  costPerStem: valueSchema(FIELDS.costPerStem).optional(),
+  /** Currency or unit printed next to costs, e.g. "EUR" (free text). */
+  costUnit: z.string().max(12).optional(),
+  options: z.array(BarrierOptionSchema).max(8, { error: 'at most 8 options per scenario' }).default([]),
+});
+
+export const NumericsSchema = z.strictObject({
+  /** Largest cell [m]; automatic when absent. */
+  cellM: valueSchema(FIELDS.cellM).optional(),
+  /** Time step [yr]; automatic when absent. */
+  stepYears: valueSchema(FIELDS.stepYears).optional(),
+});
+
+/** Current version of the scenario file format. */
+export const SCENARIO_VERSION = 1;
+
+const ScenarioObjectSchema = z.strictObject({
+  version: z.literal(SCENARIO_VERSION, { error: `must be ${SCENARIO_VERSION}` }).default(SCENARIO_VERSION),
+  title: z.string().min(1, { error: 'must not be empty' }).max(300, { error: 'must be at most 300 characters' }),
+  description: z.string().max(4000).default(''),
+  region: z.string().max(200).optional(),
+  pest: PestSchema,
+  transect: TransectSchema,
+  infestation: z.strictObject({
+    fromKm: valueSchema(FIELDS.positionKm),
+    toKm: valueSchema(FIELDS.positionKm),
+    density: valueSchema(FIELDS.infestedDensity).default(1),
+  }),
+  sites: z.array(SiteSchema).max(50, { error: 'at most 50 protected sites' }).default([]),
+  barrier: BarrierSchema.optional(),
+  horizonYears: valueSchema(FIELDS.horizonYears),
+  detectionLevel: valueSchema(FIELDS.detectionLevel).default(0.01),
+  numerics: NumericsSchema.default({}),
+});
+
+/** Segment end positions [km] (originKm, then the running sum of lengths). */
+export function segmentBreaks(transect: { originKm: number; segments: { lengthKm: number }[] }): number[] {
+  const breaks = [transect.originKm];
+  for (const s of transect.segments) breaks.push(breaks[breaks.length - 1] + s.lengthKm);
+  return breaks;
+}
+
+/** Positions are compared with this slack [km] (1 mm) so that decimal input is not rejected for round-off. */
+const POSITION_SLACK_KM = 1e-6;
+
+/** Cross-field rules that a single field cannot express. Returns problems; empty when consistent. */
+function crossChecks(s: z.infer<typeof ScenarioObjectSchema>): Problem[] {
+  const problems: Problem[] = [];
+  const breaks = segmentBreaks(s.transect);
+  const start = breaks[0];
+  const end = breaks[breaks.length - 1];
+  const within = `within the transect [${round(start)}, ${round(end)}] km`;
+  s.transect.segments.forEach((seg, k) => {
+    if (seg.fromKm !== undefined && Math.abs(seg.fromKm - breaks[k]) > POSITION_SLACK_KM) {
+      const kind = seg.fromKm < breaks[k] ? 'overlaps the previous segment' : 'leaves a gap after the previous segment';
+      problems.push({
+        path: `transect.segments[${k}].fromKm`,
+        value: seg.fromKm,
+        message: `${kind}: segments are contiguous, so this one must start at ${round(breaks[k])} km`,
+      });
+    }
+  });
+  const inf = s.infestation;
+  if (!(inf.toKm > inf.fromKm)) {
+    problems.push({ path: 'infestation.toKm', value: inf.toKm, message: `must be greater than infestation.fromKm (${inf.fromKm})` });
+  }
+  for (const key of ['fromKm', 'toKm'] as const) {
+    const v = inf[key];
+    if (v < start - POSITION_SLACK_KM || v > end + POSITION_SLACK_KM) {
+      problems.push({ path: `infestation.${key}`, value: v, message: `must be ${within}` });
+    }
+  }
+  const hostInInfestation = s.transect.segments.some(
+    (seg, k) => seg.habitat === 'host-forest' && breaks[k] < inf.toKm && breaks[k + 1] > inf.fromKm,
+  );
+  if (!hostInInfestation) {
+    problems.push({ path: 'infestation', value: { fromKm: inf.fromKm, toKm: inf.toKm }, message: 'must overlap at least one host-forest segment' });
+  }
+  const names = new Set<string>();
+  s.sites.forEach((site, i) => {
+    if (site.atKm < start - POSITION_SLACK_KM || site.atKm > end + POSITION_SLACK_KM) {
+      problems.push({ path: `sites[${i}].atKm`, value: site.atKm, message: `must be ${within}` });
+    } else if (site.atKm >= inf.fromKm && site.atKm <= inf.toKm) {
+      problems.push({
+        path: `sites[${i}].atKm`,
+        value: site.atKm,
+        message: `lies inside the current infestation [${inf.fromKm}, ${inf.toKm}] km; a protected site must be outside it`,
+      });
+    }
+    if (names.has(site.name)) problems.push({ path: `sites[${i}].name`, value: site.name, message: 'is used by another site; names must be unique' });
+    names.add(site.name);
+  });
+  const usesNonHost =
+    s.transect.segments.some((seg) => seg.habitat === 'non-host-forest') ||
+    (s.barrier?.options ?? []).some((o) => o.cover === 'non-host-forest');
+  if (usesNonHost) {
+    for (const f of NON_HOST_PEST_FIELDS) {
+      if (s.pest[f] === undefined) {
+        problems.push({
+          path: `pest.${f}`,
+          value: undefined,
+          message: `is required because the layout or an option has non-host forest (${describeRange(FIELDS[f])})`,
+        });
+      }
+    }
+  }
+  const optionNames = new Set<string>();
+  (s.barrier?.options ?? []).forEach((o, i) => {
+    const to = o.fromKm + o.widthM / 1000;
+    if (o.fromKm < start - POSITION_SLACK_KM || to > end + POSITION_SLACK_KM) {
+      problems.push({
+        path: `barrier.options[${i}].fromKm`,
+        value: o.fromKm,
+        message: `the clearing [${round(o.fromKm)}, ${round(to)}] km must lie ${within}`,
+      });
+    } else if (o.fromKm < inf.toKm && to > inf.fromKm) {
+      problems.push({
+        path: `barrier.options[${i}].fromKm`,
+        value: o.fromKm,
+        message: `the clearing [${round(o.fromKm)}, ${round(to)}] km overlaps the current infestation [${inf.fromKm}, ${inf.toKm}] km`,
+      });
+    }
+    if (optionNames.has(o.name)) problems.push({ path: `barrier.options[${i}].name`, value: o.name, message: 'is used by another option; names must be unique' });
+    optionNames.add(o.name);
+  });
+  return problems;
+}
+
+function round(x: number): number {
+  return Math.round(x * 1e6) / 1e6;
+}
+
+/** The scenario schema: one concept, shared by the form, the API, the CLI and scenario files. */
+export const ScenarioSchema = ScenarioObjectSchema.superRefine((s, ctx) => {
+  for (const p of crossChecks(s)) {
+    ctx.addIssue({ code: 'custom', path: pathFromDotted(p.path), input: p.value, message: p.message });
+  }
+});
+
+function pathFromDotted(path: string): (string | number)[] {
+  const out: (string | number)[] = [];
+  for (const m of path.matchAll(/([^.[\]]+)|\[(\d+)\]/g)) out.push(m[2] !== undefined ? Number(m[2]) : m[1]);
+  return out;
+}
+
+/** A validated scenario; numeric parameters may still be distributions. */
+export type Scenario = z.infer<typeof ScenarioSchema>;
+/** What a scenario file may contain (before defaults are filled in). */
+export type ScenarioInput = z.input<typeof ScenarioSchema>;
+/** A scenario with every distribution replaced by a number, ready to simulate. */
+export type PointScenario = Resolved<Scenario>;
+
+/**
+ * Validates untrusted input (parsed JSON, form data turned into an object, API body).
+ * @throws ScenarioError listing every problem with its field path, value and allowed range
+ */
+export function parseScenario(input: unknown): Scenario {
+  const r = ScenarioSchema.safeParse(input);
+  if (!r.success) throw new ScenarioError(problemsFromZod(r.error.issues, input));
+  return r.data;
+}
+
+/** Parses scenario JSON text; a syntax error becomes a ScenarioError with the position. */
+export function parseScenarioText(text: string): Scenario {
+  let raw: unknown;
+  try {
+    raw = JSON.parse(text);
+  } catch (e) {
+    throw new ScenarioError([{ path: '', value: undefined, message: `is not valid JSON (${(e as Error).message})` }]);
+  }
+  return parseScenario(raw);
+}
+
+/** The single-run scenario: each distribution replaced by its central value. */
+export function pointScenario(s: Scenario): PointScenario {
+  return resolveQuantities(s);
+}
+
+export { formatPath };

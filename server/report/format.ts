@@ -1,0 +1,43 @@
+/** Number formatting shared by the CLI summary, the web pages and the briefing (presentation only). */
+
+/** Fixed decimals, with a true minus sign and no "-0". */
+export function fixed(x: number, digits: number): string {
+  const s = x.toFixed(digits);
+  return (Number(s) === 0 ? (0).toFixed(digits) : s).replace('-', '−');
+}
+
+/** Integer with thin thousands separators, e.g. 12 345. */
+export function integer(x: number): string {
+  const s = Math.round(Math.abs(x)).toString().replace(/\B(?=(\d{3})+(?!\d))/g, '\u202f');
+  return x < 0 && Math.round(x) !== 0 ? `−${s}` : s;
+}
+
+/** A year count to one decimal, or the given text for null. */
+export function years(x: number | null | undefined, none = '—'): string {
+  return x === null || x === undefined || !Number.isFinite(x) ? none : fixed(x, 1);
+}
+
+/** A position or distance in km with up to 3 decimals (trailing zeros dropped below 10 km). */
+export function km(x: number | null | undefined, none = '—'): string {
+  if (x === null || x === undefined || !Number.isFinite(x)) return none;
+  return Math.abs(x) >= 100 ? fixed(x, 1) : fixed(x, 2);
+}
+
+/** A fraction as a percentage. */
+export function percent(x: number, digits = 0): string {
+  return `${fixed(100 * x, digits)} %`;
+}
+
+/** A speed in km/yr with 2 significant decimals. */
+export function speed(x: number | null | undefined, none = '—'): string {
+  return x === null || x === undefined || !Number.isFinite(x) ? none : `${fixed(x, x !== 0 && Math.abs(x) < 0.1 ? 3 : 2)} km/yr`;
+}
+
+/** A general number with `sig` significant digits, plain notation where sensible. */
+export function num(x: number, sig = 3): string {
+  if (!Number.isFinite(x)) return '—';
+  if (x === 0) return '0';
+  const a = Math.abs(x);
+  if (a >= 1e-3 && a < 1e6) return Number(x.toPrecision(sig)).toString().replace('-', '−');
+  return x.toExponential(sig - 1).replace('-', '−');
+}

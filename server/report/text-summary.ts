@@ -1,0 +1,59 @@
+import type { ResultDocument, RunResult } from '../analysis/result.ts';
+import { fixed, integer, km, num, percent, speed, years } from './format.ts';
+
+/** Front positions at about `n` evenly spaced years, for a compact table. */
+function frontTable(run: RunResult, horizon: number, n = 7): string[] {
+  const { timesYears, rightFrontKm, leftFrontKm } = run.series;
+  const rows = ['    year   right front (km)   left front (km)'];
+  for (let k = 0; k < n; k++) {
+    const target = (horizon * k) / (n - 1);
+    let best = 0;
+    for (let i = 0; i < timesYears.length; i++) if (Math.abs(timesYears[i] - target) < Math.abs(timesYears[best] - target)) best = i;
+    rows.push(`    ${fixed(timesYears[best], 1).padStart(5)}   ${km(rightFrontKm[best], 'none').padStart(16)}   ${km(leftFrontKm[best], 'none').padStart(15)}`);
+  }
+  return rows;
+}
+
+/** The readable part of one run: fronts, measured speed, arrivals, host. */
+export function runSummary(run: RunResult, horizon: number): string[] {
+  const lines = ['  Front position over time (farthest point at or above the detection level):', ...frontTable(run, horizon)];
+  for (const r of run.spreadRates) {
+    if (r.kmPerYear === null) continue;
+    lines.push(`  Measured spread rate ${r.direction}wards: ${speed(r.kmPerYear)} (straight-line fit over years ${years(r.fromYears)}–${years(r.toYears)}, R² ${fixed(r.rSquared ?? 0, 3)})`);
+  }
+  if (run.spreadRates.every((r) => r.kmPerYear === null)) lines.push('  Measured spread rate: front did not travel far enough within the transect to measure');
+  if (run.arrivals.length) {
+    lines.push('  Arrival at protected sites:');
+    for (const a of run.arrivals) {
+      lines.push(`    ${a.name} (km ${km(a.atKm)}): ${a.arrivalYears === null ? `not reached within ${years(run.endYears)} yr` : `year ${years(a.arrivalYears)}`}`);
+    }
+  }
+  lines.push(`  Host remaining at year ${years(run.endYears)}: ${percent(run.host.remainingFraction)} of host stems; ${integer(run.host.stemsKilledPerKm)} stems killed per km of front width`);
+  return lines;
+}
+
+/** Plain-text summary printed by `npm run evaluate`. */
+export function textSummary(doc: ResultDocument): string {
+  const b = doc.baseline;
+  const m = doc.model;
+  const out: string[] = [];
+  out.push(`${doc.tool.name} ${doc.tool.version} — ${doc.title}`);
+  out.push(`Pest profile: ${doc.pest.name}${doc.pest.illustrative ? ' (ILLUSTRATIVE values, not a real species)' : ''}`);
+  out.push(
+    `Growth: ${m.growthForm}; low-density rate ${num(m.lowDensityRate)} /yr` +
+      (m.alleeThreshold !== null ? `; Allee threshold ${num(m.alleeThreshold)} of capacity` : '; no Allee threshold') +
+      (m.hostDepletion ? '; hosts are killed' : '; hosts not depleted'),
+  );
+  out.push(`Horizon ${years(doc.horizonYears)} yr; detection level ${num(doc.detectionLevel)} of capacity`);
+  const nb = b.numerics;
+  out.push(
+    `Grid ${integer(nb.nCells)} cells (${num(nb.cellKmMin * 1000)}–${num(nb.cellKmMax * 1000)} m${nb.autoCell ? ', automatic' : ''}), ` +
+      `step ${num(nb.stepYears)} yr${nb.autoStep ? ' (automatic)' : ''}, ${integer(nb.steps)} steps, ${integer(nb.wallMs)} ms`,
+  );
+  out.push('', 'Baseline (the stand as it stands, no clearing)', ...runSummary(b, doc.horizonYears));
+  for (const o of doc.options) {
+    out.push('', `Option "${o.name}": ${o.cover} from km ${km(o.fromKm)}, ${num(o.widthM)} m wide`, ...runSummary(o.run, doc.horizonYears));
+  }
+  out.push('', 'Limits and cautions:', ...doc.cautions.map((c) => `  - ${c}`));
+  return out.join('\n');
+}
