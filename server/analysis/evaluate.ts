@@ -51,7 +51,8 @@ export function evaluateScenario(scenario: Scenario, opts: EvaluateOptions = {})
       shouldCancel: opts.shouldCancel,
       onProgress: progress(k + 1, `option ${o.name}`),
     });
-    return { name: o.name, fromKm: o.fromKm, widthM: o.widthM, cover: o.cover, run: summariseRun(out, s) };
+    // Issue 3 (barrier analysis) replaces this with the full option analysis; until then only the run is filled.
+    return { name: o.name, fromKm: o.fromKm, widthM: o.widthM, cover: o.cover, run: summariseRun(out, s) } as unknown as OptionResult;
   });
   opts.onProgress?.(1, 'done');
   return {
