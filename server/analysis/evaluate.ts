@@ -66,6 +66,7 @@ export function evaluateScenario(scenario: Scenario, opts: EvaluateOptions = {})
     pest: { name: s.pest.name, illustrative: s.pest.illustrative },
     horizonYears: s.horizonYears,
     detectionLevel: s.detectionLevel,
+    infestation: { fromKm: s.infestation.fromKm, toKm: s.infestation.toKm, density: s.infestation.density },
     model: modelFacts(s),
     baseline: summariseRun(baselineOut, s),
     options: optionResults,

@@ -88,6 +88,8 @@ export interface ResultDocument {
   pest: { name: string; illustrative: boolean };
   horizonYears: number;
   detectionLevel: number;
+  /** The current infestation as given in the scenario [km]; density relative to capacity. */
+  infestation?: { fromKm: number; toKm: number; density: number };
   /** Model facts that frame the reading of results. */
   model: {
     growthForm: string;
