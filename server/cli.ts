@@ -6,19 +6,23 @@ import { readFileSync, renameSync, writeFileSync, rmSync } from 'node:fs';
 import { dirname, basename, join } from 'node:path';
 import { parseScenarioText } from './model/scenario.ts';
 import { InputError, formatProblems } from './model/errors.ts';
-import { evaluateScenario } from './analysis/evaluate.ts';
+import { evaluateScenarioParallel } from './analysis/evaluate-parallel.ts';
 import { textSummary } from './report/text-summary.ts';
 
 const USAGE = `usage: npm run evaluate -- <scenario.json> [--json] [--out FILE]
   --json        print the result document (JSON) instead of the readable summary
   --out FILE    write the output to FILE instead of standard output
-  --quiet       no progress bar`;
+  --quiet       no progress bar
+  --threads N   worker threads for an ensemble (default: all cores)
+  Ctrl-C during an ensemble stops it and reports the draws done so far; a second Ctrl-C quits.`;
 
 export interface CliArgs {
   file: string;
   json: boolean;
   out?: string;
   quiet: boolean;
+  /** Worker threads for ensembles (default: all cores). */
+  threads?: number;
 }
 
 /** Parses argv (without node and script). @throws InputError naming the bad argument */
@@ -32,8 +36,13 @@ export function parseArgs(argv: string[]): CliArgs {
       const v = argv[++i];
       if (!v || v.startsWith('--')) throw new InputError('USAGE', [{ path: '--out', value: v, message: 'needs a file name' }]);
       args.out = v;
+    } else if (a === '--threads') {
+      const v = argv[++i];
+      const n = Number(v);
+      if (!Number.isInteger(n) || n < 1 || n > 256) throw new InputError('USAGE', [{ path: '--threads', value: v, message: 'needs a whole number from 1 to 256' }]);
+      args.threads = n;
     } else if (a.startsWith('--')) {
-      throw new InputError('USAGE', [{ path: a, value: a, message: 'is not a known option (--json, --out FILE, --quiet)' }]);
+      throw new InputError('USAGE', [{ path: a, value: a, message: 'is not a known option (--json, --out FILE, --quiet, --threads N)' }]);
     } else if (args.file === undefined) args.file = a;
     else throw new InputError('USAGE', [{ path: 'arguments', value: a, message: 'only one scenario file may be given' }]);
   }
@@ -53,22 +62,33 @@ export function writeAtomically(path: string, data: string | Uint8Array): void {
   }
 }
 
-function progressBar(enabled: boolean) {
-  let last = -1;
+/** Progress bar on standard error (TTY only), with the stage and, for long runs, the time left. */
+export function progressBar(enabled: boolean, write: (s: string) => void = (s) => process.stderr.write(s), clock: () => number = () => performance.now()) {
+  let last = '';
+  const started = clock();
   return (fraction: number, stage: string) => {
     if (!enabled) return;
     const pct = Math.floor(fraction * 100);
-    if (pct === last) return;
-    last = pct;
+    const elapsed = (clock() - started) / 1000;
+    // Time left from the average rate so far, once there is enough to go on.
+    const left = fraction > 0.02 && fraction < 1 && elapsed > 2 ? `, about ${formatSeconds((elapsed * (1 - fraction)) / fraction)} left` : '';
+    const label = `${stage}${left}`;
+    const key = `${pct}|${label}`;
+    if (key === last) return;
+    last = key;
     const width = 30;
-    const done = Math.round((fraction * width));
-    process.stderr.write(`\r[${'#'.repeat(done)}${'.'.repeat(width - done)}] ${String(pct).padStart(3)} % ${stage.padEnd(30).slice(0, 30)}`);
-    if (fraction >= 1) process.stderr.write('\n');
+    const done = Math.round(fraction * width);
+    write(`\r[${'#'.repeat(done)}${'.'.repeat(width - done)}] ${String(pct).padStart(3)} % ${label.padEnd(44).slice(0, 44)}`);
+    if (fraction >= 1) write('\n');
   };
 }
 
-/** Runs the CLI; returns the exit code (0 ok, 1 invalid scenario or failed run, 2 usage). */
-export function main(argv: string[]): number {
+function formatSeconds(s: number): string {
+  return s < 90 ? `${Math.ceil(s)} s` : `${Math.ceil(s / 60)} min`;
+}
+
+/** Runs the CLI; resolves to the exit code (0 ok, 1 invalid scenario or failed run, 2 usage). */
+export async function main(argv: string[]): Promise<number> {
   let args: CliArgs;
   try {
     args = parseArgs(argv);
@@ -85,7 +105,24 @@ export function main(argv: string[]): number {
   }
   try {
     const scenario = parseScenarioText(text);
-    const doc = evaluateScenario(scenario, { onProgress: progressBar(!args.quiet && process.stderr.isTTY === true) });
+    // Ctrl-C stops an ensemble cleanly (the draws done so far are reported); a second Ctrl-C quits.
+    let cancelled = false;
+    const onSigint = () => {
+      if (cancelled) process.exit(130);
+      cancelled = true;
+      process.stderr.write('\nstopping after the current draws (Ctrl-C again to quit)…\n');
+    };
+    process.on('SIGINT', onSigint);
+    let doc;
+    try {
+      doc = await evaluateScenarioParallel(scenario, {
+        threads: args.threads,
+        shouldCancel: () => cancelled,
+        onProgress: progressBar(!args.quiet && process.stderr.isTTY === true),
+      });
+    } finally {
+      process.off('SIGINT', onSigint);
+    }
     const output = args.json ? `${JSON.stringify(doc, null, 1)}\n` : `${textSummary(doc)}\n`;
     if (args.out) writeAtomically(args.out, output);
     else process.stdout.write(output);
@@ -101,5 +138,7 @@ export function main(argv: string[]): number {
 }
 
 if (import.meta.url === `file://${process.argv[1]}`) {
-  process.exitCode = main(process.argv.slice(2));
+  main(process.argv.slice(2)).then((code) => {
+    process.exitCode = code;
+  });
 }

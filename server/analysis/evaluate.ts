@@ -6,7 +6,9 @@ import { buildLayout } from './layout.ts';
 import { linearSpreadSpeed } from './discretise.ts';
 import { runLayout, summariseRun } from './simulate.ts';
 import { allCautions } from './cautions.ts';
-import { RESULT_VERSION, type OptionResult, type ResultDocument } from './result.ts';
+import { RESULT_VERSION, type OptionResult, type ResultDocument, type UncertaintyResult } from './result.ts';
+import { runEnsemble } from './ensemble.ts';
+import { analyseBypass, singleRunShare } from './uncertainty.ts';
 
 export interface EvaluateOptions {
   /** Polled during runs; returning true cancels (the result then carries status 'cancelled'). */
@@ -15,6 +17,11 @@ export interface EvaluateOptions {
   onProgress?: (fraction: number, stage: string) => void;
   /** Clock for the run date (tests pass a fixed date). */
   now?: () => Date;
+  /**
+   * Where the ensemble of a scenario with an `uncertainty` block runs: 'inline' (this thread, default) or
+   * 'skip' (the caller runs it, e.g. evaluateScenarioParallel on a worker pool).
+   */
+  ensemble?: 'inline' | 'skip';
 }
 
 /** Model facts printed with every result. */
@@ -37,7 +44,9 @@ export function evaluateScenario(scenario: Scenario, opts: EvaluateOptions = {})
   const s = pointScenario(scenario);
   const options = s.barrier?.options ?? [];
   const nRuns = 1 + options.length;
-  const progress = (k: number, label: string) => (f: number) => opts.onProgress?.((k + f) / nRuns, label);
+  // With an ensemble, the single runs take the first share of the bar and the draws the rest.
+  const share = opts.ensemble === 'skip' ? 1 : singleRunShare(scenario);
+  const progress = (k: number, label: string) => (f: number) => opts.onProgress?.((share * (k + f)) / nRuns, label);
   const baselineOut = runLayout({
     scenario: s,
     pieces: buildLayout(s),
@@ -54,6 +63,15 @@ export function evaluateScenario(scenario: Scenario, opts: EvaluateOptions = {})
     // Issue 3 (barrier analysis) replaces this with the full option analysis; until then only the run is filled.
     return { name: o.name, fromKm: o.fromKm, widthM: o.widthM, cover: o.cover, run: summariseRun(out, s) } as unknown as OptionResult;
   });
+  let uncertainty: UncertaintyResult | undefined;
+  if (scenario.uncertainty && opts.ensemble !== 'skip') {
+    uncertainty = runEnsemble(scenario, {
+      shouldCancel: opts.shouldCancel,
+      onProgress: (f, stage) => opts.onProgress?.(share + (1 - share) * f, stage),
+    });
+  }
+  // When the caller runs the ensemble it also adds the bypass section (which uses the ensemble).
+  const bypass = opts.ensemble === 'skip' && scenario.uncertainty ? undefined : analyseBypass(s, uncertainty, opts.shouldCancel);
   opts.onProgress?.(1, 'done');
   return {
     resultVersion: RESULT_VERSION,
@@ -70,6 +88,8 @@ export function evaluateScenario(scenario: Scenario, opts: EvaluateOptions = {})
     model: modelFacts(s),
     baseline: summariseRun(baselineOut, s),
     options: optionResults,
+    ...(uncertainty ? { uncertainty } : {}),
+    ...(bypass ? { bypass } : {}),
     cautions: allCautions(),
   };
 }

@@ -106,9 +106,9 @@ export interface ResultDocument {
   /** Periodic thinning patterns, when the scenario asks for them. */
   mosaics?: MosaicResult[];
   /** Ensemble over uncertain parameters, when the scenario asks for one. Filled by the uncertainty analysis. */
-  uncertainty?: Record<string, unknown>;
+  uncertainty?: UncertaintyResult;
   /** Human-carried bypass risk, when the scenario describes transport. Filled by the bypass analysis. */
-  bypass?: Record<string, unknown>;
+  bypass?: BypassResult;
   /** Plain-language limits and cautions; every output shows them. */
   cautions: string[];
 }
@@ -210,4 +210,191 @@ export interface MosaicResult {
   sentence: string;
   /** Dispersion curve for charts: decay rates s [1/km] and λ(s) [1/yr]. */
   curve: { s: number[]; lambda: number[] };
+}
+
+/* ---------------------------------------------------------------------------------------------------
+ * Uncertainty (ensemble), sensitivity and human-carried bypass (issue 6). Documented in README.md,
+ * "Result document". Probabilities are fractions in [0, 1].
+ * ------------------------------------------------------------------------------------------------- */
+
+/** A probability estimated from ensemble draws, with its Monte Carlo standard error. */
+export interface ProbabilityEstimate {
+  /** Estimated probability. */
+  p: number;
+  /**
+   * Monte Carlo standard error √(p(1−p)/n) (the simple-random-sampling value; Latin hypercube draws are at
+   * least as precise for outcomes monotone in each parameter, so this is conservative).
+   */
+  standardError: number;
+  /** Draws the estimate rests on. */
+  n: number;
+}
+
+/**
+ * Quantiles of an outcome over the draws. A null quantile means "beyond the horizon" (the event did not
+ * happen within the run in that share of draws), so only a lower bound is known.
+ */
+export interface QuantileSummary {
+  /** 5 % quantile. */
+  p05: number | null;
+  median: number | null;
+  /** 95 % quantile. */
+  p95: number | null;
+  /** Mean over the draws where the outcome is defined and within the horizon; null if none. */
+  mean: number | null;
+  /** Draws with a defined value (within the horizon). */
+  n: number;
+  /** Draws where the event lay beyond the horizon (counted as +∞ in the quantiles). */
+  beyondHorizon: number;
+  /** Approximate standard error of the median from the order statistics (Monte Carlo error); null if not available. */
+  medianStandardError: number | null;
+}
+
+/** One uncertain parameter of the scenario and how it was drawn. */
+export interface UncertainParameter {
+  /** Dotted path in the scenario, e.g. `pest.diffusionOpen`. */
+  path: string;
+  label: string;
+  unit: string;
+  /** The distribution as given in the scenario. */
+  distribution: { dist: 'uniform'; min: number; max: number } | { dist: 'triangular'; min: number; mode: number; max: number } | { dist: 'lognormal'; median: number; spread: number };
+  /** Value used by the single runs (the central value). */
+  centralValue: number;
+  /** Draws moved into the field's allowed range (log-normal tails beyond the range are clipped to its edge). */
+  clippedDraws: number;
+}
+
+/** Partial rank correlation of one parameter with the ranked outcome. */
+export interface SensitivityEntry {
+  path: string;
+  label: string;
+  /** Partial rank correlation coefficient in [−1, 1]; positive: larger values of the parameter raise the outcome. */
+  prcc: number;
+  /** True when |PRCC| is significant at the 5 % level (t-test with n − 2 − (k − 1) degrees of freedom). */
+  significant: boolean;
+}
+
+/** Which parameters drive an outcome, most influential first (chart-ready: bar per entry). */
+export interface SensitivityResult {
+  /** What was ranked, e.g. "critical width [m]" or "year the front crosses the clearing". */
+  outcome: string;
+  /** Key of the outcome: 'criticalWidthM' | 'crossingYears' | 'arrivalYears'. */
+  outcomeKey: string;
+  method: string;
+  /** Sorted by |prcc|, largest first. */
+  entries: SensitivityEntry[];
+  /** One plain sentence, e.g. "The verdict depends mostly on movement in the open (PRCC +0.81), then on ...". */
+  sentence: string;
+}
+
+/** Ensemble outcome at one protected site for one option. */
+export interface SiteUncertainty {
+  name: string;
+  atKm: number;
+  /** Probability the pest reaches the site within the horizon with the option in place. */
+  reachedWithinHorizon: ProbabilityEstimate;
+  /** Arrival year with the option [yr]. */
+  arrivalYears: QuantileSummary;
+  /** Delay against the baseline [yr] (option − baseline arrival), over draws where the baseline arrives. */
+  delayYears: QuantileSummary;
+}
+
+/** Ensemble of the critical width of one option. */
+export interface CriticalWidthUncertainty {
+  /** False when not computed (growth form without a strong Allee effect, switched off, or the analysis is unavailable). */
+  computed: boolean;
+  note: string;
+  /** Distribution of the per-draw critical width [m]; draws where no finite width pins the front count as beyond. */
+  widthM: QuantileSummary | null;
+  /** Width that holds in 90 % of draws [m] (90 % quantile of the critical width); null if beyond the search range. */
+  holds90M: number | null;
+  /** Width that holds in 95 % of draws [m]. */
+  holds95M: number | null;
+}
+
+/** Ensemble results for one barrier option. */
+export interface OptionUncertainty {
+  name: string;
+  widthM: number;
+  /** Front not past the far edge of the clearing at the horizon. */
+  holdsWithinHorizon: ProbabilityEstimate;
+  /** Front verified pinned (holds indefinitely); null until the barrier analysis provides it per draw. */
+  pinned: ProbabilityEstimate | null;
+  /** Year the front passes the far edge of the clearing [yr]. */
+  crossingYears: QuantileSummary;
+  /** Barrier holds against natural spread AND no established human-carried introduction beyond it by the horizon; null without transport. */
+  holdsIncludingTransport: ProbabilityEstimate | null;
+  sites: SiteUncertainty[];
+  criticalWidth: CriticalWidthUncertainty;
+  sensitivity: SensitivityResult | null;
+  /** Plain sentences for the reader (verdict in probabilities, transport, more draws). */
+  sentences: string[];
+}
+
+/** The ensemble over uncertain parameters. */
+export interface UncertaintyResult {
+  method: 'latin-hypercube';
+  /** Draws asked for. */
+  draws: number;
+  /** Draws completed (fewer when cancelled). */
+  completed: number;
+  status: 'completed' | 'cancelled';
+  seed: number;
+  parameters: UncertainParameter[];
+  /** Baseline arrival at each site. */
+  baseline: { sites: { name: string; atKm: number; reachedWithinHorizon: ProbabilityEstimate; arrivalYears: QuantileSummary }[] };
+  options: OptionUncertainty[];
+  /** Monte Carlo adequacy: largest probability standard error against the target. */
+  convergence: {
+    targetStandardError: number;
+    largestStandardError: number;
+    adequate: boolean;
+    /** Draws that would bring the largest standard error to the target (≥ the draws used). */
+    drawsSuggested: number;
+    message: string;
+  };
+  /** Worker threads used and wall time [ms] (does not change the numbers). */
+  threads: number;
+  wallMs: number;
+}
+
+/** Human-carried bypass risk of one option (from the central-value run, and over the ensemble when there is one). */
+export interface OptionBypass {
+  name: string;
+  widthM: number;
+  /** Which side the barrier protects. */
+  protectsSide: 'right' | 'left';
+  /** Expected number of established introductions beyond the barrier by the horizon (Λ). */
+  expectedEstablished: number;
+  /** P(at least one established introduction beyond the barrier by the horizon) = 1 − e^(−Λ), central-value run. */
+  probability: number;
+  /** Same, by year: chart-ready curve (years 0…horizon). */
+  curve: { timesYears: number[]; probability: number[] };
+  /** Bypass probability with the clearing 100 m wider (shows how little width helps against transport). */
+  probabilityIf100mWider: number;
+  /** Ensemble mean of the bypass probability, when an ensemble ran. */
+  ensemble: ProbabilityEstimate | null;
+  /** P(barrier holds against natural spread) from the central-value run (1 or 0) or the ensemble. */
+  holdsNatural: number;
+  /** P(holds against natural spread and human transport). */
+  holdsOverall: number;
+  /** True when transport, not the width, decides whether the barrier holds. */
+  transportDecides: boolean;
+  sentence: string;
+}
+
+/** Human-carried bypass risk (stratified dispersal). */
+export interface BypassResult {
+  method: string;
+  /** Inputs at their central values. */
+  inputs: {
+    ratePerKm2Year: number;
+    kernel: { shape: 'exponential'; meanKm: number } | { shape: 'table'; points: { distanceKm: number; shareBeyond: number }[] };
+    establishmentProbability: number;
+    forwardShare: number;
+    bandWidthKm: number;
+  };
+  options: OptionBypass[];
+  /** The regulator's tool against transport, stated with every bypass result. */
+  regulatorNote: string;
 }

@@ -83,6 +83,64 @@ export const NumericsSchema = z.strictObject({
   stepYears: valueSchema(FIELDS.stepYears).optional(),
 });
 
+/**
+ * Ensemble over the uncertain parameters (issue 6). Present: every distribution in the scenario is drawn
+ * by Latin hypercube sampling; absent: single runs at the central values only.
+ */
+export const UncertaintySchema = z.strictObject({
+  draws: valueSchema(FIELDS.ensembleDraws).int({ error: 'must be a whole number' }).default(1000),
+  seed: valueSchema(FIELDS.ensembleSeed).int({ error: 'must be a whole number' }).default(1),
+  /** Probability standard error above which the result asks for more draws. */
+  targetStandardError: valueSchema(FIELDS.targetStandardError).default(0.02),
+  /** Compute each draw's critical width for every option (needs the barrier analysis; the costly part). */
+  criticalWidth: z.boolean().default(true),
+});
+
+/** Distance kernel of human-carried introductions: exponential by mean, or a user table of distance vs share carried farther. */
+export const TransportKernelSchema = z.discriminatedUnion(
+  'shape',
+  [
+    z.strictObject({ shape: z.literal('exponential'), meanKm: quantitySchema(FIELDS.transportMeanKm) }),
+    z
+      .strictObject({
+        shape: z.literal('table'),
+        /** Rows (distance [km], share of introductions carried farther); piecewise linear in between, 0 beyond the last row. */
+        points: z
+          .array(z.strictObject({ distanceKm: valueSchema(FIELDS.transportDistanceKm), shareBeyond: valueSchema(FIELDS.shareBeyond) }))
+          .min(2, { error: 'needs at least two rows' })
+          .max(200, { error: 'must have at most 200 rows' }),
+      })
+      .superRefine((k, ctx) => {
+        k.points.forEach((p, i) => {
+          if (i === 0 && (p.distanceKm !== 0 || p.shareBeyond !== 1)) {
+            ctx.addIssue({ code: 'custom', path: ['points', 0], input: p, message: 'the first row must be {"distanceKm": 0, "shareBeyond": 1}' });
+          }
+          if (i > 0 && !(p.distanceKm > k.points[i - 1].distanceKm)) {
+            ctx.addIssue({ code: 'custom', path: ['points', i, 'distanceKm'], input: p.distanceKm, message: `must be greater than the previous row's ${k.points[i - 1].distanceKm}` });
+          }
+          if (i > 0 && p.shareBeyond > k.points[i - 1].shareBeyond) {
+            ctx.addIssue({ code: 'custom', path: ['points', i, 'shareBeyond'], input: p.shareBeyond, message: `must not exceed the previous row's ${k.points[i - 1].shareBeyond} (a share carried farther cannot grow with distance)` });
+          }
+        });
+      }),
+  ],
+  { error: 'shape must be one of exponential, table' },
+);
+
+/**
+ * Human-carried long-distance introductions (stratified dispersal; Shigesada, Kawasaki & Takeda 1995).
+ * Introductions start at `ratePerKm2Year` per km² of infested forest, travel a kernel distance, head towards
+ * the protected side with probability `forwardShare` and found a colony with `establishmentProbability`.
+ */
+export const TransportSchema = z.strictObject({
+  ratePerKm2Year: quantitySchema(FIELDS.transportRate),
+  kernel: TransportKernelSchema,
+  establishmentProbability: quantitySchema(FIELDS.establishmentProbability),
+  forwardShare: valueSchema(FIELDS.forwardShare).default(0.5),
+  /** Width of the band the transect stands for [km]; the barrier length across the front when absent. */
+  bandWidthKm: valueSchema(FIELDS.bandWidthKm).optional(),
+});
+
 /** Current version of the scenario file format. */
 export const SCENARIO_VERSION = 1;
 
@@ -103,6 +161,8 @@ const ScenarioObjectSchema = z.strictObject({
   horizonYears: valueSchema(FIELDS.horizonYears),
   detectionLevel: valueSchema(FIELDS.detectionLevel).default(0.01),
   numerics: NumericsSchema.default({}),
+  uncertainty: UncertaintySchema.optional(),
+  transport: TransportSchema.optional(),
 });
 
 /** Segment end positions [km] (originKm, then the running sum of lengths). */

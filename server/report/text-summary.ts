@@ -54,6 +54,48 @@ export function textSummary(doc: ResultDocument): string {
   for (const o of doc.options) {
     out.push('', `Option "${o.name}": ${o.cover} from km ${km(o.fromKm)}, ${num(o.widthM)} m wide`, ...runSummary(o.run, doc.horizonYears));
   }
+  out.push(...uncertaintySummary(doc));
   out.push('', 'Limits and cautions:', ...doc.cautions.map((c) => `  - ${c}`));
   return out.join('\n');
+}
+
+/** Readable lines for the ensemble and the human-carried bypass sections (empty when absent). */
+export function uncertaintySummary(doc: ResultDocument): string[] {
+  const out: string[] = [];
+  const u = doc.uncertainty;
+  if (u) {
+    out.push('', `Uncertainty: ${u.completed} of ${u.draws} Latin hypercube draws (seed ${u.seed}) over ${u.parameters.length} uncertain parameter(s)`);
+    for (const p of u.parameters) out.push(`  ${p.label}: ${describeDistribution(p.distribution)}${p.unit ? ` ${p.unit}` : ''}${p.clippedDraws ? ` (${p.clippedDraws} draws clipped to the allowed range)` : ''}`);
+    for (const o of u.options) {
+      for (const line of o.sentences) out.push(`  ${line}`);
+      for (const site of o.sites) {
+        const d = site.delayYears;
+        if (d.n + d.beyondHorizon === 0) continue;
+        out.push(`    ${site.name}: delay median ${quant(d.median)}, 5–95 % range ${quant(d.p05)} to ${quant(d.p95)}`);
+      }
+    }
+    out.push(`  ${u.convergence.message}`);
+  }
+  const b = doc.bypass;
+  if (b) {
+    out.push('', 'Human-carried introductions (bypass of the clearing):');
+    for (const o of b.options) out.push(`  ${o.sentence}`);
+    if (!b.options.some((o) => o.transportDecides)) out.push(`  ${b.regulatorNote}`);
+  }
+  return out;
+}
+
+function quant(x: number | null): string {
+  return x === null ? 'beyond the horizon' : `${fixed(x, 1)} yr`;
+}
+
+function describeDistribution(d: NonNullable<ResultDocument['uncertainty']>['parameters'][number]['distribution']): string {
+  switch (d.dist) {
+    case 'uniform':
+      return `uniform ${num(d.min)}–${num(d.max)}`;
+    case 'triangular':
+      return `triangular ${num(d.min)}–${num(d.max)}, most likely ${num(d.mode)}`;
+    case 'lognormal':
+      return `log-normal, median ${num(d.median)}, spread ×${num(d.spread)}`;
+  }
 }

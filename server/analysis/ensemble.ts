@@ -1,0 +1,495 @@
+/**
+ * Ensemble over uncertain parameters: Latin hypercube draws of every distribution in a scenario, one
+ * evaluation per draw (baseline and each barrier option), and the summary in probabilities with Monte
+ * Carlo standard errors and a partial-rank-correlation sensitivity ranking.
+ *
+ * Reproducibility: draw i depends only on (scenario, seed, i). The design is built from the seed's child
+ * stream 0; nothing else is random. So a given seed gives identical results whether the draws run in this
+ * thread or on a worker pool of any size (see ensemble-pool.ts).
+ */
+import { FIELDS, inRange, type FieldSpec } from '../model/fields.ts';
+import { centralValue, listUncertain, quantile, resolveQuantities, type Distribution } from '../model/quantity.ts';
+import { pointScenario, type PointScenario, type Scenario } from '../model/scenario.ts';
+import { formatPath } from '../model/errors.ts';
+import { alleeThreshold, lowDensityRate } from '../model/growth.ts';
+import { latinHypercube, makeRng } from '../numerics/rng.ts';
+import type { FieldState, Observer } from '../numerics/time-loop.ts';
+import { cellIndexAt } from '../numerics/grid.ts';
+import { buildLayout } from './layout.ts';
+import { discretise, growthRateScale } from './discretise.ts';
+import { runLayout } from './simulate.ts';
+import { ArrivalTracker } from './trackers.ts';
+import { BypassTracker, bandWidth, barrierGeometry, effectiveRate, makeSurvivalKernel, sourceWeights, type BarrierGeometry } from './bypass.ts';
+import { partialRankCorrelation } from './sensitivity.ts';
+import type {
+  OptionUncertainty,
+  ProbabilityEstimate,
+  QuantileSummary,
+  SensitivityResult,
+  SiteUncertainty,
+  UncertainParameter,
+  UncertaintyResult,
+} from './result.ts';
+
+/* ------------------------------------------------------------------ parameters and draws */
+
+/** Field spec of a scenario path whose last key names the field (growth.rate → growthRate, kernel.meanKm → transportMeanKm). */
+const FIELD_OF_KEY: Record<string, FieldSpec> = {
+  rate: FIELDS.growthRate,
+  meanKm: FIELDS.transportMeanKm,
+  ratePerKm2Year: FIELDS.transportRate,
+};
+
+/** The field spec (range, label, unit) of an uncertain entry's path. */
+export function fieldOfPath(path: readonly (string | number)[]): FieldSpec {
+  const key = String(path[path.length - 1]);
+  const spec = FIELD_OF_KEY[key] ?? (FIELDS as Record<string, FieldSpec>)[key];
+  if (!spec) throw new Error(`no field spec for uncertain parameter ${formatPath(path)}`);
+  return spec;
+}
+
+/** Label of a parameter for tables and sentences (segments name their stretch). */
+export function parameterLabel(scenario: Scenario, path: readonly (string | number)[]): string {
+  const spec = fieldOfPath(path);
+  const lower = (t: string): string => (t.startsWith('Allee') ? t : t.charAt(0).toLowerCase() + t.slice(1));
+  if (path[0] === 'transect' && path[1] === 'segments' && typeof path[2] === 'number') {
+    const seg = scenario.transect.segments[path[2]];
+    return `${lower(spec.label)} (${seg?.name ? `"${seg.name}"` : `segment ${path[2] + 1}`})`;
+  }
+  return lower(spec.label);
+}
+
+/**
+ * Moves a drawn value into the field's allowed range. Only log-normal tails can leave it (uniform and
+ * triangular draws lie between validated bounds); an exclusive bound is approached to within 1e-9 relative.
+ */
+export function clipToField(spec: FieldSpec, v: number): number {
+  if (inRange(spec, v)) return v;
+  const eps = 1e-9;
+  if (v < spec.min || (spec.minExclusive && v <= spec.min)) return spec.minExclusive ? spec.min + eps * Math.max(1, Math.abs(spec.min)) : spec.min;
+  return spec.maxExclusive ? spec.max - eps * Math.max(1, Math.abs(spec.max)) : spec.max;
+}
+
+export interface PlannedParameter {
+  path: (string | number)[];
+  pathText: string;
+  spec: FieldSpec;
+  distribution: Distribution;
+}
+
+/** The draws of an ensemble: parameters (stable depth-first order) and the unit design (row-major draws × parameters). */
+export interface EnsemblePlan {
+  parameters: PlannedParameter[];
+  draws: number;
+  seed: number;
+  /** Latin hypercube on (0,1)^k, draws × k, row-major. */
+  unit: Float64Array;
+}
+
+/** Uncertain parameters of a scenario (every distribution, in stable order). */
+export function uncertainParameters(scenario: Scenario): PlannedParameter[] {
+  return listUncertain(scenario).map((e) => ({ path: e.path, pathText: formatPath(e.path), spec: fieldOfPath(e.path), distribution: e.distribution }));
+}
+
+/**
+ * Plans the ensemble. Without distributions the ensemble is one draw (the central values), whatever
+ * `draws` says: repeating an identical run adds nothing.
+ */
+export function planEnsemble(scenario: Scenario): EnsemblePlan {
+  const u = scenario.uncertainty ?? { draws: 1000, seed: 1 };
+  const parameters = uncertainParameters(scenario);
+  const draws = parameters.length === 0 ? 1 : u.draws;
+  const unit = latinHypercube(draws, parameters.length, makeRng(u.seed).child(0));
+  return { parameters, draws, seed: u.seed, unit };
+}
+
+/** Parameter values of draw i (clipped into range) and which of them were clipped. */
+export function drawValues(plan: EnsemblePlan, i: number): { values: number[]; clipped: boolean[] } {
+  const k = plan.parameters.length;
+  const values: number[] = [];
+  const clipped: boolean[] = [];
+  for (let j = 0; j < k; j++) {
+    const p = plan.parameters[j];
+    const raw = quantile(p.distribution, plan.unit[i * k + j]);
+    const v = clipToField(p.spec, raw);
+    values.push(v);
+    clipped.push(v !== raw);
+  }
+  return { values, clipped };
+}
+
+/** The point scenario of draw i. */
+export function drawScenario(scenario: Scenario, plan: EnsemblePlan, i: number): { point: PointScenario; values: number[]; clipped: boolean[] } {
+  const { values, clipped } = drawValues(plan, i);
+  const byPath = new Map(plan.parameters.map((p, j) => [p.pathText, values[j]]));
+  const point = resolveQuantities(scenario, (d, path) => byPath.get(formatPath(path)) ?? centralValue(d)) as PointScenario;
+  return { point, values, clipped };
+}
+
+/* ------------------------------------------------------------------ one draw */
+
+/** What one evaluation of a point scenario yields for the ensemble (plain data: crosses worker threads). */
+export interface PointOutcome {
+  /** Baseline arrival per site [yr]; null: not within the horizon. */
+  baselineArrivals: (number | null)[];
+  options: {
+    /** Year the front passed the clearing (probe beyond the far edge reached); null: not within the horizon. */
+    crossingYears: number | null;
+    arrivals: (number | null)[];
+    /** Verified pinned (from the barrier analysis); null when not available. */
+    pinned: boolean | null;
+    /** Critical width [m]; Infinity: no width in the search range pins the front; null: not computed. */
+    criticalWidthM: number | null;
+    /** Expected established introductions beyond the barrier up to the crossing or the horizon; null without transport. */
+    bypassLambda: number | null;
+  }[];
+  /** Grid cell-steps simulated (for performance figures). */
+  cellSteps: number;
+}
+
+export interface DrawOutcome extends PointOutcome {
+  index: number;
+  values: number[];
+  clipped: boolean[];
+}
+
+/**
+ * Distance beyond the far edge of a clearing at which a front counts as having crossed [km]: two
+ * movement lengths √(D_host/r) (r the growth-rate scale, or the low-density rate if larger in size).
+ * A pinned front leaves a decaying tail just beyond the far edge that may exceed the detection level; the
+ * probe keeps such a tail from counting as a crossing.
+ */
+export function crossingProbeKm(s: PointScenario): number {
+  const r = Math.max(growthRateScale(s.pest.growth), Math.abs(lowDensityRate(s.pest.growth, 1)));
+  return 2 * Math.sqrt(s.pest.diffusionHost / r);
+}
+
+/**
+ * Density at the probe that counts as a crossing: the detection level, or the Allee threshold of the
+ * stand at the probe when that is higher (a group above the threshold grows on its own; a transient tail
+ * below it, leaking through the clearing early on, dies out).
+ */
+export function crossingLevel(s: PointScenario, stocking: number): number {
+  const a = alleeThreshold(s.pest.growth, stocking);
+  return Math.max(s.detectionLevel, a ?? 0);
+}
+
+function discretiseStocking(grid: { segmentAtCells: Int32Array }, pieces: readonly { stocking: number }[], cell: number): number {
+  return pieces[grid.segmentAtCells[cell]].stocking;
+}
+
+/** Records the first time the density at the probe cell beyond a clearing reaches the level. */
+export class CrossingTracker implements Observer {
+  crossingYears: number | null = null;
+  constructor(
+    private readonly cell: number,
+    private readonly level: number,
+  ) {}
+  initialize(s: FieldState): void {
+    if (s.u[this.cell] >= this.level) this.crossingYears = 0;
+  }
+  handle(s: FieldState): void {
+    if (this.crossingYears === null && s.u[this.cell] >= this.level) this.crossingYears = s.t;
+  }
+}
+
+/** Stops a run once every watched condition is met (saves time in ensembles). */
+class StopWhen implements Observer {
+  constructor(private readonly done: () => boolean) {}
+  handle(): boolean {
+    return this.done();
+  }
+}
+
+/**
+ * Evaluates one point scenario for the ensemble: baseline run (arrivals) and, per option, a run with the
+ * clearing (crossing, arrivals, bypass). Runs stop early once nothing more can change the outcome.
+ */
+export function evaluatePoint(s: PointScenario, shouldCancel?: () => boolean): PointOutcome {
+  let cellSteps = 0;
+  const basePieces = buildLayout(s);
+  const sitesKm = s.sites.map((x) => x.atKm);
+  const baseArrivals = new ArrivalTracker(discretise(s, basePieces).grid, sitesKm, s.detectionLevel);
+  const base = runLayout({
+    scenario: s,
+    pieces: basePieces,
+    record: false,
+    shouldCancel,
+    observers: [baseArrivals, new StopWhen(() => baseArrivals.allArrived())],
+  });
+  cellSteps += base.problem.grid.nCells * base.solver.info.steps;
+  const baselineArrivals = [...base.arrivals.arrivalYears];
+  const probeKm = crossingProbeKm(s);
+  const options = (s.barrier?.options ?? []).map((o) => {
+    const geometry = barrierGeometry(s, o);
+    const pieces = buildLayout(s, o);
+    // Same grid as runLayout builds (same layout, automatic or scenario resolution).
+    const { grid, hostAtCells } = discretise(s, pieces);
+    const cell = probeCell(grid, geometry, probeKm);
+    const crossing = new CrossingTracker(cell, crossingLevel(s, discretiseStocking(grid, pieces, cell)));
+    const bypass = s.transport
+      ? new BypassTracker([sourceWeights(grid, hostAtCells, geometry, makeSurvivalKernel(s.transport.kernel), bandWidth(s))], effectiveRate(s.transport), s.detectionLevel, [])
+      : null;
+    const arrivals = new ArrivalTracker(grid, sitesKm, s.detectionLevel);
+    const observers: Observer[] = [crossing, arrivals, ...(bypass ? [bypass] : []), new StopWhen(() => crossing.crossingYears !== null && arrivals.allArrived())];
+    const out = runLayout({ scenario: s, pieces, record: false, shouldCancel, observers });
+    cellSteps += out.problem.grid.nCells * out.solver.info.steps;
+    return {
+      crossingYears: crossing.crossingYears,
+      arrivals: [...out.arrivals.arrivalYears],
+      pinned: null,
+      criticalWidthM: null,
+      bypassLambda: bypass ? bypass.total() : null,
+    };
+  });
+  return { baselineArrivals, options, cellSteps };
+}
+
+function probeCell(grid: { facesKm: Float64Array; nCells: number }, g: BarrierGeometry, probeKm: number): number {
+  const f = grid.facesKm;
+  const x = g.side === 'right' ? Math.min(g.farKm + probeKm, f[grid.nCells] - 1e-9) : Math.max(g.farKm - probeKm, f[0] + 1e-9);
+  return cellIndexAt(grid as never, x);
+}
+
+/** Evaluates draw i of the plan. */
+export function evaluateDraw(scenario: Scenario, plan: EnsemblePlan, i: number, shouldCancel?: () => boolean): DrawOutcome {
+  const { point, values, clipped } = drawScenario(scenario, plan, i);
+  return { index: i, values, clipped, ...evaluatePoint(point, shouldCancel) };
+}
+
+/* ------------------------------------------------------------------ summaries */
+
+/** Probability with its Monte Carlo standard error √(p(1−p)/n). */
+export function probability(successes: number, n: number): ProbabilityEstimate {
+  const p = n > 0 ? successes / n : NaN;
+  return { p, standardError: n > 0 ? Math.sqrt((p * (1 - p)) / n) : NaN, n };
+}
+
+/** Mean of per-draw probabilities with the standard error of the mean (sample standard deviation / √n). */
+export function meanProbability(values: readonly number[]): ProbabilityEstimate {
+  const n = values.length;
+  if (n === 0) return { p: NaN, standardError: NaN, n: 0 };
+  const m = values.reduce((a, b) => a + b, 0) / n;
+  const v = n > 1 ? values.reduce((a, b) => a + (b - m) * (b - m), 0) / (n - 1) : 0;
+  return { p: m, standardError: Math.sqrt(v / n), n };
+}
+
+/** Quantile with linear interpolation between order statistics (numpy's default, "type 7"); +∞ propagates. */
+export function sortedQuantile(sorted: readonly number[], q: number): number {
+  const n = sorted.length;
+  if (n === 0) return NaN;
+  const h = (n - 1) * q;
+  const lo = Math.floor(h);
+  const hi = Math.min(n - 1, lo + 1);
+  if (sorted[hi] === Infinity) return h === lo && sorted[lo] !== Infinity ? sorted[lo] : Infinity;
+  return sorted[lo] + (h - lo) * (sorted[hi] - sorted[lo]);
+}
+
+const finiteOrNull = (x: number): number | null => (Number.isFinite(x) ? x : null);
+
+/**
+ * Quantile summary of an outcome where +∞ stands for "beyond the horizon". The median's standard error
+ * comes from the distribution-free 95 % order-statistic interval (ranks n/2 ± 0.98√n), divided by 2 × 1.96.
+ */
+export function summariseQuantiles(values: readonly number[]): QuantileSummary {
+  const sorted = [...values].sort((a, b) => a - b);
+  const finite = sorted.filter((x) => Number.isFinite(x));
+  const n = sorted.length;
+  let medianSe: number | null = null;
+  if (n >= 10) {
+    const lo = Math.max(0, Math.floor(n / 2 - 0.98 * Math.sqrt(n)));
+    const hi = Math.min(n - 1, Math.ceil(n / 2 + 0.98 * Math.sqrt(n)));
+    const w = sorted[hi] - sorted[lo];
+    medianSe = Number.isFinite(w) ? w / (2 * 1.96) : null;
+  }
+  return {
+    p05: finiteOrNull(sortedQuantile(sorted, 0.05)),
+    median: finiteOrNull(sortedQuantile(sorted, 0.5)),
+    p95: finiteOrNull(sortedQuantile(sorted, 0.95)),
+    mean: finite.length ? finite.reduce((a, b) => a + b, 0) / finite.length : null,
+    n: finite.length,
+    beyondHorizon: n - finite.length,
+    medianStandardError: medianSe,
+  };
+}
+
+const signed = (x: number): string => `${x >= 0 ? '+' : '−'}${Math.abs(x).toFixed(2)}`;
+
+/** Sensitivity ranking of one outcome over the draws, with its sentence. */
+export function sensitivityRanking(
+  plan: EnsemblePlan,
+  labels: readonly string[],
+  values: readonly (readonly number[])[],
+  outcome: readonly number[],
+  what: { outcome: string; outcomeKey: string; verb: string },
+): SensitivityResult | null {
+  const k = plan.parameters.length;
+  if (k === 0 || outcome.length < k + 3) return null;
+  const columns = plan.parameters.map((_, j) => values.map((v) => v[j]));
+  const r = partialRankCorrelation(columns, outcome);
+  if (!r) return null;
+  const entries = plan.parameters
+    .map((p, j) => ({ path: p.pathText, label: labels[j], prcc: r.prcc[j], significant: r.significant[j] }))
+    .sort((a, b) => Math.abs(b.prcc) - Math.abs(a.prcc));
+  const sig = entries.filter((e) => e.significant);
+  let sentence: string;
+  if (sig.length === 0) sentence = `No uncertain parameter stands out: none is significantly linked to the ${what.outcome} at the 5 % level.`;
+  else {
+    const first = `${what.verb} mostly on ${sig[0].label} (partial rank correlation ${signed(sig[0].prcc)})`;
+    const rest = sig.slice(1, 3).map((e) => `${e.label} (${signed(e.prcc)})`);
+    sentence = `The ${what.outcome} ${first}${rest.length ? `, then on ${rest.join(' and ')}` : ''}.`;
+  }
+  return { outcome: what.outcome, outcomeKey: what.outcomeKey, method: 'partial rank correlation (PRCC) over the Latin hypercube draws', entries, sentence };
+}
+
+const pct = (p: number): string => `${Math.round(100 * p)} %`;
+
+/** Summarises the draws (in index order) into the result document's uncertainty section. */
+export function summariseEnsemble(
+  scenario: Scenario,
+  plan: EnsemblePlan,
+  outcomes: readonly DrawOutcome[],
+  info: { status: 'completed' | 'cancelled'; threads: number; wallMs: number },
+): UncertaintyResult {
+  const s = pointScenario(scenario);
+  const n = outcomes.length;
+  const horizon = s.horizonYears;
+  const target = scenario.uncertainty?.targetStandardError ?? 0.02;
+  const labels = plan.parameters.map((p) => parameterLabel(scenario, p.path));
+  const values = outcomes.map((o) => o.values);
+  const inf = (x: number | null): number => (x === null ? Infinity : x);
+  const parameters: UncertainParameter[] = plan.parameters.map((p, j) => ({
+    path: p.pathText,
+    label: labels[j],
+    unit: p.spec.unit,
+    distribution: p.distribution,
+    centralValue: centralValue(p.distribution),
+    clippedDraws: outcomes.filter((o) => o.clipped[j]).length,
+  }));
+  const baselineSites = s.sites.map((site, k) => {
+    const arr = outcomes.map((o) => inf(o.baselineArrivals[k]));
+    return {
+      name: site.name,
+      atKm: site.atKm,
+      reachedWithinHorizon: probability(arr.filter(Number.isFinite).length, n),
+      arrivalYears: summariseQuantiles(arr),
+    };
+  });
+  const probs: ProbabilityEstimate[] = [];
+  const options: OptionUncertainty[] = (s.barrier?.options ?? []).map((o, m) => {
+    const per = outcomes.map((d) => d.options[m]);
+    const holds = probability(per.filter((x) => x.crossingYears === null).length, n);
+    const pinnedKnown = per.every((x) => x.pinned !== null);
+    const pinned = pinnedKnown && n > 0 ? probability(per.filter((x) => x.pinned).length, n) : null;
+    const withTransport = s.transport ? meanProbability(per.map((x) => (x.crossingYears === null ? Math.exp(-(x.bypassLambda ?? 0)) : 0))) : null;
+    probs.push(holds, ...(pinned ? [pinned] : []), ...(withTransport ? [withTransport] : []));
+    const sites: SiteUncertainty[] = s.sites.map((site, k) => {
+      const arrivals = per.map((x) => inf(x.arrivals[k]));
+      const delays: number[] = [];
+      outcomes.forEach((d, i) => {
+        const b = d.baselineArrivals[k];
+        if (b !== null) delays.push(arrivals[i] - b);
+      });
+      const reached = probability(arrivals.filter(Number.isFinite).length, n);
+      probs.push(reached);
+      return { name: site.name, atKm: site.atKm, reachedWithinHorizon: reached, arrivalYears: summariseQuantiles(arrivals), delayYears: summariseQuantiles(delays) };
+    });
+    const cw = per.map((x) => x.criticalWidthM);
+    const cwKnown = cw.every((x) => x !== null) && n > 0;
+    const cwSummary = cwKnown ? summariseQuantiles(cw as number[]) : null;
+    const sortedCw = cwKnown ? [...(cw as number[])].sort((a, b) => a - b) : [];
+    const criticalWidth = {
+      computed: cwKnown,
+      note: cwKnown
+        ? 'Per-draw critical width; a width W holds in a draw when W is at least that draw’s critical width, so the 90 % and 95 % quantiles are the widths that hold with those probabilities.'
+        : 'Per-draw critical width not computed (needs the barrier analysis for each draw, or switched off in uncertainty.criticalWidth).',
+      widthM: cwSummary,
+      holds90M: cwKnown ? finiteOrNull(sortedQuantile(sortedCw, 0.9)) : null,
+      holds95M: cwKnown ? finiteOrNull(sortedQuantile(sortedCw, 0.95)) : null,
+    };
+    const outcomeForRanking = cwKnown
+      ? { y: cw as number[], what: { outcome: 'critical width', outcomeKey: 'criticalWidthM', verb: 'depends' } }
+      : { y: per.map((x) => inf(x.crossingYears)), what: { outcome: 'year the front crosses the clearing', outcomeKey: 'crossingYears', verb: 'depends' } };
+    const sensitivity = sensitivityRanking(plan, labels, values, outcomeForRanking.y, outcomeForRanking.what);
+    const sentences: string[] = [];
+    sentences.push(
+      `Option "${o.name}" (${o.widthM} m): the front does not get past the clearing within ${horizon} years in ${pct(holds.p)} of ${n} draws` +
+        (n > 1 ? ` (± ${(100 * holds.standardError).toFixed(1)} percentage points, one standard error).` : '.'),
+    );
+    if (pinned) sentences.push(`It is verified to hold indefinitely (front pinned) in ${pct(pinned.p)} of draws.`);
+    if (criticalWidth.computed && criticalWidth.holds90M !== null) {
+      sentences.push(`A clearing of ${Math.round(criticalWidth.holds90M)} m holds in 90 % of draws${criticalWidth.holds95M !== null ? `, ${Math.round(criticalWidth.holds95M)} m in 95 %` : ''}.`);
+    }
+    if (withTransport) sentences.push(`Counting human-carried introductions as well, the barrier holds in ${pct(withTransport.p)} of draws.`);
+    if (sensitivity) sentences.push(sensitivity.sentence);
+    return {
+      name: o.name,
+      widthM: o.widthM,
+      holdsWithinHorizon: holds,
+      pinned,
+      crossingYears: summariseQuantiles(per.map((x) => inf(x.crossingYears))),
+      holdsIncludingTransport: withTransport,
+      sites,
+      criticalWidth,
+      sensitivity,
+      sentences,
+    };
+  });
+  for (const b of baselineSites) probs.push(b.reachedWithinHorizon);
+  const largest = probs.reduce((a, p) => (Number.isFinite(p.standardError) ? Math.max(a, p.standardError) : a), 0);
+  const adequate = plan.parameters.length === 0 || largest <= target;
+  const drawsSuggested = adequate ? n : Math.ceil(n * (largest / target) ** 2);
+  const message =
+    plan.parameters.length === 0
+      ? 'The scenario has no parameter ranges, so one draw (the central values) is exact; there is no sampling error.'
+      : info.status === 'cancelled'
+        ? `Cancelled after ${n} of ${plan.draws} draws: the probabilities rest on fewer draws than asked for. Run again to finish.`
+        : adequate
+          ? `${n} draws give a largest standard error of ${largest.toFixed(3)}, within the target ${target}.`
+          : `More draws needed: the largest standard error is ${largest.toFixed(3)}, above the target ${target}; about ${drawsSuggested} draws would reach it.`;
+  return {
+    method: 'latin-hypercube',
+    draws: plan.draws,
+    completed: n,
+    status: info.status,
+    seed: plan.seed,
+    parameters,
+    baseline: { sites: baselineSites },
+    options,
+    convergence: { targetStandardError: target, largestStandardError: largest, adequate: adequate && info.status === 'completed', drawsSuggested, message },
+    threads: info.threads,
+    wallMs: Math.round(info.wallMs),
+  };
+}
+
+/* ------------------------------------------------------------------ runners */
+
+export interface EnsembleRunOptions {
+  /** Polled between and during draws; true cancels (the result keeps the draws done, status 'cancelled'). */
+  shouldCancel?: () => boolean;
+  /** Fraction of draws done and a short label. */
+  onProgress?: (fraction: number, stage: string) => void;
+}
+
+/** Runs the ensemble in this thread (web job workers, tests). Same numbers as the pool for the same seed. */
+export function runEnsemble(scenario: Scenario, opts: EnsembleRunOptions = {}): UncertaintyResult {
+  const started = performance.now();
+  const plan = planEnsemble(scenario);
+  const outcomes: DrawOutcome[] = [];
+  let status: 'completed' | 'cancelled' = 'completed';
+  for (let i = 0; i < plan.draws; i++) {
+    if (opts.shouldCancel?.()) {
+      status = 'cancelled';
+      break;
+    }
+    let cancelledInside = false;
+    const d = evaluateDraw(scenario, plan, i, () => (cancelledInside = opts.shouldCancel?.() ?? false));
+    if (cancelledInside) {
+      status = 'cancelled';
+      break;
+    }
+    outcomes.push(d);
+    opts.onProgress?.((i + 1) / plan.draws, `ensemble draw ${i + 1}/${plan.draws}`);
+  }
+  return summariseEnsemble(scenario, plan, outcomes, { status, threads: 1, wallMs: performance.now() - started });
+}
