@@ -63,10 +63,48 @@ export class FrontTracker implements Observer {
   }
 }
 
-/** First time the density at each site reaches the level, linearly interpolated between steps [yr]; null if never. */
+/**
+ * Interpolation stencil for the density at a point: the two nearest cell centres of the same habitat piece
+ * (geometric weights, exact for the exponential leading edge of a front; linear where a value is 0).
+ * Within half a cell of a piece end the cell value is used, because density may jump at habitat edges.
+ */
+export interface PointProbe {
+  /** Cell containing the point. */
+  cell: number;
+  /** Neighbouring cell used for interpolation (equal to `cell` when none). */
+  other: number;
+  /** Weight of `other` in [0, 1]. */
+  weight: number;
+}
+
+/** Builds the interpolation stencil for position x [km]. */
+export function makeProbe(grid: Grid, xKm: number): PointProbe {
+  const cell = cellIndexAt(grid, xKm);
+  const c = grid.centersKm;
+  const other = xKm >= c[cell] ? cell + 1 : cell - 1;
+  if (other < 0 || other >= grid.nCells || grid.segmentAtCells[other] !== grid.segmentAtCells[cell]) {
+    return { cell, other: cell, weight: 0 };
+  }
+  return { cell, other, weight: Math.min(1, Math.abs(xKm - c[cell]) / Math.abs(c[other] - c[cell])) };
+}
+
+/** Density at a probe. */
+export function probeValue(p: PointProbe, u: Float64Array): number {
+  const a = u[p.cell];
+  if (p.weight === 0) return a;
+  const b = u[p.other];
+  if (a > 0 && b > 0) return a * Math.pow(b / a, p.weight);
+  return a + p.weight * (b - a);
+}
+
+/**
+ * First time the density at each site reaches the level [yr]; null if never. The density is read at the
+ * site's position (see {@link makeProbe}), not at the centre of its cell, so arrival times carry no error of
+ * up to half a cell divided by the front speed; between steps the time is interpolated linearly.
+ */
 export class ArrivalTracker implements Observer {
   readonly arrivalYears: (number | null)[];
-  private readonly cells: number[];
+  private readonly probes: PointProbe[];
   private lastT = 0;
   private readonly lastU: number[];
   constructor(
@@ -74,20 +112,21 @@ export class ArrivalTracker implements Observer {
     sitesKm: readonly number[],
     private readonly level: number,
   ) {
-    this.cells = sitesKm.map((x) => cellIndexAt(grid, x));
+    this.probes = sitesKm.map((x) => makeProbe(grid, x));
     this.arrivalYears = sitesKm.map(() => null);
     this.lastU = sitesKm.map(() => 0);
   }
   initialize(s: FieldState): void {
-    this.cells.forEach((c, k) => {
-      this.lastU[k] = s.u[c];
-      if (s.u[c] >= this.level) this.arrivalYears[k] = 0;
+    this.probes.forEach((p, k) => {
+      const now = probeValue(p, s.u);
+      this.lastU[k] = now;
+      if (now >= this.level) this.arrivalYears[k] = 0;
     });
     this.lastT = s.t;
   }
   handle(s: FieldState): void {
-    this.cells.forEach((c, k) => {
-      const now = s.u[c];
+    this.probes.forEach((p, k) => {
+      const now = probeValue(p, s.u);
       if (this.arrivalYears[k] === null && now >= this.level) {
         const before = this.lastU[k];
         const frac = now > before ? (this.level - before) / (now - before) : 1;
