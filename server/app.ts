@@ -1,36 +1,96 @@
 /**
- * buildApp(options): registers plugins and routes; never listens (tests use inject).
- * This first version serves a plain page listing the demo scenarios; the web issue builds it out.
+ * buildApp(options): registers plugins and routes; never listens (tests use inject, main.ts listens).
+ *
+ * Plugins: security headers and rate limit, form and multipart bodies, SSE, zod validation + OpenAPI,
+ * handlebars views, one error handler, static assets. State: the database (data folder), the demo
+ * catalogue (scenarios folder) and the worker pool for evaluations; all closed with the app.
  */
 import Fastify, { type FastifyInstance } from 'fastify';
-import { readdirSync, readFileSync } from 'node:fs';
+import formbody from '@fastify/formbody';
+import multipart from '@fastify/multipart';
+import fastifyStatic from '@fastify/static';
+import { fastifySSE } from '@fastify/sse';
+import { cpus } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import views from './web/plugins/views.ts';
+import security from './web/plugins/security.ts';
+import errors from './web/plugins/errors.ts';
+import openapi from './web/plugins/openapi.ts';
+import { openStore } from './web/store.ts';
+import { loadDemos, makeCatalogue } from './web/catalogue.ts';
+import { makeJobRunner } from './web/jobs.ts';
+import { DEFAULT_LIMITS, type WebLimits } from './web/limits.ts';
+import scenarioPages from './web/routes/scenario-pages.ts';
+import runPages from './web/routes/run-pages.ts';
+import resultPages from './web/routes/result-pages.ts';
+import referencePages from './web/routes/reference-pages.ts';
+import apiRoutes from './web/routes/api.ts';
+import type { WebDeps } from './web/deps.ts';
 
 export interface AppOptions {
-  /** Folder of demo scenario files. */
+  /** Folder of demo scenario files (read once at start). */
   scenariosDir?: string;
+  /** Folder for the database; created on first start. Default ./data. */
+  dataDir?: string;
   logger?: boolean;
+  /** Limits of this server (cells, horizon, options, wall time, queue). */
+  limits?: Partial<WebLimits>;
+  /** Worker threads for evaluations. Default: one less than the CPU count, at least 1. */
+  workerThreads?: number;
+  /** Compute requests (evaluations) per client per minute. */
+  computePerMinute?: number;
+  /** Largest request body [bytes]. */
+  bodyLimit?: number;
+  /** Cache compiled templates (default true; false reloads templates on every request). */
+  cacheTemplates?: boolean;
 }
 
 export const DEFAULT_SCENARIOS_DIR = fileURLToPath(new URL('../scenarios/', import.meta.url));
-
-const escapeHtml = (s: string) => s.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);
+export const ASSETS_DIR = fileURLToPath(new URL('./web/assets/', import.meta.url));
+/** Default request body limit [bytes]: a scenario of hundreds of segments is well below it. */
+export const DEFAULT_BODY_LIMIT = 1_048_576;
+export const DEFAULT_COMPUTE_PER_MINUTE = 30;
 
 export async function buildApp(options: AppOptions = {}): Promise<FastifyInstance> {
-  const app = Fastify({ logger: options.logger ?? false });
-  const dir = options.scenariosDir ?? DEFAULT_SCENARIOS_DIR;
-  app.get('/', async (_req, reply) => {
-    const items = readdirSync(dir)
-      .filter((f) => f.endsWith('.json'))
-      .map((f) => {
-        const s = JSON.parse(readFileSync(join(dir, f), 'utf8')) as { title: string; description?: string };
-        return `<li><strong>${escapeHtml(s.title)}</strong><br>${escapeHtml(s.description ?? '')}</li>`;
-      });
-    reply.type('text/html; charset=utf-8');
-    return `<!doctype html><html lang="en"><meta charset="utf-8"><title>Barrier evaluator</title>
-<h1>Barrier evaluator</h1><p>Demo scenarios (invented place and pest):</p><ul>${items.join('')}</ul>
-<p>Model output supports decisions; measures rest with the local regulator and licensed practice.</p></html>`;
+  const bodyLimit = options.bodyLimit ?? DEFAULT_BODY_LIMIT;
+  const app = Fastify({ logger: options.logger ?? false, bodyLimit, return503OnClosing: true });
+  const limits: WebLimits = { ...DEFAULT_LIMITS, ...options.limits };
+  const store = openStore(options.dataDir ?? join(process.cwd(), 'data'));
+  const demos = loadDemos(options.scenariosDir ?? DEFAULT_SCENARIOS_DIR, (msg) => app.log.warn(msg));
+  const jobs = makeJobRunner({
+    store,
+    threads: options.workerThreads ?? Math.max(1, cpus().length - 1),
+    wallSeconds: limits.wallSeconds,
+    maxQueued: limits.maxQueued,
+    onError: (err) => app.log.error({ err }, 'evaluation failed'),
   });
+  app.addHook('onClose', async () => {
+    await jobs.close();
+    store.close();
+  });
+
+  const computePerMinute = options.computePerMinute ?? DEFAULT_COMPUTE_PER_MINUTE;
+  await app.register(security, { computePerMinute });
+  await app.register(formbody, { bodyLimit });
+  await app.register(multipart, { limits: { fileSize: bodyLimit, files: 1, fields: 10, parts: 12 } });
+  await app.register(fastifySSE, { heartbeatInterval: 15_000 });
+  await app.register(openapi);
+  await app.register(views, { production: options.cacheTemplates ?? true });
+  await app.register(errors);
+  await app.register(fastifyStatic, { root: ASSETS_DIR, prefix: '/assets/', maxAge: '1h', index: false, list: false });
+
+  const deps: WebDeps = {
+    store,
+    catalogue: makeCatalogue(demos, store),
+    jobs,
+    limits,
+    computeRateLimit: { max: computePerMinute, timeWindow: '1 minute' },
+  };
+  await app.register(scenarioPages, deps);
+  await app.register(runPages, deps);
+  await app.register(resultPages, deps);
+  await app.register(referencePages, deps);
+  await app.register(apiRoutes, deps);
   return app;
 }

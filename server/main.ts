@@ -1,10 +1,20 @@
-/** Process entry: build the app, listen, close gracefully on SIGINT/SIGTERM. */
+/**
+ * Process entry: build the app, listen, close gracefully on SIGINT/SIGTERM.
+ * Environment: HOST (default 127.0.0.1), PORT (3000), DATA_DIR (./data), WORKERS (evaluation threads),
+ * WALL_SECONDS (longest evaluation).
+ */
 import { buildApp } from './app.ts';
 
 const host = process.env.HOST ?? '127.0.0.1';
 const port = Number(process.env.PORT ?? 3000);
+const positive = (v: string | undefined) => (v !== undefined && Number(v) > 0 ? Number(v) : undefined);
 
-const app = await buildApp({ logger: true });
+const app = await buildApp({
+  logger: true,
+  dataDir: process.env.DATA_DIR ?? 'data',
+  workerThreads: positive(process.env.WORKERS),
+  limits: { ...(positive(process.env.WALL_SECONDS) ? { wallSeconds: positive(process.env.WALL_SECONDS) } : {}) },
+});
 await app.listen({ host, port });
 for (const signal of ['SIGINT', 'SIGTERM'] as const) {
   process.once(signal, () => {

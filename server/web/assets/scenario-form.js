@@ -1,0 +1,127 @@
+// Small enhancements of the scenario form; the form works fully without them.
+// - shows only the growth inputs of the chosen growth form, and stocking/stems only for host forest rows;
+// - shows only the inputs of the chosen distribution kind;
+// - redraws the transect strip while the layout is typed.
+(function () {
+  'use strict';
+  var form = document.querySelector('form.scenario-form');
+  if (!form) return;
+
+  function words(s) { return (s || '').split(' ').filter(Boolean); }
+
+  // ---- growth form ----
+  var growthSelect = form.querySelector('[data-growth-select]');
+  function showGrowth() {
+    if (!growthSelect) return;
+    var form_ = growthSelect.value;
+    form.querySelectorAll('.field[data-growth]').forEach(function (el) {
+      var on = words(el.getAttribute('data-growth')).indexOf(form_) >= 0;
+      el.hidden = !on;
+      el.classList.toggle('inactive', !on);
+    });
+  }
+  if (growthSelect) growthSelect.addEventListener('change', showGrowth);
+  showGrowth();
+
+  // ---- habitat of each segment row ----
+  function showHabitat(row) {
+    var select = row.querySelector('select[name$=".habitat"]');
+    if (!select) return;
+    row.querySelectorAll('td[data-habitats]').forEach(function (td) {
+      var on = words(td.getAttribute('data-habitats')).indexOf(select.value) >= 0;
+      td.classList.toggle('inactive', !on);
+    });
+  }
+  form.querySelectorAll('table[data-rows="segments"] tbody tr[data-row]').forEach(showHabitat);
+
+  // ---- distribution kinds ----
+  function showDist(box) {
+    var kind = box.querySelector('[data-dist-kind]').value;
+    box.querySelectorAll('label.part').forEach(function (label) {
+      label.hidden = words(label.getAttribute('data-kinds')).indexOf(kind) < 0;
+    });
+  }
+  form.querySelectorAll('[data-dist]').forEach(showDist);
+
+  // ---- live strip ----
+  var strip = form.querySelector('[data-strip]');
+  function num(name) {
+    var el = form.elements.namedItem(name);
+    if (!el || !('value' in el)) return NaN;
+    var s = String(el.value).trim().replace(/\u2212/g, '-').replace(/^([+-]?\d*),(\d+)$/, '$1.$2');
+    return s === '' ? NaN : Number(s);
+  }
+  function text(name) {
+    var el = form.elements.namedItem(name);
+    return el && 'value' in el ? String(el.value) : '';
+  }
+  function rows(prefix) {
+    var seen = {};
+    var out = [];
+    var re = new RegExp('^' + prefix.replace(/\./g, '\\.') + '\\[(\\d+)\\]\\.');
+    Array.prototype.forEach.call(form.elements, function (el) {
+      var m = re.exec(el.name || '');
+      if (m && !seen[m[1]]) { seen[m[1]] = true; out.push(Number(m[1])); }
+    });
+    return out.sort(function (a, b) { return a - b; });
+  }
+  function pct(x) { return Math.min(100, Math.max(0, x)).toFixed(3) + '%'; }
+  function kmText(x) { return (Math.abs(x) >= 100 ? x.toFixed(1) : x.toFixed(2)).replace('-', '\u2212') + ' km'; }
+  function el(tag, cls, style, title) {
+    var e = document.createElement(tag);
+    if (cls) e.className = cls;
+    if (style) e.setAttribute('style', style);
+    if (title) e.title = title;
+    return e;
+  }
+  function redraw() {
+    if (!strip) return;
+    var origin = num('transect.originKm');
+    if (!isFinite(origin)) origin = 0;
+    var segs = rows('transect.segments').map(function (i) {
+      return { habitat: text('transect.segments[' + i + '].habitat'), name: text('transect.segments[' + i + '].name'), length: num('transect.segments[' + i + '].lengthKm') };
+    }).filter(function (s) { return isFinite(s.length) && s.length > 0; });
+    var total = segs.reduce(function (a, s) { return a + s.length; }, 0);
+    var bar = strip.querySelector('[data-strip-bar]');
+    var marks = strip.querySelector('[data-strip-marks]');
+    var pins = strip.querySelector('[data-strip-pins]');
+    bar.textContent = ''; marks.textContent = ''; pins.textContent = '';
+    var empty = strip.querySelector('[data-strip-empty]');
+    if (empty) empty.hidden = total > 0;
+    if (!(total > 0)) return;
+    var at = function (x) { return (100 * (x - origin)) / total; };
+    var inside = function (x) { return isFinite(x) && x >= origin && x <= origin + total; };
+    segs.forEach(function (s) {
+      bar.appendChild(el('span', 'seg hab-' + (s.habitat || 'unknown'), 'flex-grow: ' + s.length, (s.name ? s.name + ': ' : '') + s.habitat + ', ' + kmText(s.length)));
+    });
+    var f = num('infestation.fromKm'), t = num('infestation.toKm');
+    if (inside(f) && t > f) marks.appendChild(el('span', 'band band-infestation', 'left: ' + pct(at(f)) + '; width: ' + pct(at(Math.min(t, origin + total)) - at(f)), 'Infested'));
+    rows('barrier.options').forEach(function (i) {
+      var from = num('barrier.options[' + i + '].fromKm'), w = num('barrier.options[' + i + '].widthM');
+      if (!inside(from) || !(w > 0)) return;
+      var to = Math.min(from + w / 1000, origin + total);
+      marks.appendChild(el('span', 'band band-option', 'left: ' + pct(at(from)) + '; width: ' + pct(Math.max(at(to) - at(from), 0.4)), text('barrier.options[' + i + '].name')));
+    });
+    rows('sites').forEach(function (i) {
+      var x = num('sites[' + i + '].atKm');
+      if (!inside(x)) return;
+      var pin = el('span', 'pin', 'left: ' + pct(at(x)));
+      var label = el('span', 'pin-label');
+      label.textContent = text('sites[' + i + '].name') || '(site)';
+      pin.appendChild(label);
+      pins.appendChild(pin);
+    });
+    var start = strip.querySelector('[data-strip-start]');
+    var end = strip.querySelector('[data-strip-end]');
+    if (start) start.textContent = kmText(origin);
+    if (end) end.textContent = kmText(origin + total);
+  }
+
+  form.addEventListener('input', redraw);
+  form.addEventListener('change', function (e) {
+    var t = e.target;
+    if (t.matches && t.matches('[data-dist-kind]')) showDist(t.closest('[data-dist]'));
+    if (t.name && /\.habitat$/.test(t.name)) showHabitat(t.closest('tr'));
+    redraw();
+  });
+})();

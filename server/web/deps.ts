@@ -1,0 +1,14 @@
+import type { Store } from './store.ts';
+import type { Catalogue } from './catalogue.ts';
+import type { JobRunner } from './jobs.ts';
+import type { WebLimits } from './limits.ts';
+
+/** What route plugins need, passed as plugin options (no globals). */
+export interface WebDeps {
+  store: Store;
+  catalogue: Catalogue;
+  jobs: JobRunner;
+  limits: WebLimits;
+  /** Route config that switches the compute rate limit on. */
+  computeRateLimit: { max: number; timeWindow: string };
+}

@@ -1,0 +1,527 @@
+/**
+ * The scenario form as flat text: every input's name is the scenario field path it edits
+ * (`pest.growth.rate`, `transect.segments[2].lengthKm`), so validation problems from the scenario schema
+ * land beside the right input and the text the user typed is kept exactly when the page is shown again.
+ *
+ * A field that may be a distribution has extra inputs `<path>~kind` (value | uniform | triangular |
+ * lognormal) and `<path>~min`, `~mode`, `~max`, `~median`, `~spread`.
+ *
+ * This module turns scenario objects into form text and back; it never validates (parseScenario does).
+ */
+import { FIELDS } from '../model/fields.ts';
+import { DISTRIBUTION_KINDS, isDistribution } from '../model/quantity.ts';
+import type { Problem } from '../model/errors.ts';
+
+/** Input name → text as typed. */
+export type FormState = Record<string, string>;
+
+export type QuantityKind = 'value' | (typeof DISTRIBUTION_KINDS)[number];
+export const QUANTITY_KINDS: readonly QuantityKind[] = ['value', ...DISTRIBUTION_KINDS];
+/** Inputs of each distribution kind, in the order shown. */
+export const DIST_PARTS: Record<Exclude<QuantityKind, 'value'>, readonly string[]> = {
+  uniform: ['min', 'max'],
+  triangular: ['min', 'mode', 'max'],
+  lognormal: ['median', 'spread'],
+};
+export const ALL_DIST_PARTS = ['min', 'mode', 'max', 'median', 'spread'] as const;
+
+export type InputKind = 'text' | 'textarea' | 'number' | 'quantity' | 'select' | 'checkbox';
+
+/** One input of the form, by its path relative to its group (or to a row). */
+export interface FormFieldDef {
+  path: string;
+  kind: InputKind;
+  /** Key in FIELDS for label, unit, range and help (number and quantity inputs). */
+  field?: keyof typeof FIELDS;
+  label?: string;
+  help?: string;
+  choices?: readonly { value: string; label: string }[];
+  /** Only used for these growth forms (pest.growth.* fields). */
+  growthForms?: readonly string[];
+  /** Only used for these habitats (segment columns). */
+  habitats?: readonly string[];
+}
+
+/** A table of rows (segments, sites, options) edited with add/remove/reorder buttons. */
+export interface RowGroupDef {
+  key: 'segments' | 'sites' | 'options';
+  prefix: string;
+  columns: FormFieldDef[];
+  /** Text of each input in a new row. */
+  newRow: (index: number) => FormState;
+  /** Most rows allowed (mirrors the schema limit). */
+  maxRows: number;
+}
+
+export const HABITAT_CHOICES = [
+  { value: 'host-forest', label: 'Host forest' },
+  { value: 'clearing', label: 'Clearing (open, no host)' },
+  { value: 'non-host-forest', label: 'Non-host forest' },
+] as const;
+
+export const COVER_CHOICES = [
+  { value: 'clearing', label: 'Left open (clearing)' },
+  { value: 'non-host-forest', label: 'Replanted with non-host trees' },
+] as const;
+
+export const GROWTH_CHOICES = [
+  { value: 'logistic', label: 'Logistic (no Allee effect)' },
+  { value: 'allee-cubic', label: 'Strong Allee effect (cubic)' },
+  { value: 'mate-finding', label: 'Breeding on hosts with mate finding' },
+] as const;
+
+export const MATING_CHOICES = [
+  { value: 'none', label: 'No mate limitation' },
+  { value: 'saturating', label: 'Saturating (half success at the mate-finding scale)' },
+  { value: 'exponential', label: 'Exponential (63 % success at the mate-finding scale)' },
+] as const;
+
+export const END_CHOICES = [
+  { value: 'reflecting', label: 'Closed (no insect leaves)' },
+  { value: 'absorbing', label: 'Lethal surroundings (insects leaving are lost)' },
+] as const;
+
+/** The form's plain (non-row) inputs, in page order, by section. */
+export const FORM_SECTIONS: readonly { id: string; title: string; intro?: string; fields: FormFieldDef[] }[] = [
+  {
+    id: 'about',
+    title: 'About this scenario',
+    fields: [
+      { path: 'title', kind: 'text', label: 'Title', help: 'A short name for the scenario, shown on every result.' },
+      { path: 'description', kind: 'textarea', label: 'Description', help: 'What the scenario is for; printed with results.' },
+      { path: 'region', kind: 'text', label: 'Region', help: 'Where the transect lies (free text).' },
+    ],
+  },
+  {
+    id: 'pest',
+    title: 'Pest profile',
+    intro:
+      'How the insect moves, breeds, dies and kills host trees. Any number marked “may be uncertain” can also be given as a range ' +
+      '(a distribution); a single run uses its central value.',
+    fields: [
+      { path: 'pest.name', kind: 'text', label: 'Pest name', help: 'Name of the pest or of the profile used.' },
+      { path: 'pest.illustrative', kind: 'checkbox', label: 'Illustrative values', help: 'Tick when the numbers are made up for a demonstration; every output then says so.' },
+      { path: 'pest.notes', kind: 'textarea', label: 'Notes on the profile', help: 'Where the numbers come from.' },
+      { path: 'pest.diffusionHost', kind: 'quantity', field: 'diffusionHost' },
+      { path: 'pest.diffusionOpen', kind: 'quantity', field: 'diffusionOpen' },
+      { path: 'pest.edgePreferenceOpen', kind: 'quantity', field: 'edgePreferenceOpen' },
+      { path: 'pest.mortalityOpen', kind: 'quantity', field: 'mortalityOpen' },
+      { path: 'pest.hostKillRate', kind: 'quantity', field: 'hostKillRate' },
+      { path: 'pest.growth.form', kind: 'select', label: 'Growth form', choices: GROWTH_CHOICES, help: 'How the local population grows in host forest.' },
+      { path: 'pest.growth.rate', kind: 'quantity', field: 'growthRate', growthForms: ['logistic', 'allee-cubic'] },
+      { path: 'pest.growth.alleeThreshold', kind: 'quantity', field: 'alleeThreshold', growthForms: ['allee-cubic'] },
+      { path: 'pest.growth.birthRate', kind: 'quantity', field: 'birthRate', growthForms: ['mate-finding'] },
+      { path: 'pest.growth.deathRate', kind: 'quantity', field: 'deathRate', growthForms: ['mate-finding'] },
+      { path: 'pest.growth.crowding', kind: 'quantity', field: 'crowding', growthForms: ['mate-finding'] },
+      {
+        path: 'pest.growth.mating',
+        kind: 'select',
+        label: 'Mate finding',
+        choices: MATING_CHOICES,
+        growthForms: ['mate-finding'],
+        help: 'How the chance of finding a mate falls at low density.',
+      },
+      { path: 'pest.growth.mateScale', kind: 'quantity', field: 'mateScale', growthForms: ['mate-finding'] },
+    ],
+  },
+  {
+    id: 'nonhost',
+    title: 'Non-host forest (needed only when the layout or an option has non-host forest)',
+    fields: [
+      { path: 'pest.diffusionNonHost', kind: 'quantity', field: 'diffusionNonHost' },
+      { path: 'pest.edgePreferenceNonHost', kind: 'quantity', field: 'edgePreferenceNonHost' },
+      { path: 'pest.mortalityNonHost', kind: 'quantity', field: 'mortalityNonHost' },
+    ],
+  },
+  {
+    id: 'transect',
+    title: 'Transect',
+    intro: 'The transect runs along the direction of spread. Segments follow one another without gaps, from the origin.',
+    fields: [
+      { path: 'transect.originKm', kind: 'number', field: 'positionKm', label: 'Origin (start of the first segment)' },
+      { path: 'transect.ends.left', kind: 'select', label: 'Left end', choices: END_CHOICES, help: 'What happens to insects reaching the start of the transect.' },
+      { path: 'transect.ends.right', kind: 'select', label: 'Right end', choices: END_CHOICES, help: 'What happens to insects reaching the end of the transect.' },
+    ],
+  },
+  {
+    id: 'infestation',
+    title: 'Current infestation',
+    fields: [
+      { path: 'infestation.fromKm', kind: 'number', field: 'positionKm', label: 'Infested from' },
+      { path: 'infestation.toKm', kind: 'number', field: 'positionKm', label: 'Infested to' },
+      { path: 'infestation.density', kind: 'number', field: 'infestedDensity' },
+    ],
+  },
+  {
+    id: 'barrier',
+    title: 'Barrier options',
+    intro: 'Each option cuts a host-free strip into the baseline layout; the evaluation compares each option with the baseline.',
+    fields: [
+      { path: 'barrier.lengthKm', kind: 'number', field: 'barrierLengthKm' },
+      { path: 'barrier.costPerStem', kind: 'number', field: 'costPerStem' },
+      { path: 'barrier.costUnit', kind: 'text', label: 'Cost unit', help: 'Currency or unit printed next to costs, e.g. “credits” (optional).' },
+    ],
+  },
+  {
+    id: 'run',
+    title: 'Run settings',
+    fields: [
+      { path: 'horizonYears', kind: 'number', field: 'horizonYears' },
+      { path: 'detectionLevel', kind: 'number', field: 'detectionLevel' },
+      { path: 'numerics.cellM', kind: 'number', field: 'cellM' },
+      { path: 'numerics.stepYears', kind: 'number', field: 'stepYears' },
+    ],
+  },
+];
+
+export const ROW_GROUPS: Record<RowGroupDef['key'], RowGroupDef> = {
+  segments: {
+    key: 'segments',
+    prefix: 'transect.segments',
+    maxRows: 500,
+    columns: [
+      { path: 'habitat', kind: 'select', label: 'Habitat', choices: HABITAT_CHOICES, help: 'Host forest (the pest breeds here), open clearing, or forest of species the pest cannot use.' },
+      { path: 'name', kind: 'text', label: 'Name', help: 'Optional name of the stand or stretch.' },
+      { path: 'lengthKm', kind: 'number', field: 'lengthKm' },
+      { path: 'stocking', kind: 'quantity', field: 'stocking', habitats: ['host-forest'] },
+      { path: 'stemsPerHa', kind: 'quantity', field: 'stemsPerHa', habitats: ['host-forest'] },
+    ],
+    newRow: () => ({
+      habitat: 'host-forest',
+      name: '',
+      lengthKm: '',
+      stocking: String(FIELDS.stocking.defaultValue),
+      'stocking~kind': 'value',
+      stemsPerHa: String(FIELDS.stemsPerHa.defaultValue),
+      'stemsPerHa~kind': 'value',
+    }),
+  },
+  sites: {
+    key: 'sites',
+    prefix: 'sites',
+    maxRows: 50,
+    columns: [
+      { path: 'name', kind: 'text', label: 'Site', help: 'A place to protect (village, orchard, reserve).' },
+      { path: 'atKm', kind: 'number', field: 'positionKm', label: 'At' },
+    ],
+    newRow: () => ({ name: '', atKm: '' }),
+  },
+  options: {
+    key: 'options',
+    prefix: 'barrier.options',
+    maxRows: 8,
+    columns: [
+      { path: 'name', kind: 'text', label: 'Option', help: 'A short name for this option.' },
+      { path: 'fromKm', kind: 'number', field: 'positionKm', label: 'Starts at' },
+      { path: 'widthM', kind: 'number', field: 'widthM' },
+      { path: 'cover', kind: 'select', label: 'Ground after cutting', choices: COVER_CHOICES, help: 'Whether the strip is left open or replanted with trees the pest cannot use.' },
+    ],
+    newRow: (index) => ({ name: `Option ${index + 1}`, fromKm: '', widthM: '', cover: 'clearing' }),
+  },
+};
+
+/** Name of the hidden input carrying scenario settings this form does not show (kept unchanged). */
+export const EXTRA_INPUT = '_extra';
+
+// ---------------------------------------------------------------------------------------------
+// Scenario object → form text
+
+type Obj = Record<string, unknown>;
+
+function getPath(root: unknown, path: string): unknown {
+  let cur = root;
+  for (const key of path.split('.')) {
+    if (cur === null || typeof cur !== 'object') return undefined;
+    cur = (cur as Obj)[key];
+  }
+  return cur;
+}
+
+function toText(v: unknown): string {
+  if (v === undefined || v === null) return '';
+  if (typeof v === 'number') return Number.isFinite(v) ? String(v) : '';
+  return String(v);
+}
+
+function writeField(state: FormState, name: string, def: FormFieldDef, v: unknown): void {
+  switch (def.kind) {
+    case 'quantity':
+      if (isDistribution(v)) {
+        state[`${name}~kind`] = v.dist;
+        state[name] = '';
+        for (const part of ALL_DIST_PARTS) state[`${name}~${part}`] = toText((v as Obj)[part]);
+      } else {
+        state[`${name}~kind`] = 'value';
+        state[name] = toText(v);
+      }
+      return;
+    case 'checkbox':
+      state[name] = v === true ? 'on' : '';
+      return;
+    default:
+      state[name] = toText(v);
+  }
+}
+
+/** Every path (relative to the scenario) that the form edits, for separating the settings it does not show. */
+const KNOWN: Record<string, readonly string[]> = {
+  '': ['version', 'title', 'description', 'region', 'pest', 'transect', 'infestation', 'sites', 'barrier', 'horizonYears', 'detectionLevel', 'numerics'],
+  pest: [
+    'name', 'illustrative', 'notes', 'diffusionHost', 'diffusionOpen', 'diffusionNonHost', 'edgePreferenceOpen',
+    'edgePreferenceNonHost', 'growth', 'hostKillRate', 'mortalityOpen', 'mortalityNonHost',
+  ],
+  'pest.growth': ['form', 'rate', 'alleeThreshold', 'birthRate', 'deathRate', 'crowding', 'mating', 'mateScale'],
+  transect: ['originKm', 'segments', 'ends'],
+  'transect.ends': ['left', 'right'],
+  infestation: ['fromKm', 'toKm', 'density'],
+  barrier: ['lengthKm', 'costPerStem', 'costUnit', 'options'],
+  numerics: ['cellM', 'stepYears'],
+};
+
+/** The parts of a scenario the form does not show (unknown keys at any object level the form owns). */
+export function extraSettings(scenario: unknown): Obj {
+  const out: Obj = {};
+  const visit = (obj: unknown, at: string, into: Obj) => {
+    if (obj === null || typeof obj !== 'object' || Array.isArray(obj)) return;
+    for (const [k, v] of Object.entries(obj as Obj)) {
+      const child = at ? `${at}.${k}` : k;
+      if (!KNOWN[at]?.includes(k)) into[k] = v;
+      else if (KNOWN[child]) {
+        const sub: Obj = {};
+        visit(v, child, sub);
+        if (Object.keys(sub).length) into[k] = sub;
+      }
+    }
+  };
+  visit(scenario, '', out);
+  return out;
+}
+
+/** Form text for a scenario (a file, a saved scenario or the new-scenario template). */
+export function scenarioToForm(scenario: unknown): FormState {
+  const state: FormState = {};
+  for (const section of FORM_SECTIONS) {
+    for (const def of section.fields) writeField(state, def.path, def, getPath(scenario, def.path));
+  }
+  if (!state['pest.growth.mating']) state['pest.growth.mating'] = 'none';
+  for (const key of ['transect.ends.left', 'transect.ends.right']) if (!state[key]) state[key] = 'reflecting';
+  for (const group of Object.values(ROW_GROUPS)) {
+    const rows = getPath(scenario, group.prefix);
+    if (!Array.isArray(rows)) continue;
+    rows.forEach((row, i) => {
+      const defaults = group.newRow(i);
+      for (const col of group.columns) {
+        const name = `${group.prefix}[${i}].${col.path}`;
+        const v = (row as Obj)?.[col.path];
+        if (v === undefined && defaults[col.path] !== undefined) {
+          state[name] = defaults[col.path];
+          if (col.kind === 'quantity') state[`${name}~kind`] = 'value';
+        } else writeField(state, name, col, v);
+      }
+    });
+  }
+  const extra = extraSettings(scenario);
+  state[EXTRA_INPUT] = Object.keys(extra).length ? JSON.stringify(extra) : '';
+  return state;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Form text → scenario object (unvalidated)
+
+const NUMBER_TEXT = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
+
+/**
+ * Reads a number as typed: '' → undefined (field left out), a number → number, anything else is kept as
+ * text so the schema reports it with the value and the allowed range. Accepts a decimal comma
+ * ("0,5") and a typographic minus.
+ */
+export function readNumber(text: string | undefined): number | string | undefined {
+  if (text === undefined) return undefined;
+  let s = text.trim().replace(/\u2212/g, '-').replace(/[\u202f\u00a0 _]/g, '');
+  if (s === '') return undefined;
+  if (/^[+-]?\d*,\d+$/.test(s)) s = s.replace(',', '.');
+  return NUMBER_TEXT.test(s) ? Number(s) : text.trim();
+}
+
+function readText(text: string | undefined): string | undefined {
+  if (text === undefined) return undefined;
+  const s = text.replace(/\r\n/g, '\n').trim();
+  return s === '' ? undefined : s;
+}
+
+function readQuantity(state: FormState, name: string): unknown {
+  const kind = state[`${name}~kind`] ?? 'value';
+  if (kind === 'value' || !(kind in DIST_PARTS)) return readNumber(state[name]);
+  const parts = DIST_PARTS[kind as keyof typeof DIST_PARTS];
+  if (parts.every((p) => readNumber(state[`${name}~${p}`]) === undefined)) {
+    // A distribution chosen but not filled in: fall back to the single value, if there is one.
+    return readNumber(state[name]) ?? { dist: kind };
+  }
+  const out: Obj = { dist: kind };
+  for (const p of parts) out[p] = readNumber(state[`${name}~${p}`]);
+  return out;
+}
+
+function readField(state: FormState, name: string, def: FormFieldDef): unknown {
+  switch (def.kind) {
+    case 'number':
+      return readNumber(state[name]);
+    case 'quantity':
+      return readQuantity(state, name);
+    case 'checkbox':
+      return state[name] === 'on' || state[name] === 'true' || state[name] === '1';
+    case 'select':
+      return state[name] === '' ? undefined : state[name];
+    default:
+      return readText(state[name]);
+  }
+}
+
+function setPath(root: Obj, path: string, v: unknown): void {
+  if (v === undefined) return;
+  const keys = path.split('.');
+  let cur = root;
+  for (const k of keys.slice(0, -1)) {
+    if (typeof cur[k] !== 'object' || cur[k] === null) cur[k] = {};
+    cur = cur[k] as Obj;
+  }
+  cur[keys[keys.length - 1]] = v;
+}
+
+/** Indices of the rows of a group present in the form, in order. */
+export function rowIndices(state: FormState, prefix: string): number[] {
+  const re = new RegExp(`^${prefix.replace(/\./g, '\\.')}\\[(\\d{1,4})\\]\\.`);
+  const seen = new Set<number>();
+  for (const key of Object.keys(state)) {
+    const m = re.exec(key);
+    if (m) seen.add(Number(m[1]));
+  }
+  return [...seen].sort((a, b) => a - b);
+}
+
+/** Keys never copied from user input (they would reach object prototypes). */
+const UNSAFE_KEYS = new Set(['__proto__', 'prototype', 'constructor']);
+
+function deepMerge(base: unknown, over: unknown): unknown {
+  if (base === null || typeof base !== 'object' || Array.isArray(base)) return over === undefined ? base : over;
+  if (over === null || typeof over !== 'object' || Array.isArray(over)) return over === undefined ? base : over;
+  const out: Obj = {};
+  for (const [k, v] of Object.entries(base as Obj)) if (!UNSAFE_KEYS.has(k)) out[k] = v;
+  for (const [k, v] of Object.entries(over as Obj)) if (!UNSAFE_KEYS.has(k)) out[k] = deepMerge(out[k], v);
+  return out;
+}
+
+/**
+ * Builds the (unvalidated) scenario object from form text. Inputs that do not apply (growth fields of
+ * another growth form, stocking of a clearing) are left out. Returns form-level problems (such as a
+ * damaged hidden field) beside the object; field problems come from parseScenario.
+ */
+export function formToScenario(state: FormState): { input: Obj; problems: Problem[] } {
+  const problems: Problem[] = [];
+  let extra: Obj = {};
+  const extraText = state[EXTRA_INPUT]?.trim();
+  if (extraText) {
+    try {
+      const parsed: unknown = JSON.parse(extraText);
+      if (parsed && typeof parsed === 'object' && !Array.isArray(parsed)) extra = parsed as Obj;
+      else throw new Error('not an object');
+    } catch {
+      problems.push({ path: EXTRA_INPUT, value: extraText.slice(0, 40), message: 'the hidden settings of this form were damaged; reload the scenario' });
+    }
+  }
+  const input: Obj = {};
+  const form = state['pest.growth.form'];
+  for (const section of FORM_SECTIONS) {
+    for (const def of section.fields) {
+      if (def.growthForms && !def.growthForms.includes(form)) continue;
+      if (def.path === 'pest.growth.mateScale' && state['pest.growth.mating'] === 'none') continue;
+      setPath(input, def.path, readField(state, def.path, def));
+    }
+  }
+  for (const group of Object.values(ROW_GROUPS)) {
+    const rows = rowIndices(state, group.prefix).map((i) => {
+      const row: Obj = {};
+      const habitat = state[`${group.prefix}[${i}].habitat`];
+      for (const col of group.columns) {
+        if (col.habitats && !col.habitats.includes(habitat)) continue;
+        const v = readField(state, `${group.prefix}[${i}].${col.path}`, col);
+        if (v !== undefined) row[col.path] = v;
+      }
+      return row;
+    });
+    if (rows.length || group.key !== 'options') setPath(input, group.prefix, rows);
+  }
+  // No barrier at all when nothing about it was filled in.
+  const barrier = input.barrier as Obj | undefined;
+  if (barrier && Object.keys(barrier).every((k) => k === 'options' && (barrier.options as unknown[]).length === 0)) {
+    delete input.barrier;
+  }
+  if (barrier && Array.isArray(barrier.options) === false) barrier.options = [];
+  return { input: deepMerge(extra, input) as Obj, problems };
+}
+
+// ---------------------------------------------------------------------------------------------
+// Row buttons (work without JavaScript: each is a submit button with an action value)
+
+export type RowAction =
+  | { kind: 'add'; group: RowGroupDef['key'] }
+  | { kind: 'remove' | 'up' | 'down'; group: RowGroupDef['key']; index: number };
+
+/** Parses an action button value such as `add:segments` or `remove:sites:2`; undefined for other values. */
+export function parseRowAction(value: string | undefined): RowAction | undefined {
+  const m = /^(add|remove|up|down):(segments|sites|options)(?::(\d{1,4}))?$/.exec(value ?? '');
+  if (!m) return undefined;
+  const group = m[2] as RowGroupDef['key'];
+  if (m[1] === 'add') return { kind: 'add', group };
+  if (m[3] === undefined) return undefined;
+  return { kind: m[1] as 'remove' | 'up' | 'down', group, index: Number(m[3]) };
+}
+
+/** Applies a row button to the form text and returns the new text (rows renumbered from 0). */
+export function applyRowAction(state: FormState, action: RowAction): FormState {
+  const group = ROW_GROUPS[action.group];
+  const indices = rowIndices(state, group.prefix);
+  const rows: FormState[] = indices.map((i) => {
+    const row: FormState = {};
+    const head = `${group.prefix}[${i}].`;
+    for (const [k, v] of Object.entries(state)) if (k.startsWith(head)) row[k.slice(head.length)] = v;
+    return row;
+  });
+  const at = action.kind === 'add' ? -1 : indices.indexOf(action.index);
+  switch (action.kind) {
+    case 'add':
+      if (rows.length < group.maxRows) rows.push(group.newRow(rows.length));
+      break;
+    case 'remove':
+      if (at >= 0) rows.splice(at, 1);
+      break;
+    case 'up':
+      if (at > 0) [rows[at - 1], rows[at]] = [rows[at], rows[at - 1]];
+      break;
+    case 'down':
+      if (at >= 0 && at < rows.length - 1) [rows[at], rows[at + 1]] = [rows[at + 1], rows[at]];
+      break;
+  }
+  const out: FormState = {};
+  const re = new RegExp(`^${group.prefix.replace(/\./g, '\\.')}\\[\\d+\\]\\.`);
+  for (const [k, v] of Object.entries(state)) if (!re.test(k)) out[k] = v;
+  rows.forEach((row, i) => {
+    for (const [k, v] of Object.entries(row)) out[`${group.prefix}[${i}].${k}`] = v;
+  });
+  return out;
+}
+
+/**
+ * Normalises a parsed form body: one string per input (the last one when an input is repeated), and
+ * only names that look like form inputs (a dotted path, brackets, `~`, letters and digits).
+ */
+export function formStateFromBody(body: unknown): FormState {
+  const state: FormState = Object.create(null) as FormState;
+  if (!body || typeof body !== 'object') return state;
+  for (const [k, v] of Object.entries(body as Record<string, unknown>)) {
+    if (k.length > 120 || !/^[A-Za-z_][\w.[\]~]*$/.test(k) || [...UNSAFE_KEYS].some((u) => k.includes(u))) continue;
+    const value = Array.isArray(v) ? v[v.length - 1] : v;
+    if (typeof value === 'string') state[k] = value;
+  }
+  return state;
+}

@@ -1,0 +1,84 @@
+/**
+ * The one error handler and the not-found handler. Input errors (InputError and its kinds) answer 400
+ * with every problem's field path, value and allowed range; client errors keep their status and plain
+ * message; anything else is logged with a reference and answered with a generic message — never a
+ * stack trace. API routes (/api/...) answer JSON, pages answer HTML.
+ */
+import fp from 'fastify-plugin';
+import { randomUUID } from 'node:crypto';
+import type { FastifyReply, FastifyRequest } from 'fastify';
+import { InputError, type Problem } from '../../model/errors.ts';
+
+export interface ErrorBody {
+  error: string;
+  message: string;
+  problems: Problem[];
+  /** Reference of a server-side failure in the server log. */
+  reference?: string;
+}
+
+export const isApiRequest = (req: FastifyRequest) => req.url.startsWith('/api/') || req.url === '/api';
+
+const HTTP_TITLES: Record<number, string> = {
+  400: 'The input needs correcting',
+  404: 'Not found',
+  405: 'Not allowed',
+  406: 'Not acceptable',
+  413: 'Too large',
+  415: 'Unsupported content',
+  429: 'Too many requests',
+  500: 'Something went wrong on our side',
+  503: 'Busy',
+};
+
+async function send(req: FastifyRequest, reply: FastifyReply, status: number, body: ErrorBody) {
+  if (isApiRequest(req) || reply.sent) return reply.code(status).type('application/json; charset=utf-8').send(body);
+  try {
+    return await reply.page('error', { title: HTTP_TITLES[status] ?? 'Error', status, ...body }, status);
+  } catch (err) {
+    req.log.error({ err }, 'error page could not be rendered');
+    return reply.code(status).type('text/plain; charset=utf-8').send(`${HTTP_TITLES[status] ?? 'Error'}: ${body.message}`);
+  }
+}
+
+export default fp(
+  async (app) => {
+    app.setErrorHandler(async (err: unknown, req, reply) => {
+      if (err instanceof InputError) {
+        const n = err.problems.length;
+        return send(req, reply, 400, {
+          error: err.code,
+          message: `${n} problem${n === 1 ? '' : 's'} found: ${err.problems.map((p) => `${p.path || '(input)'}: ${p.message}`).join('; ')}`,
+          problems: err.problems,
+        });
+      }
+      const e = (err ?? {}) as { statusCode?: number; code?: string; message?: string };
+      const status = typeof e.statusCode === 'number' ? e.statusCode : 500;
+      if (status >= 400 && status < 500) {
+        return send(req, reply, status, { error: e.code ?? 'BAD_REQUEST', message: e.message ?? 'Bad request', problems: [] });
+      }
+      const reference = randomUUID().slice(0, 8);
+      req.log.error({ err, reference }, 'request failed');
+      return send(req, reply, 500, {
+        error: 'INTERNAL',
+        message: `The server could not complete this request. The details were logged under reference ${reference}.`,
+        problems: [],
+        reference,
+      });
+    });
+    app.setNotFoundHandler(async (req, reply) =>
+      send(req, reply, 404, { error: 'NOT_FOUND', message: `There is nothing at ${req.method} ${req.url.split('?')[0]}.`, problems: [] }),
+    );
+  },
+  { name: 'errors', dependencies: ['views'] },
+);
+
+/** A 404 for a missing scenario, result or job, thrown from route handlers. */
+export function notFound(what: string): Error {
+  return Object.assign(new Error(`${what} was not found. It may have been deleted.`), { statusCode: 404, code: 'NOT_FOUND' });
+}
+
+/** A 409 for an action that does not fit the current state (e.g. editing a demo scenario through the API). */
+export function conflict(message: string): Error {
+  return Object.assign(new Error(message), { statusCode: 409, code: 'CONFLICT' });
+}

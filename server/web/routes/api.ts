@@ -1,0 +1,265 @@
+/**
+ * JSON API for scripts. Request bodies are validated with the model's zod schemas (the same as the CLI
+ * and the form); the OpenAPI document at /api/openapi.json is generated from them. Bad input answers
+ * 400 with `problems: [{path, value, message}]`.
+ */
+import type { FastifyInstance } from 'fastify';
+import type { ZodTypeProvider } from 'fastify-type-provider-zod';
+import { z } from 'zod';
+import { ScenarioSchema, type Scenario } from '../../model/scenario.ts';
+import { FIELDS, describeRange } from '../../model/fields.ts';
+import { checkLimits } from '../limits.ts';
+import { savedId } from '../catalogue.ts';
+import { conflict, notFound } from '../plugins/errors.ts';
+import { jobEvents, jobPayload } from './run-pages.ts';
+import type { WebDeps } from '../deps.ts';
+
+const ProblemSchema = z.object({ path: z.string(), value: z.unknown(), message: z.string() });
+const ErrorSchema = z
+  .object({ error: z.string(), message: z.string(), problems: z.array(ProblemSchema), reference: z.string().optional() })
+  .describe('Error: a code, a message and one problem per field (path, value found, allowed range)');
+const RefParams = z.object({ ref: z.string().min(1).max(80).describe('Scenario reference: "demo-<name>" or a saved scenario number') });
+const IdParams = z.object({ id: z.string().min(1).max(80) });
+const ScenarioOut = z.record(z.string(), z.unknown()).describe('A scenario (same schema as the request body of POST /api/scenarios)');
+const ScenarioItem = z.object({
+  ref: z.string(),
+  kind: z.enum(['demo', 'saved']),
+  title: z.string(),
+  updatedAt: z.string().optional(),
+});
+const ScenarioEntry = z.object({ ref: z.string(), kind: z.enum(['demo', 'saved']), readOnly: z.boolean(), scenario: ScenarioOut });
+const JobSchema = z.object({
+  id: z.string(),
+  status: z.enum(['queued', 'running', 'cancelling', 'done', 'cancelled', 'failed']),
+  statusText: z.string(),
+  fraction: z.number(),
+  percentText: z.string(),
+  stage: z.string(),
+  message: z.string(),
+  problems: z.array(ProblemSchema),
+  finished: z.boolean(),
+  resultUrl: z.string().nullable().describe('Page of the result once done; the JSON is at /api/results/{resultId}'),
+  resultId: z.string().nullable(),
+});
+const ResultSummary = z.object({
+  id: z.string(),
+  scenarioRef: z.string().nullable(),
+  title: z.string(),
+  toolName: z.string(),
+  toolVersion: z.string(),
+  createdAt: z.string(),
+});
+const ResultOut = ResultSummary.extend({
+  scenario: ScenarioOut.describe('The exact scenario the result was computed from'),
+  document: z.record(z.string(), z.unknown()).describe('The result document (fields documented in the README, "Result document")'),
+});
+const EvaluationRequest = z
+  .strictObject({
+    scenarioRef: z.string().min(1).max(80).optional().describe('Evaluate a stored or demo scenario'),
+    scenario: ScenarioSchema.optional().describe('Or evaluate this scenario (not stored as a scenario; the result keeps it)'),
+  })
+  .superRefine((b, ctx) => {
+    if ((b.scenarioRef === undefined) === (b.scenario === undefined)) {
+      ctx.addIssue({ code: 'custom', path: [], input: b, message: 'give exactly one of "scenarioRef" or "scenario"' });
+    }
+  });
+
+const errors = { 400: ErrorSchema, 404: ErrorSchema };
+
+export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
+  const { store, catalogue, jobs, limits } = deps;
+  const api = app.withTypeProvider<ZodTypeProvider>();
+
+  const entryOr404 = (ref: string) => {
+    const e = catalogue.get(ref);
+    if (!e) throw notFound(`Scenario "${ref}"`);
+    return e;
+  };
+  const withResultId = (id: string) => {
+    const job = jobs.get(id);
+    if (!job) throw notFound('This evaluation');
+    return { ...jobPayload(job), resultId: job.resultId };
+  };
+
+  // ---- scenarios ------------------------------------------------------------------------------
+  api.get('/api/scenarios', { schema: { tags: ['scenarios'], summary: 'List demo and saved scenarios', response: { 200: z.object({ scenarios: z.array(ScenarioItem) }) } } }, async () => ({
+    scenarios: catalogue.list(),
+  }));
+
+  api.post(
+    '/api/scenarios',
+    { schema: { tags: ['scenarios'], summary: 'Save a new scenario', body: ScenarioSchema, response: { 201: ScenarioEntry, ...errors } } },
+    async (req, reply) => {
+      const saved = store.createScenario(req.body as Scenario);
+      reply.code(201).header('location', `/api/scenarios/${saved.id}`);
+      return { ref: String(saved.id), kind: 'saved' as const, readOnly: false, scenario: saved.scenario };
+    },
+  );
+
+  api.get(
+    '/api/scenarios/:ref',
+    { schema: { tags: ['scenarios'], summary: 'Fetch one scenario', params: RefParams, response: { 200: ScenarioEntry, ...errors } } },
+    async (req) => {
+      const e = entryOr404(req.params.ref);
+      return { ref: e.ref, kind: e.kind, readOnly: e.readOnly, scenario: e.scenario };
+    },
+  );
+
+  api.put(
+    '/api/scenarios/:ref',
+    {
+      schema: {
+        tags: ['scenarios'],
+        summary: 'Replace a saved scenario (demo scenarios are read-only)',
+        params: RefParams,
+        body: ScenarioSchema,
+        response: { 200: ScenarioEntry, 409: ErrorSchema, ...errors },
+      },
+    },
+    async (req) => {
+      const e = entryOr404(req.params.ref);
+      const id = savedId(e.ref);
+      if (e.readOnly || id === undefined) throw conflict('Demo scenarios are read-only; POST /api/scenarios saves a copy.');
+      const saved = store.updateScenario(id, req.body as Scenario)!;
+      return { ref: e.ref, kind: 'saved' as const, readOnly: false, scenario: saved.scenario };
+    },
+  );
+
+  api.delete(
+    '/api/scenarios/:ref',
+    { schema: { tags: ['scenarios'], summary: 'Delete a saved scenario', params: RefParams, response: { 204: z.undefined(), 409: ErrorSchema, ...errors } } },
+    async (req, reply) => {
+      const e = entryOr404(req.params.ref);
+      const id = savedId(e.ref);
+      if (e.readOnly || id === undefined) throw conflict('Demo scenarios cannot be deleted.');
+      store.deleteScenario(id);
+      return reply.code(204).send();
+    },
+  );
+
+  // ---- evaluations ----------------------------------------------------------------------------
+  api.post(
+    '/api/evaluations',
+    {
+      config: { rateLimit: deps.computeRateLimit },
+      schema: {
+        tags: ['evaluations'],
+        summary: 'Start an evaluation in the background',
+        description:
+          'Answers 202 with the job; poll GET /api/evaluations/{id} (or listen to /api/evaluations/{id}/events) until `finished`, ' +
+          'then fetch /api/results/{resultId}. Limits on cells, horizon, options and wall time answer 400 with the field concerned.',
+        body: EvaluationRequest,
+        response: { 202: JobSchema, 429: ErrorSchema, ...errors },
+      },
+    },
+    async (req, reply) => {
+      const body = req.body as { scenarioRef?: string; scenario?: Scenario };
+      const entry = body.scenarioRef !== undefined ? entryOr404(body.scenarioRef) : undefined;
+      const scenario = entry ? entry.scenario : body.scenario!;
+      checkLimits(scenario, limits);
+      const job = jobs.submit({ scenario, scenarioRef: entry?.ref ?? null });
+      reply.code(202).header('location', `/api/evaluations/${job.id}`);
+      return withResultId(job.id);
+    },
+  );
+
+  api.get(
+    '/api/evaluations/:id',
+    { schema: { tags: ['evaluations'], summary: 'State and progress of an evaluation', params: IdParams, response: { 200: JobSchema, ...errors } } },
+    async (req) => withResultId(req.params.id),
+  );
+
+  api.post(
+    '/api/evaluations/:id/cancel',
+    { schema: { tags: ['evaluations'], summary: 'Cancel an evaluation', params: IdParams, response: { 202: JobSchema, ...errors } } },
+    async (req, reply) => {
+      if (!jobs.cancel(req.params.id)) throw notFound('This evaluation');
+      reply.code(202);
+      return withResultId(req.params.id);
+    },
+  );
+
+  api.get(
+    '/api/evaluations/:id/events',
+    {
+      sse: 'only',
+      schema: {
+        tags: ['evaluations'],
+        summary: 'Progress as server-sent events',
+        description: 'Events `progress` while running and one `end` when finished; data is the evaluation state as JSON.',
+        params: IdParams,
+      },
+    },
+    async (req, reply) => {
+      if (!jobs.get(req.params.id)) throw notFound('This evaluation');
+      await reply.sse.send(jobEvents(jobs, req.params.id));
+    },
+  );
+
+  // ---- results --------------------------------------------------------------------------------
+  api.get(
+    '/api/results',
+    {
+      schema: {
+        tags: ['results'],
+        summary: 'List stored results (newest first)',
+        querystring: z.object({ scenarioRef: z.string().max(80).optional(), limit: z.coerce.number().int().min(1).max(500).default(100) }),
+        response: { 200: z.object({ results: z.array(ResultSummary) }), 400: ErrorSchema },
+      },
+    },
+    async (req) => ({ results: store.listResults({ scenarioRef: req.query.scenarioRef, limit: req.query.limit }) }),
+  );
+
+  api.get(
+    '/api/results/:id',
+    { schema: { tags: ['results'], summary: 'A stored result with its exact scenario and tool version', params: IdParams, response: { 200: ResultOut, ...errors } } },
+    async (req) => {
+      const r = store.getResult(req.params.id);
+      if (!r) throw notFound('This result');
+      return r as unknown as z.infer<typeof ResultOut>;
+    },
+  );
+
+  api.delete(
+    '/api/results/:id',
+    { schema: { tags: ['results'], summary: 'Delete a stored result', params: IdParams, response: { 204: z.undefined(), ...errors } } },
+    async (req, reply) => {
+      if (!store.deleteResult(req.params.id)) throw notFound('This result');
+      return reply.code(204).send();
+    },
+  );
+
+  // ---- reference ------------------------------------------------------------------------------
+  api.get(
+    '/api/fields',
+    {
+      schema: {
+        tags: ['reference'],
+        summary: 'Every physical input: label, unit, allowed and typical range, help, default and its source',
+        response: { 200: z.object({ fields: z.array(z.record(z.string(), z.unknown())) }) },
+      },
+    },
+    async () => ({
+      fields: Object.entries(FIELDS).map(([key, spec]) => ({
+        key,
+        ...spec,
+        max: Number.isFinite(spec.max) ? spec.max : null,
+        allowed: describeRange(spec),
+      })),
+    }),
+  );
+
+  api.get(
+    '/api/limits',
+    {
+      schema: {
+        tags: ['reference'],
+        summary: 'Limits of this server (cells, horizon, options, wall time, queue)',
+        response: { 200: z.object({ maxCells: z.number(), maxHorizonYears: z.number(), maxOptions: z.number(), wallSeconds: z.number(), maxQueued: z.number() }) },
+      },
+    },
+    async () => limits,
+  );
+
+  app.get('/api/openapi.json', { schema: { hide: true } }, async () => app.swagger());
+}

@@ -1,0 +1,124 @@
+/**
+ * View-model of a scenario's overview page and of the scenario lists (formatting only).
+ */
+import { FIELDS, type FieldSpec } from '../../model/fields.ts';
+import { isDistribution, type Quantity } from '../../model/quantity.ts';
+import type { Scenario } from '../../model/scenario.ts';
+import { integer, km, num } from '../../report/format.ts';
+import type { CatalogueEntry, CatalogueSummary } from '../catalogue.ts';
+import { COVER_CHOICES, GROWTH_CHOICES, HABITAT_CHOICES, MATING_CHOICES } from '../form-state.ts';
+import { stripFromScenario } from './strip.ts';
+
+const label = (choices: readonly { value: string; label: string }[], v: string) => choices.find((c) => c.value === v)?.label ?? v;
+
+/** A number or distribution with its unit, e.g. "0.4 km²/yr" or "triangular 0.2–0.9, most likely 0.5 km²/yr". */
+export function quantityText(q: Quantity | undefined, spec: FieldSpec): string {
+  if (q === undefined) return '—';
+  const u = spec.unit ? ` ${spec.unit}` : '';
+  if (!isDistribution(q)) return `${num(q, 4)}${u}`;
+  switch (q.dist) {
+    case 'uniform':
+      return `uniform ${num(q.min, 4)}–${num(q.max, 4)}${u}`;
+    case 'triangular':
+      return `triangular ${num(q.min, 4)}–${num(q.max, 4)}, most likely ${num(q.mode, 4)}${u}`;
+    case 'lognormal':
+      return `lognormal, median ${num(q.median, 4)}${u}, spread ×${num(q.spread, 3)}`;
+  }
+}
+
+export function scenarioView(entry: CatalogueEntry) {
+  const s: Scenario = entry.scenario;
+  const p = s.pest;
+  const g = p.growth;
+  const pest: { label: string; value: string; source: string }[] = [];
+  const add = (spec: FieldSpec, q: Quantity | undefined) => {
+    if (q !== undefined) pest.push({ label: spec.label, value: quantityText(q, spec), source: spec.source });
+  };
+  add(FIELDS.diffusionHost, p.diffusionHost);
+  add(FIELDS.diffusionOpen, p.diffusionOpen);
+  add(FIELDS.edgePreferenceOpen, p.edgePreferenceOpen);
+  add(FIELDS.mortalityOpen, p.mortalityOpen);
+  add(FIELDS.diffusionNonHost, p.diffusionNonHost);
+  add(FIELDS.edgePreferenceNonHost, p.edgePreferenceNonHost);
+  add(FIELDS.mortalityNonHost, p.mortalityNonHost);
+  add(FIELDS.hostKillRate, p.hostKillRate);
+  pest.push({ label: 'Growth form', value: label(GROWTH_CHOICES, g.form), source: '' });
+  if (g.form === 'logistic' || g.form === 'allee-cubic') add(FIELDS.growthRate, g.rate);
+  if (g.form === 'allee-cubic') add(FIELDS.alleeThreshold, g.alleeThreshold);
+  if (g.form === 'mate-finding') {
+    add(FIELDS.birthRate, g.birthRate);
+    add(FIELDS.deathRate, g.deathRate);
+    add(FIELDS.crowding, g.crowding);
+    pest.push({ label: 'Mate finding', value: label(MATING_CHOICES, g.mating), source: '' });
+    add(FIELDS.mateScale, g.mateScale);
+  }
+  let at = s.transect.originKm;
+  const segments = s.transect.segments.map((seg) => {
+    const from = at;
+    at += seg.lengthKm;
+    return {
+      habitat: label(HABITAT_CHOICES, seg.habitat),
+      name: seg.name ?? '',
+      span: `km ${km(from)}–${km(at)}`,
+      length: `${km(seg.lengthKm)} km`,
+      stocking: seg.habitat === 'host-forest' ? quantityText(seg.stocking, FIELDS.stocking) : '—',
+      stems: seg.habitat === 'host-forest' ? quantityText(seg.stemsPerHa, FIELDS.stemsPerHa) : '—',
+    };
+  });
+  const ref = encodeURIComponent(entry.ref);
+  return {
+    ref: entry.ref,
+    kind: entry.kind,
+    readOnly: entry.readOnly,
+    title: s.title,
+    description: s.description,
+    region: s.region ?? '',
+    pestName: p.name,
+    illustrative: p.illustrative,
+    notes: p.notes ?? '',
+    pest,
+    segments,
+    strip: stripFromScenario(s),
+    infestation: `km ${km(s.infestation.fromKm)}–${km(s.infestation.toKm)} at ${num(s.infestation.density)} of capacity`,
+    sites: s.sites.map((x) => ({ name: x.name, at: `km ${km(x.atKm)}` })),
+    barrier: s.barrier
+      ? {
+          length: `${km(s.barrier.lengthKm)} km`,
+          cost: s.barrier.costPerStem !== undefined ? `${num(s.barrier.costPerStem)} ${s.barrier.costUnit ?? ''} per tree`.trim() : 'not given',
+          options: s.barrier.options.map((o) => ({
+            name: o.name,
+            from: `km ${km(o.fromKm)}`,
+            width: `${integer(o.widthM)} m`,
+            cover: label(COVER_CHOICES, o.cover),
+          })),
+        }
+      : null,
+    horizon: `${num(s.horizonYears)} yr`,
+    detection: `${num(s.detectionLevel)} of capacity`,
+    uncertain: JSON.stringify(s).includes('"dist"'),
+    links: {
+      page: `/scenarios/${ref}`,
+      edit: `/scenarios/${ref}/edit`,
+      json: `/scenarios/${ref}/json`,
+      download: `/scenarios/${ref}/scenario.json`,
+      run: `/scenarios/${ref}/run`,
+      duplicate: `/scenarios/${ref}/duplicate`,
+      remove: `/scenarios/${ref}/delete`,
+    },
+  };
+}
+
+export function scenarioListItem(s: CatalogueSummary) {
+  const ref = encodeURIComponent(s.ref);
+  return {
+    ref: s.ref,
+    title: s.title,
+    demo: s.kind === 'demo',
+    updated: s.updatedAt ? s.updatedAt.replace('T', ' ').replace(/\.\d+Z$/, ' UTC') : '',
+    link: `/scenarios/${ref}`,
+    run: `/scenarios/${ref}/run`,
+    edit: `/scenarios/${ref}/edit`,
+    duplicate: `/scenarios/${ref}/duplicate`,
+    remove: `/scenarios/${ref}/delete`,
+  };
+}

@@ -1,0 +1,182 @@
+/**
+ * Running evaluations from the pages (worker thread, progress page, server-sent events, cancel, limits)
+ * and the result pages and downloads. Uses the small fixture scenario so each run takes well under a
+ * second of computing.
+ */
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { readFileSync } from 'node:fs';
+import { buildTestApp, formBody, FORM_HEADERS, QUICK_REF, waitForJob, type TestApp } from '../helpers/build-app.ts';
+import { scenarioToForm } from '../../server/web/form-state.ts';
+import { parseScenarioText } from '../../server/model/scenario.ts';
+import { evaluateScenario } from '../../server/analysis/evaluate.ts';
+import type { ResultDocument } from '../../server/analysis/result.ts';
+import { TOOL } from '../../server/version.ts';
+
+const quickText = readFileSync(new URL('./fixtures/scenarios/quick-check.json', import.meta.url), 'utf8');
+const quick = () => parseScenarioText(quickText);
+
+let t: TestApp;
+let resultUrl = '';
+beforeAll(async () => {
+  t = await buildTestApp({ limits: { maxHorizonYears: 50, maxOptions: 2, maxCells: 5000 } });
+});
+afterAll(async () => {
+  await t.close();
+});
+
+/** Follows a run page until it hands over to the result page; returns the result URL. */
+async function followRun(runUrl: string): Promise<string> {
+  const id = runUrl.split('/')[2];
+  const job = await waitForJob(t.app, id);
+  expect(job.status).toBe('done');
+  const r = await t.app.inject(runUrl);
+  expect(r.statusCode).toBe(303);
+  return r.headers.location as string;
+}
+
+describe('running from the pages', () => {
+  it('Run answers 303 to a progress page, which hands over to the result page when done', async () => {
+    const r = await t.app.inject({ method: 'POST', url: `/scenarios/${QUICK_REF}/run` });
+    expect(r.statusCode).toBe(303);
+    const runUrl = r.headers.location as string;
+    expect(runUrl).toMatch(/^\/runs\/[0-9a-f-]{36}$/);
+    const page = await t.app.inject(runUrl);
+    // Either still running (progress page) or already done (redirect).
+    if (page.statusCode === 200) {
+      expect(page.body).toContain('data-events="/runs/');
+      expect(page.body).toContain('<noscript><meta http-equiv="refresh" content="2"></noscript>');
+      expect(page.body).toContain('<script src="/assets/run-progress.js" defer>');
+    } else expect(page.statusCode).toBe(303);
+    resultUrl = await followRun(runUrl);
+    expect(resultUrl).toMatch(/^\/results\/[0-9a-f-]{36}$/);
+  });
+
+  it('the event stream ends with the final state and the result link', async () => {
+    const r = await t.app.inject({ method: 'POST', url: `/scenarios/${QUICK_REF}/run` });
+    const runUrl = r.headers.location as string;
+    const events = await t.app.inject({ method: 'GET', url: `${runUrl}/events`, headers: { accept: 'text/event-stream' } });
+    expect(events.statusCode).toBe(200);
+    expect(events.headers['content-type']).toMatch(/text\/event-stream/);
+    const blocks = events.body.trim().split(/\n\n+/);
+    const last = blocks[blocks.length - 1];
+    expect(last).toMatch(/^id: \d+\nevent: end\ndata: /);
+    const data = JSON.parse(last.split('data: ')[1]);
+    expect(data).toMatchObject({ status: 'done', finished: true, fraction: 1 });
+    expect(data.resultUrl).toMatch(/^\/results\//);
+    // Progress events (if the run was slow enough to send any) come first, with fractions in [0, 1].
+    for (const b of blocks.slice(0, -1)) {
+      expect(b).toContain('event: progress');
+      const f = JSON.parse(b.split('data: ')[1]).fraction;
+      expect(f >= 0 && f <= 1).toBe(true);
+    }
+  });
+
+  it('Save and run from the form saves the edited scenario and runs it', async () => {
+    const fields = { ...scenarioToForm(quick()), 'barrier.options[0].widthM': '450', _action: 'save' };
+    const r = await t.app.inject({ method: 'POST', url: `/scenarios/${QUICK_REF}/edit/run`, headers: FORM_HEADERS, payload: formBody(fields) });
+    expect(r.statusCode).toBe(303);
+    const url = await followRun(r.headers.location as string);
+    const doc = (await t.app.inject(`${url}/result.json`)).json() as ResultDocument;
+    expect(doc.options[0].widthM).toBe(450);
+  });
+
+  it('a scenario over the server limits is refused with the field and the limit', async () => {
+    const fields = { ...scenarioToForm(quick()), horizonYears: '80', _action: 'save' };
+    const r = await t.app.inject({ method: 'POST', url: `/scenarios/${QUICK_REF}/edit/run`, headers: FORM_HEADERS, payload: formBody(fields) });
+    expect(r.statusCode).toBe(400);
+    expect(r.body).toContain('at most 50 yr');
+    expect(r.body).toContain('value="80"');
+    const cells = { ...scenarioToForm(quick()), 'numerics.cellM': '1', _action: 'save' };
+    const c = await t.app.inject({ method: 'POST', url: `/scenarios/${QUICK_REF}/edit/run`, headers: FORM_HEADERS, payload: formBody(cells) });
+    expect(c.statusCode).toBe(400);
+    expect(c.body).toMatch(/gives \d+ cells; this server allows at most 5000/);
+  });
+
+  it('unknown runs are 404 pages', async () => {
+    expect((await t.app.inject('/runs/00000000-0000-0000-0000-000000000000')).statusCode).toBe(404);
+    expect((await t.app.inject({ method: 'POST', url: '/runs/nope/cancel' })).statusCode).toBe(404);
+  });
+});
+
+describe('the result page', () => {
+  it('shows a verdict banner per option, arrivals, trees, critical width and the cautions', async () => {
+    const r = await t.app.inject(resultUrl);
+    expect(r.statusCode).toBe(200);
+    const html = r.body;
+    expect(html).toMatch(/<article class="verdict tone-\w+">/);
+    expect(html).toContain('Cut at km 2');
+    expect(html).toContain('When the pest reaches each protected site');
+    expect(html).toContain('Wendle hut (km 4.00)');
+    expect(html).toContain('Trees removed and cost');
+    expect(html).toContain('Critical width');
+    expect(html).toContain('Limits and cautions');
+    expect(html).toContain('local regulator');
+    expect(html).toContain(`with ${TOOL.name} ${TOOL.version}`);
+    // Chart slots are present (drawn by the shared chart module, or a plain "not available" note).
+    expect(html).toContain('data-chart="front"');
+    expect(html).toContain('data-chart="space-time"');
+  });
+
+  it('shows the same arrival year as an independent evaluation of the same scenario', async () => {
+    const stored = (await t.app.inject(`${resultUrl}/result.json`)).json() as ResultDocument;
+    const direct = evaluateScenario(quick());
+    expect(stored.baseline.arrivals).toEqual(direct.baseline.arrivals);
+    const year = stored.baseline.arrivals[0].arrivalYears!;
+    expect((await t.app.inject(resultUrl)).body).toContain(`year ${year.toFixed(1)}`);
+  });
+
+  it('compare page: options side by side in one table and one chart', async () => {
+    const r = await t.app.inject(`${resultUrl}/compare`);
+    expect(r.statusCode).toBe(200);
+    expect(r.body).toContain('Options side by side');
+    expect(r.body).toContain('<th scope="col">Baseline</th><th scope="col">Cut at km 2</th>');
+    expect(r.body).toContain('Arrival at Wendle hut');
+    expect(r.body.match(/<figure class="chart"/g)).toHaveLength(1);
+    expect(r.body).toContain('Limits and cautions');
+  });
+
+  it('downloads: result JSON, series CSV and the exact scenario', async () => {
+    const json = await t.app.inject(`${resultUrl}/result.json`);
+    expect(json.headers['content-disposition']).toMatch(/^attachment; filename="result-[0-9a-f]{8}\.json"$/);
+    const doc = json.json() as ResultDocument;
+    expect(doc.tool).toEqual(TOOL);
+    expect(doc.cautions.length).toBeGreaterThan(3);
+    const csv = await t.app.inject(`${resultUrl}/series.csv`);
+    expect(csv.headers['content-type']).toMatch(/text\/csv/);
+    const lines = csv.body.trim().split('\r\n');
+    expect(lines[0]).toBe('layout,time_years,right_front_km,left_front_km,total_insects_km');
+    const rows = lines.slice(1);
+    expect(rows.length).toBe(doc.baseline.series.timesYears.length + doc.options[0].run.series.timesYears.length);
+    expect(rows[0]).toBe(`"baseline",0,${doc.baseline.series.rightFrontKm[0]},${doc.baseline.series.leftFrontKm[0]},${doc.baseline.series.totalInsects[0]}`);
+    expect(rows.at(-1)).toMatch(/^"Cut at km 2",6,/);
+    const scenario = await t.app.inject(`${resultUrl}/scenario.json`);
+    expect(parseScenarioText(scenario.body)).toEqual(quick());
+  });
+
+  it('lists past results, and deletes one after confirmation', async () => {
+    const list = await t.app.inject('/results');
+    expect(list.body).toContain(resultUrl);
+    expect((await t.app.inject(`${resultUrl}/delete`)).body).toContain('This cannot be undone');
+    const del = await t.app.inject({ method: 'POST', url: `${resultUrl}/delete` });
+    expect(del.statusCode).toBe(303);
+    expect((await t.app.inject(resultUrl)).statusCode).toBe(404);
+    expect((await t.app.inject('/results/not-a-result')).statusCode).toBe(404);
+  });
+});
+
+describe('stored documents from older versions', () => {
+  it('a result without the barrier-analysis fields still renders, saying what is missing', async () => {
+    const doc = evaluateScenario(quick());
+    const bare = { ...doc, options: doc.options.map((o) => ({ name: o.name, fromKm: o.fromKm, widthM: o.widthM, cover: o.cover, run: o.run })) } as unknown as ResultDocument;
+    const deps = t.app as unknown as { inject: typeof t.app.inject };
+    const { openStore } = await import('../../server/web/store.ts');
+    const store = openStore(t.dataDir);
+    const saved = store.saveResult({ scenarioRef: null, scenario: quick(), document: bare });
+    store.close();
+    const page = await deps.inject(`/results/${saved.id}`);
+    expect(page.statusCode).toBe(200);
+    expect(page.body).toContain('Verdict not available');
+    expect(page.body).toContain('not computed by this version');
+    expect((await deps.inject(`/results/${saved.id}/compare`)).statusCode).toBe(200);
+  });
+});
