@@ -104,7 +104,7 @@ describe('the result page', () => {
     expect(r.statusCode).toBe(200);
     const html = r.body;
     expect(html).toMatch(/<article class="verdict tone-\w+">/);
-    expect(html).toContain('Cut at km 2');
+    expect(html).toContain('A: Cut at km 2');
     expect(html).toContain('When the pest reaches each protected site');
     expect(html).toContain('Wendle hut (km 4.00)');
     expect(html).toContain('Trees removed and cost');
@@ -112,9 +112,13 @@ describe('the result page', () => {
     expect(html).toContain('Limits and cautions');
     expect(html).toContain('local regulator');
     expect(html).toContain(`with ${TOOL.name} ${TOOL.version}`);
-    // Chart slots are present (drawn by the shared chart module, or a plain "not available" note).
-    expect(html).toContain('data-chart="front"');
-    expect(html).toContain('data-chart="space-time"');
+    // Charts from the shared chart module, inline, each with its title and reading hint.
+    for (const id of ['transect', 'front-position', 'host-profile', 'space-time-baseline', 'space-time-A']) {
+      const at = html.indexOf(`data-chart="${id}"`);
+      expect(at, id).toBeGreaterThan(-1);
+      expect(html.slice(at, at + 2000), id).toMatch(/<span class="hint">[^<]+<\/span><\/figcaption>\s*<svg xmlns/);
+    }
+    expect(html).not.toContain('Chart not available');
   });
 
   it('shows the same arrival year as an independent evaluation of the same scenario', async () => {
@@ -129,9 +133,11 @@ describe('the result page', () => {
     const r = await t.app.inject(`${resultUrl}/compare`);
     expect(r.statusCode).toBe(200);
     expect(r.body).toContain('Options side by side');
-    expect(r.body).toContain('<th scope="col">Baseline</th><th scope="col">Cut at km 2</th>');
+    expect(r.body).toContain('<th scope="col">Baseline</th><th scope="col">A: Cut at km 2</th>');
     expect(r.body).toContain('Arrival at Wendle hut');
     expect(r.body.match(/<figure class="chart"/g)).toHaveLength(1);
+    expect(r.body).toContain('data-chart="front-position"');
+    expect(r.body.match(/<svg xmlns/g)).toHaveLength(1);
     expect(r.body).toContain('Limits and cautions');
   });
 

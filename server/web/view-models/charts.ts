@@ -1,11 +1,14 @@
 /**
- * Chart slots of the result pages. The charts themselves (inline SVG with axes, units and a reading
- * hint, shared with the PDF briefing) come from the shared chart module in server/report/charts/;
- * until a chart is available there, its slot says so plainly instead of drawing anything.
+ * Chart slots of the result pages. The charts themselves (inline SVG with axes, units and a reading hint,
+ * the same SVG the PDF briefing embeds) come from the shared chart module in server/report/charts/; this
+ * file only picks them and wraps them for the `chart` partial. A chart that cannot be drawn for a stored
+ * document (e.g. one written by an older version) leaves a plain note in its slot instead of failing the page.
  */
-import type { MosaicResult, OptionResult, ResultDocument, RunResult } from '../../analysis/result.ts';
+import type { ResultDocument } from '../../analysis/result.ts';
+import { chartsForResult, frontPositionChart, type Chart, type ChartGroup } from '../../report/charts/index.ts';
 
 export interface ChartSlot {
+  /** Stable id (also used as the figure's data-chart attribute). */
   key: string;
   title: string;
   hint: string;
@@ -14,38 +17,29 @@ export interface ChartSlot {
   note: string;
 }
 
-const NOT_AVAILABLE = 'Chart not available in this version; the numbers are in the tables and in the downloads.';
+const NOT_AVAILABLE = 'Chart not available for this result; the numbers are in the tables and in the downloads.';
 
-function slot(key: string, title: string): ChartSlot {
-  return { key, title, hint: '', svg: null, note: NOT_AVAILABLE };
+const slot = (key: string, chart: Chart): ChartSlot => ({ key, title: chart.title, hint: chart.hint, svg: chart.svg, note: '' });
+const missing = (key: string, title: string): ChartSlot => ({ key, title, hint: '', svg: null, note: NOT_AVAILABLE });
+
+export type ChartGroups = Record<ChartGroup, ChartSlot[]>;
+
+/** Every chart the result supports, by group (transect, fronts, width–delay, host, space–time, mosaic, uncertainty). */
+export function resultCharts(doc: ResultDocument): ChartGroups {
+  const groups: ChartGroups = { transect: [], fronts: [], 'width-delay': [], host: [], 'space-time': [], mosaic: [], uncertainty: [] };
+  try {
+    for (const c of chartsForResult(doc)) groups[c.group].push(slot(c.id, c.chart));
+  } catch {
+    groups.fronts.push(missing('front-position', 'Front position over time'));
+  }
+  return groups;
 }
 
-/** Front position against time: the baseline and the chosen options in one chart. */
-export function frontChart(_doc: ResultDocument, _options: OptionResult[]): ChartSlot {
-  return slot('front', 'Front position over time');
-}
-
-/** Space–time density map of one run. */
-export function spaceTimeChart(_run: RunResult, label: string): ChartSlot {
-  return slot('space-time', `Density over space and time — ${label}`);
-}
-
-/** Host remaining along the transect at the end of a run. */
-export function hostChart(_run: RunResult, label: string): ChartSlot {
-  return slot('host', `Host remaining along the transect — ${label}`);
-}
-
-/** Delay (or pinning) against clearing width for one option. */
-export function widthDelayChart(_doc: ResultDocument, option: OptionResult): ChartSlot {
-  return slot('width-delay', `Delay against clearing width — ${option.name}`);
-}
-
-/** Spread speed in periodic forest/gap patterns. */
-export function mosaicChart(_doc: ResultDocument, _mosaics: MosaicResult[]): ChartSlot {
-  return slot('mosaic', 'Spread speed in strip patterns');
-}
-
-/** The transect with a layout's habitats and clearing. */
-export function stripChart(_run: RunResult, label: string): ChartSlot {
-  return slot('strip', `Transect — ${label}`);
+/** The one chart of the compare page: front position over time, baseline and every option. */
+export function compareChart(doc: ResultDocument): ChartSlot {
+  try {
+    return slot('front-position', frontPositionChart(doc));
+  } catch {
+    return missing('front-position', 'Front position over time');
+  }
 }

@@ -7,7 +7,8 @@
 import type { OptionResult, ResultDocument, RunResult, VerdictKind } from '../../analysis/result.ts';
 import { integer, km, num, percent, speed, years } from '../../report/format.ts';
 import type { StoredResult } from '../store.ts';
-import { frontChart, hostChart, mosaicChart, spaceTimeChart, stripChart, widthDelayChart, type ChartSlot } from './charts.ts';
+import { compareChart, resultCharts } from './charts.ts';
+import { optionKey } from '../../report/charts/index.ts';
 
 export const VERDICT_WORDS: Record<VerdictKind, { label: string; tone: string }> = {
   holds: { label: 'Holds', tone: 'good' },
@@ -28,6 +29,9 @@ const GROWTH_WORDS: Record<string, string> = {
 const COVER_WORDS: Record<string, string> = { clearing: 'open clearing', 'non-host-forest': 'replanted with non-host trees' };
 
 const NOT_COMPUTED = 'not computed by this version';
+
+/** An option's name with its letter key (A, B, …), the same letters the charts and the briefing use. */
+const keyed = (doc: ResultDocument, k: number) => `${optionKey(k)}: ${doc.options[k].name}`;
 
 export interface VerdictView {
   name: string;
@@ -58,12 +62,12 @@ function runNote(run: RunResult): string {
   return run.numerics.status === 'completed' ? '' : `This run did not complete (${run.numerics.status}: ${run.numerics.message}).`;
 }
 
-export function verdictView(o: OptionResult): VerdictView {
+export function verdictView(o: OptionResult, k = 0): VerdictView {
   const x = loose(o);
   const v = x.verdict;
   const words = v ? VERDICT_WORDS[v.kind] : undefined;
   return {
-    name: x.name,
+    name: `${optionKey(k)}: ${x.name}`,
     what: optionWhat(x),
     available: Boolean(v),
     label: words?.label ?? v?.kind ?? 'Verdict not available',
@@ -78,7 +82,7 @@ const yearOrNot = (y: number | null | undefined, horizon: number) =>
   y === null || y === undefined ? `not within ${years(horizon)} yr` : `year ${years(y)}`;
 
 function arrivalTable(doc: ResultDocument): TableView {
-  const head = ['Protected site', 'Baseline', ...doc.options.map((o) => o.name)];
+  const head = ['Protected site', 'Baseline', ...doc.options.map((_, k) => keyed(doc, k))];
   const rows = doc.baseline.arrivals.map((a, k) => ({
     label: `${a.name} (km ${km(a.atKm)})`,
     cells: [
@@ -100,7 +104,7 @@ function arrivalTable(doc: ResultDocument): TableView {
 function treesTable(doc: ResultDocument): TableView {
   return {
     head: ['Option', 'Host trees removed', 'Cost', 'Cost per year of delay'],
-    rows: doc.options.map((o) => {
+    rows: doc.options.map((o, k) => {
       const x = loose(o);
       const t = x.trees;
       const unit = t?.costUnit ? ` ${t.costUnit}` : '';
@@ -109,7 +113,7 @@ function treesTable(doc: ResultDocument): TableView {
         .map((s) => `${s.name}: ${integer(s.costPerYearOfDelay!)}${unit}/yr`)
         .join('; ');
       return {
-        label: x.name,
+        label: keyed(doc, k),
         cells: [
           t ? integer(t.stemsRemoved) : NOT_COMPUTED,
           t ? (t.cost === null ? 'no cost given' : `${integer(t.cost)}${unit}`) : NOT_COMPUTED,
@@ -123,9 +127,9 @@ function treesTable(doc: ResultDocument): TableView {
 function criticalWidthTable(doc: ResultDocument): TableView {
   return {
     head: ['Option', 'Critical width', 'Phase-plane estimate', 'Note'],
-    rows: doc.options.map((o) => {
+    rows: doc.options.map((o, k) => {
       const c = loose(o).criticalWidth;
-      if (!c) return { label: o.name, cells: [NOT_COMPUTED, '—', ''] };
+      if (!c) return { label: keyed(doc, k), cells: [NOT_COMPUTED, '—', ''] };
       const bracket = !c.applicable
         ? 'does not apply'
         : c.bracketM
@@ -133,7 +137,7 @@ function criticalWidthTable(doc: ResultDocument): TableView {
           : 'not found within the widths tried';
       const extra = c.delayPer100mYears !== null ? ` About ${years(c.delayPer100mYears)} yr of delay per extra 100 m.` : '';
       return {
-        label: o.name,
+        label: keyed(doc, k),
         cells: [bracket, c.phasePlaneM === null ? '—' : `${integer(c.phasePlaneM)} m`, `${c.note}${extra}`],
       };
     }),
@@ -141,7 +145,7 @@ function criticalWidthTable(doc: ResultDocument): TableView {
 }
 
 function runsTable(doc: ResultDocument): TableView {
-  const runs: { label: string; run: RunResult }[] = [{ label: 'Baseline', run: doc.baseline }, ...doc.options.map((o) => ({ label: o.name, run: o.run }))];
+  const runs: { label: string; run: RunResult }[] = [{ label: 'Baseline', run: doc.baseline }, ...doc.options.map((o, k) => ({ label: keyed(doc, k), run: o.run }))];
   const rate = (run: RunResult, dir: 'right' | 'left') => speed(run.spreadRates.find((r) => r.direction === dir)?.kmPerYear ?? null, 'not measured');
   return {
     head: ['Layout', 'Front at the end (right)', 'Spread rate (right)', 'Spread rate (left)', 'Host stems left', 'Stems killed per km of front'],
@@ -161,12 +165,12 @@ function runsTable(doc: ResultDocument): TableView {
   };
 }
 
-function widthDelayTables(doc: ResultDocument): { name: string; chart: ChartSlot; table: TableView }[] {
+function widthDelayTables(doc: ResultDocument): { name: string; table: TableView }[] {
   return doc.options
-    .filter((o) => (loose(o).widthDelay ?? []).length > 0)
-    .map((o) => ({
-      name: o.name,
-      chart: widthDelayChart(doc, o),
+    .map((o, k) => ({ o, k }))
+    .filter(({ o }) => (loose(o).widthDelay ?? []).length > 0)
+    .map(({ o, k }) => ({
+      name: keyed(doc, k),
       table: {
         head: ['Width', 'Pinned', 'Crossing year', ...doc.baseline.arrivals.map((a) => `Delay at ${a.name}`)],
         rows: (loose(o).widthDelay ?? []).map((r) => ({
@@ -203,7 +207,7 @@ function mosaicTable(doc: ResultDocument): TableView | null {
 }
 
 function numericsTable(doc: ResultDocument): TableView {
-  const runs: { label: string; run: RunResult }[] = [{ label: 'Baseline', run: doc.baseline }, ...doc.options.map((o) => ({ label: o.name, run: o.run }))];
+  const runs: { label: string; run: RunResult }[] = [{ label: 'Baseline', run: doc.baseline }, ...doc.options.map((o, k) => ({ label: keyed(doc, k), run: o.run }))];
   return {
     head: ['Layout', 'Status', 'Cells', 'Cell size', 'Time step', 'Steps', 'Compute time'],
     rows: runs.map(({ label, run }) => {
@@ -267,13 +271,13 @@ function header(stored: StoredResult) {
 /** The results page. */
 export function resultPageView(stored: StoredResult, extras: { briefingUrl?: string } = {}) {
   const doc = stored.document;
-  const runs = [{ label: 'Baseline', run: doc.baseline }, ...doc.options.map((o) => ({ label: o.name, run: o.run }))];
+  const runs = [{ label: 'Baseline', run: doc.baseline }, ...doc.options.map((o, k) => ({ label: keyed(doc, k), run: o.run }))];
   const notes = runs.map(({ label, run }) => (run.numerics.status === 'completed' ? '' : `${label}: ${runNote(run)}`)).filter(Boolean);
   return {
     ...header(stored),
     briefingUrl: extras.briefingUrl ?? '',
     hasOptions: doc.options.length > 0,
-    verdicts: doc.options.map(verdictView),
+    verdicts: doc.options.map((o, k) => verdictView(o, k)),
     statusNotes: notes,
     hasSites: doc.baseline.arrivals.length > 0,
     arrivals: arrivalTable(doc),
@@ -282,14 +286,8 @@ export function resultPageView(stored: StoredResult, extras: { briefingUrl?: str
     runs: runsTable(doc),
     widthDelay: widthDelayTables(doc),
     mosaics: mosaicTable(doc),
-    mosaicChart: doc.mosaics?.length ? mosaicChart(doc, doc.mosaics) : null,
     numerics: numericsTable(doc),
-    charts: {
-      front: frontChart(doc, doc.options),
-      strips: runs.map(({ label, run }) => stripChart(run, label)),
-      spaceTime: runs.map(({ label, run }) => spaceTimeChart(run, label)),
-      host: runs.map(({ label, run }) => hostChart(run, label)),
-    },
+    charts: resultCharts(doc),
     extraSections: [doc.uncertainty ? 'uncertainty' : '', doc.bypass ? 'bypass risk' : ''].filter(Boolean),
   };
 }
@@ -328,8 +326,8 @@ export function comparePageView(stored: StoredResult) {
   return {
     ...header(stored),
     hasOptions: doc.options.length > 0,
-    table: { head: ['', 'Baseline', ...opts.map((o) => o.name)], rows },
-    chart: frontChart(doc, doc.options),
+    table: { head: ['', 'Baseline', ...opts.map((_, k) => keyed(doc, k))], rows },
+    chart: compareChart(doc),
   };
 }
 
