@@ -1,5 +1,5 @@
 /**
- * Command line: `npm run evaluate -- <scenario.json> [--json] [--out FILE]`.
+ * Command line: `npm run evaluate -- <scenario.json> [--json] [--out FILE] [--pdf FILE]`.
  * Calls the same analysis as the web routes; writes output files atomically (temporary file, then rename).
  */
 import { readFileSync, renameSync, writeFileSync, rmSync } from 'node:fs';
@@ -8,10 +8,12 @@ import { parseScenarioText } from './model/scenario.ts';
 import { InputError, formatProblems } from './model/errors.ts';
 import { evaluateScenarioParallel } from './analysis/evaluate-parallel.ts';
 import { textSummary } from './report/text-summary.ts';
+import { renderBriefing } from './report/briefing.ts';
 
-const USAGE = `usage: npm run evaluate -- <scenario.json> [--json] [--out FILE]
+const USAGE = `usage: npm run evaluate -- <scenario.json> [--json] [--out FILE] [--pdf FILE]
   --json        print the result document (JSON) instead of the readable summary
   --out FILE    write the output to FILE instead of standard output
+  --pdf FILE    also write the PDF briefing to FILE (alone, without --json/--out, nothing else is printed)
   --quiet       no progress bar
   --threads N   worker threads for an ensemble (default: all cores)
   Ctrl-C during an ensemble stops it and reports the draws done so far; a second Ctrl-C quits.`;
@@ -20,6 +22,8 @@ export interface CliArgs {
   file: string;
   json: boolean;
   out?: string;
+  /** Write the PDF briefing here. */
+  pdf?: string;
   quiet: boolean;
   /** Worker threads for ensembles (default: all cores). */
   threads?: number;
@@ -36,13 +40,17 @@ export function parseArgs(argv: string[]): CliArgs {
       const v = argv[++i];
       if (!v || v.startsWith('--')) throw new InputError('USAGE', [{ path: '--out', value: v, message: 'needs a file name' }]);
       args.out = v;
+    } else if (a === '--pdf') {
+      const v = argv[++i];
+      if (!v || v.startsWith('--')) throw new InputError('USAGE', [{ path: '--pdf', value: v, message: 'needs a file name' }]);
+      args.pdf = v;
     } else if (a === '--threads') {
       const v = argv[++i];
       const n = Number(v);
       if (!Number.isInteger(n) || n < 1 || n > 256) throw new InputError('USAGE', [{ path: '--threads', value: v, message: 'needs a whole number from 1 to 256' }]);
       args.threads = n;
     } else if (a.startsWith('--')) {
-      throw new InputError('USAGE', [{ path: a, value: a, message: 'is not a known option (--json, --out FILE, --quiet, --threads N)' }]);
+      throw new InputError('USAGE', [{ path: a, value: a, message: 'is not a known option (--json, --out FILE, --pdf FILE, --quiet, --threads N)' }]);
     } else if (args.file === undefined) args.file = a;
     else throw new InputError('USAGE', [{ path: 'arguments', value: a, message: 'only one scenario file may be given' }]);
   }
@@ -122,6 +130,14 @@ export async function main(argv: string[]): Promise<number> {
       });
     } finally {
       process.off('SIGINT', onSigint);
+    }
+    if (args.pdf) {
+      const pdf = await renderBriefing(doc, { scenario, rawInput: JSON.parse(text) as unknown });
+      writeAtomically(args.pdf, pdf);
+      if (!args.json && !args.out) {
+        process.stderr.write(`briefing written to ${args.pdf}\n`);
+        return 0;
+      }
     }
     const output = args.json ? `${JSON.stringify(doc, null, 1)}\n` : `${textSummary(doc)}\n`;
     if (args.out) writeAtomically(args.out, output);

@@ -173,6 +173,36 @@ export function spreadLabels(positions: number[], gap: number, lo: number, hi: n
   return { at, fits };
 }
 
+/**
+ * Greedy line filling of whole tokens (each token is kept on one line; a token wider than the line is
+ * shortened with an ellipsis). Tokens on a line are joined with `sep`.
+ */
+export function wrapTokens(tokens: string[], maxWidth: number, size: number, sep = ' · '): string[] {
+  const lines: string[] = [];
+  let cur = '';
+  for (const raw of tokens) {
+    const t = fitText(raw, maxWidth, size);
+    const next = cur ? `${cur}${sep}${t}` : t;
+    if (cur && textWidth(next, size) > maxWidth) {
+      lines.push(cur);
+      cur = t;
+    } else cur = next;
+  }
+  if (cur) lines.push(cur);
+  return lines;
+}
+
+/** Site numbers are 1-based positions in the scenario's site list, the same in every chart and table. */
+export function siteNumber(i: number): string {
+  return String(i + 1);
+}
+
+/** Text with a white backing so it stays legible over lines and grid. */
+export function haloText(x: number, y: number, s: string, size: number, fill = '#333333'): string {
+  const w = textWidth(s, size);
+  return rect(x - 1.5, y - 0.6 * size, w + 3, 1.2 * size, { fill: '#ffffff', 'fill-opacity': 0.85 }) + text(x, y, s, { size, valign: 'middle', fill });
+}
+
 /** A small "no data" panel, used when a chart is asked for with nothing to draw. */
 export function emptyPanel(box: Box, message: string): string {
   return (

@@ -19,6 +19,8 @@ import {
   legend,
   right,
   spreadLabels,
+  haloText,
+  siteNumber,
   type Box,
   type Chart,
   type ChartSize,
@@ -83,8 +85,8 @@ export function frontPositionChart(input: FrontChartInput, size: ChartSize = {})
   const endLabelW = Math.max(...series.map((s) => textWidth(s.endLabel, 10, true))) + 14;
   const legendEntries: LegendEntry[] = series.map((s) => ({ label: s.label, style: s.style }));
   legendEntries.push({ label: 'clearing of an option (letter at the right)', swatch: rect(0, 0, 24, 10, { fill: '#d0d0d0', stroke: '#777777', 'stroke-width': 0.6 }) });
-  const sites = (input.sites ?? input.baseline.arrivals).filter((s) => isNum(s.atKm) && s.atKm >= x0 && s.atKm <= x1);
-  if (sites.length) legendEntries.push({ label: 'protected site', swatch: line(0, 5, 24, 5, { stroke: '#555555', 'stroke-dasharray': '1.5 2.5', 'stroke-width': 1.2 }) });
+  const sites = (input.sites ?? input.baseline.arrivals).map((s, i) => ({ ...s, i })).filter((s) => isNum(s.atKm) && s.atKm >= x0 && s.atKm <= x1);
+  if (sites.length) legendEntries.push({ label: 'protected site (name or number as in the tables)', swatch: line(0, 5, 24, 5, { stroke: '#555555', 'stroke-dasharray': '1.5 2.5', 'stroke-width': 1.2 }) });
 
   const box0: Box = { left: 0, top: 12, width: 0, height: plotHeight };
   const left = leftAxisSpace(yScale.range([bottom(box0), box0.top]));
@@ -111,11 +113,18 @@ export function frontPositionChart(input: FrontChartInput, size: ChartSize = {})
   const bl = spreadLabels(bandLetters.map((b) => b.y), 11, box.top + 6, bottom(box) - 6);
   bandLetters.forEach((b, i) => (body += text(right(box) - 4, bl.at[i], b.key, { anchor: 'end', size: 9, bold: true, valign: 'middle', fill: '#444444' })));
 
-  // Protected sites: dotted lines, names above them at the left (shortened, spread apart; dropped if too many).
+  // Protected sites: dotted lines with their names at the left; when names would have to move away from their
+  // lines (many sites close together), the site numbers of the transect strip and the tables are used instead.
   const siteYs = sites.map((s) => yScale(s.atKm));
   for (const y of siteYs) body += line(box.left, y, right(box), y, { stroke: '#555555', 'stroke-dasharray': '1.5 2.5', 'stroke-width': 1.1 });
-  const sl = spreadLabels(siteYs.map((y) => y - 6), 11, box.top + 6, bottom(box) - 4);
-  if (sl.fits) sites.forEach((s, i) => (body += text(box.left + 4, sl.at[i], fitText(s.name, box.width * 0.45, 9), { size: 9, valign: 'middle', fill: '#333333' })));
+  const named = spreadLabels(siteYs.map((y) => y - 6), 11, box.top + 6, bottom(box) - 4);
+  const moved = Math.max(0, ...named.at.map((y, i) => Math.abs(y - (siteYs[i] - 6))));
+  if (named.fits && moved <= 4) {
+    sites.forEach((s, i) => (body += haloText(box.left + 4, named.at[i], fitText(s.name, box.width * 0.45, 9), 9)));
+  } else {
+    const numbered = spreadLabels(siteYs, 10, box.top + 5, bottom(box) - 5);
+    sites.forEach((s, i) => (body += haloText(box.left + 4, numbered.at[i], siteNumber(s.i), 9)));
+  }
 
 
   // Lines: baseline first (underneath), options on top. Missing values (no front) leave gaps.

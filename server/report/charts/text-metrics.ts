@@ -23,7 +23,7 @@ const BOLD_ASCII = [
 /** A few non-ASCII characters the charts print (same source, regular weight). */
 const OTHER: Record<string, number> = {
   '°': 500, '²': 401, '−': 838, '–': 500, '—': 1000, '…': 1000, '±': 838, '≥': 838, '≤': 838, 'λ': 592, 'Δ': 684, 'µ': 636,
-  '×': 838, '·': 318, '’': 318, '“': 518, '”': 518, '\u202f': 318,
+  '×': 838, '·': 318, '’': 318, '“': 518, '”': 518, '\u202f': 318, '\u00a0': 318,
 };
 /** Width assumed for any other character: wider than most Latin glyphs, so estimates err on the safe side. */
 const FALLBACK = 800;

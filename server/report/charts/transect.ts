@@ -10,7 +10,7 @@ import { num } from '../format.ts';
 import { el, isNum, line, rect, svgRoot, text } from './svg.ts';
 import { fitText, textWidth } from './text-metrics.ts';
 import { optionKey } from './styles.ts';
-import { DEFAULT_WIDTH, axisBottom, bottom, legend, right, type Box, type Chart, type ChartSize, type LegendEntry } from './frame.ts';
+import { DEFAULT_WIDTH, axisBottom, bottom, legend, right, siteNumber, wrapTokens, type Box, type Chart, type ChartSize, type LegendEntry } from './frame.ts';
 import { infestationOf, optionInterval, transectExtent, type Interval, type SitePart } from './parts.ts';
 
 export interface TransectInput {
@@ -64,24 +64,32 @@ export function transectStrip(input: TransectInput, size: ChartSize = {}): Chart
   xs.range([margin, margin + plotW]);
   const infestation = input.baseline.series ? infestationOf({ infestation: input.infestation, baseline: { series: { ...input.baseline.series, timesYears: [], totalInsects: [] } } }) : (input.infestation ?? null);
   const sites = (input.sites ?? input.baseline.arrivals ?? []).filter((s) => isNum(s.atKm));
+  const siteKey = sites.map((s, i) => `${siteNumber(i)}\u00a0${s.name}\u00a0(km\u00a0${num(s.atKm, 4)})`);
 
-  // Site labels: greedy rows so no two labels overlap; leader lines go down to the pins on the strip.
-  const rowEnds: number[] = [];
-  const placed = sites
-    .map((s, i) => ({ s, i, px: xs(s.atKm) }))
-    .sort((a, b) => a.px - b.px)
-    .map((p) => {
-      const label = fitText(p.s.name, 160, 9);
-      const w = textWidth(label, 9);
-      const lx = Math.min(Math.max(p.px - w / 2, margin), margin + plotW - w);
-      let row = rowEnds.findIndex((end) => lx > end + 6);
-      if (row < 0) {
-        row = rowEnds.length;
-        rowEnds.push(0);
-      }
-      rowEnds[row] = lx + w;
-      return { ...p, label, lx, row };
-    });
+  // Site labels: greedy rows so no two labels overlap. Names are used when they fit on one row; otherwise
+  // the site numbers (as in the tables) with a key below the chart, so leader lines never cross labels.
+  const placeLabels = (labelOf: (s: SitePart, i: number) => string) => {
+    const rowEnds: number[] = [];
+    const placed = sites
+      .map((s, i) => ({ s, i, px: xs(s.atKm) }))
+      .sort((a, b) => a.px - b.px)
+      .map((p) => {
+        const label = labelOf(p.s, p.i);
+        const w = textWidth(label, 9);
+        const lx = Math.min(Math.max(p.px - w / 2, margin), margin + plotW - w);
+        let row = rowEnds.findIndex((end) => lx > end + 6);
+        if (row < 0) {
+          row = rowEnds.length;
+          rowEnds.push(0);
+        }
+        rowEnds[row] = lx + w;
+        return { ...p, label, lx, row };
+      });
+    return { placed, rowEnds };
+  };
+  let { placed, rowEnds } = placeLabels((s) => fitText(s.name, 160, 9));
+  const numbered = rowEnds.length > 1;
+  if (numbered) ({ placed, rowEnds } = placeLabels((_, i) => siteNumber(i)));
   const siteRows = rowEnds.length;
   const stripTop = 6 + siteRows * SITE_ROW + (siteRows ? 8 : 0) + 12;
   const box: Box = { left: margin, top: stripTop, width: plotW, height: STRIP_H };
@@ -92,7 +100,7 @@ export function transectStrip(input: TransectInput, size: ChartSize = {}): Chart
   let body = '';
   for (const p of placed) {
     const ly = 6 + p.row * SITE_ROW;
-    body += text(p.lx, ly, p.label, { size: 9, valign: 'top' });
+    body += text(p.lx, ly, p.label, { size: 9, valign: 'top', bold: numbered });
     body += line(p.px, ly + 11, p.px, stripTop - 2, { stroke: '#444444', 'stroke-width': 0.7 });
     body += el('path', { d: `M${p.px - 4},${stripTop - 9}L${p.px + 4},${stripTop - 9}L${p.px},${stripTop - 1}Z`, fill: '#000000' });
   }
@@ -139,11 +147,17 @@ export function transectStrip(input: TransectInput, size: ChartSize = {}): Chart
     { label: 'non-host forest', swatch: rect(0, 0, 24, 10, { fill: 'url(#bx-hatch-nonhost)', stroke: '#333333', 'stroke-width': 0.6 }) },
     { label: 'infested now', swatch: rect(0, 2, 24, 7, { fill: 'url(#bx-hatch-infested)', stroke: INFESTED, 'stroke-width': 0.8 }) },
     { label: 'barrier option (one row each)', swatch: rect(6, 1, 12, 9, { fill: '#ffffff', stroke: '#000000', 'stroke-width': 1.2 }) },
-    { label: 'protected site', swatch: el('path', { d: 'M8,1L16,1L12,9Z', fill: '#000000' }) },
+    { label: numbered ? 'protected site (number: key below)' : 'protected site', swatch: el('path', { d: 'M8,1L16,1L12,9Z', fill: '#000000' }) },
   ];
   const lgX = margin + sbW + 40;
   const lg = legend(entries, lgX, sbY - 4, width - lgX - margin, 9);
-  const height = Math.max(sbY + 22, sbY - 4 + lg.height) + 6;
+  let height = Math.max(sbY + 22, sbY - 4 + lg.height) + 6;
+  if (numbered) {
+    const lines = wrapTokens(siteKey, plotW, 9);
+    body += text(margin, height + 2, 'Protected sites:', { size: 9, bold: true, valign: 'top' });
+    lines.forEach((l, k) => (body += text(margin, height + 14 + 12 * k, l, { size: 9, valign: 'top' })));
+    height += 14 + 12 * lines.length + 6;
+  }
   body += lg.svg;
   const title = 'The transect, the current infestation, the sites and the options';
   const hint = 'The infestation spreads along this line; each lower row shows where an option would cut its clearing.';
