@@ -2,9 +2,8 @@ import { TOOL } from '../version.ts';
 import { fingerprint } from '../model/canonical.ts';
 import { pointScenario, type Scenario, type PointScenario } from '../model/scenario.ts';
 import { alleeThreshold, lowDensityRate } from '../model/growth.ts';
-import { buildLayout } from './layout.ts';
 import { linearSpreadSpeed } from './discretise.ts';
-import { runLayout, summariseRun } from './simulate.ts';
+import { analyseBaseline, analyseOption } from './barrier.ts';
 import { allCautions } from './cautions.ts';
 import { RESULT_VERSION, type OptionResult, type ResultDocument, type UncertaintyResult } from './result.ts';
 import { runEnsemble } from './ensemble.ts';
@@ -47,22 +46,18 @@ export function evaluateScenario(scenario: Scenario, opts: EvaluateOptions = {})
   // With an ensemble, the single runs take the first share of the bar and the draws the rest.
   const share = opts.ensemble === 'skip' ? 1 : singleRunShare(scenario);
   const progress = (k: number, label: string) => (f: number) => opts.onProgress?.((share * (k + f)) / nRuns, label);
-  const baselineOut = runLayout({
-    scenario: s,
-    pieces: buildLayout(s),
+  const baseline = analyseBaseline(s, options, {
     shouldCancel: opts.shouldCancel,
     onProgress: progress(0, 'baseline'),
   });
-  const optionResults: OptionResult[] = options.map((o, k) => {
-    const out = runLayout({
-      scenario: s,
-      pieces: buildLayout(s, o),
-      shouldCancel: opts.shouldCancel,
-      onProgress: progress(k + 1, `option ${o.name}`),
-    });
-    // Issue 3 (barrier analysis) replaces this with the full option analysis; until then only the run is filled.
-    return { name: o.name, fromKm: o.fromKm, widthM: o.widthM, cover: o.cover, run: summariseRun(out, s) } as unknown as OptionResult;
-  });
+  const optionResults: OptionResult[] = options.map(
+    (o, k) =>
+      analyseOption(s, o, {
+        baseline,
+        shouldCancel: opts.shouldCancel,
+        onProgress: (f, stage) => progress(k + 1, stage)(f),
+      }).result,
+  );
   let uncertainty: UncertaintyResult | undefined;
   if (scenario.uncertainty && opts.ensemble !== 'skip') {
     uncertainty = runEnsemble(scenario, {
@@ -86,7 +81,7 @@ export function evaluateScenario(scenario: Scenario, opts: EvaluateOptions = {})
     detectionLevel: s.detectionLevel,
     infestation: { fromKm: s.infestation.fromKm, toKm: s.infestation.toKm, density: s.infestation.density },
     model: modelFacts(s),
-    baseline: summariseRun(baselineOut, s),
+    baseline: baseline.summary,
     options: optionResults,
     ...(uncertainty ? { uncertainty } : {}),
     ...(bypass ? { bypass } : {}),

@@ -129,6 +129,11 @@ export interface SiteVerdict {
   beyondBarrier: boolean;
   baselineArrivalYears: number | null;
   optionArrivalYears: number | null;
+  /**
+   * Arrival in a run extended past the horizon (only when the option's run did not reach the site in time);
+   * null when not projected or not reached in the extension either.
+   */
+  projectedArrivalYears?: number | null;
   /** option − baseline arrival [yr] when both arrive; positive = time bought. */
   delayYears: number | null;
   kind: VerdictKind;
@@ -154,6 +159,12 @@ export interface CriticalWidth {
   marginal: boolean;
   /** For forms without a strong Allee effect: extra years of delay per 100 m of width at the first site beyond the barrier. */
   delayPer100mYears: number | null;
+  /** Why the phase-plane value is missing, or what it assumes (e.g. hosts held at their present stocking). */
+  phasePlaneNote?: string;
+  /** The bracket's lower end repeated with half the time step; null when not run. */
+  halfStepCheck?: { widthM: number; outcome: string } | null;
+  /** Both bracket ends repeated on a computational window twice as large; agreed = same outcomes. */
+  windowCheck?: { widthsM: number[]; agreed: boolean } | null;
 }
 
 export interface WidthDelayRow {

@@ -320,6 +320,16 @@ export const FIELDS = {
     help: 'Width of the host-free clearing along the transect.',
     source: 'Option under study',
   },
+  widthToleranceM: {
+    label: 'Critical-width tolerance',
+    unit: 'm',
+    min: 0.1,
+    max: 10000,
+    typical: '5–50',
+    help: 'The critical width is bracketed by full-model runs until the bracket is at most this wide.',
+    defaultValue: 10,
+    source: 'Default 10 m, a fraction of usual felling precision (common practice, no source)',
+  },
   barrierLengthKm: {
     label: 'Barrier length across the front',
     unit: 'km',

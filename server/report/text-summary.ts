@@ -1,4 +1,4 @@
-import type { ResultDocument, RunResult } from '../analysis/result.ts';
+import type { OptionResult, ResultDocument, RunResult } from '../analysis/result.ts';
 import { fixed, integer, km, num, percent, speed, years } from './format.ts';
 
 /** Front positions at about `n` evenly spaced years, for a compact table. */
@@ -32,6 +32,56 @@ export function runSummary(run: RunResult, horizon: number): string[] {
   return lines;
 }
 
+const VERDICT_WORDS: Record<OptionResult['verdict']['kind'], string> = {
+  holds: 'HOLDS',
+  marginal: 'MARGINAL',
+  'not-crossed': 'NOT CROSSED WITHIN THE HORIZON',
+  delays: 'DELAYS',
+  'speeds-up': 'SPEEDS UP',
+  'no-change': 'NO CHANGE',
+  'not-reached': 'NOT REACHED',
+};
+
+/** The decision part of one option: verdict, reason, per-site outcome, critical width, curve, trees. */
+export function optionDecision(o: OptionResult): string[] {
+  const lines: string[] = [];
+  lines.push(`  Verdict: ${VERDICT_WORDS[o.verdict.kind]} — ${o.verdict.sentence}`);
+  lines.push(`  Why: ${o.verdict.why}`);
+  lines.push(`  Pinning: ${o.pinning.verified ? 'verified' : 'not verified'} — ${o.pinning.detail}`);
+  if (o.sites.length) {
+    lines.push('  Protected sites:');
+    for (const site of o.sites) {
+      const cpy = site.costPerYearOfDelay !== null ? ` Cost per year of delay: ${integer(site.costPerYearOfDelay)}${o.trees.costUnit ? ` ${o.trees.costUnit}` : ''}.` : '';
+      lines.push(`    ${site.name} (km ${km(site.atKm)}${site.beyondBarrier ? ', beyond the clearing' : ''}): ${VERDICT_WORDS[site.kind].toLowerCase()} — ${site.sentence}${cpy}`);
+    }
+  }
+  const cw = o.criticalWidth;
+  if (!cw.applicable) lines.push(`  Critical width: none — ${cw.note}${cw.delayPer100mYears !== null ? ` Delay per 100 m of width: ${fixed(cw.delayPer100mYears, 2)} years.` : ''}`);
+  else if (cw.bracketM) {
+    lines.push(
+      `  Critical width: between ${integer(cw.bracketM[0])} and ${integer(cw.bracketM[1])} m (tolerance ${num(cw.toleranceM)} m, ${cw.runs} full-model runs)` +
+        (cw.phasePlaneM !== null ? `; phase-plane criterion ${num(cw.phasePlaneM, 4)} m` : '') +
+        (cw.marginal ? ' — this option is within the uncertainty' : ''),
+    );
+    if (cw.phasePlaneNote && cw.phasePlaneM !== null && /depletion/.test(cw.phasePlaneNote)) lines.push(`    (${cw.phasePlaneNote.trim()})`);
+  } else lines.push(`  Critical width: not bracketed — ${cw.note}${cw.phasePlaneM !== null ? ` Phase-plane criterion: ${num(cw.phasePlaneM, 4)} m.` : ''}`);
+  if (o.widthDelay.length) {
+    const names = o.sites.map((s) => s.name);
+    lines.push(`  Width–delay curve (years of delay at each site beyond the clearing; "held" = pinned, verified):`);
+    lines.push(`    width (m)  ${names.map((n) => n.slice(0, 18).padStart(18)).join(' ')}`);
+    for (const r of o.widthDelay) {
+      const cells = r.delayYearsBySite.map((d, k) => (r.pinned && o.sites[k].beyondBarrier ? 'held' : years(d)).padStart(18));
+      lines.push(`    ${integer(r.widthM).padStart(9)}  ${cells.join(' ')}`);
+    }
+  }
+  const cost = o.trees.cost !== null ? `; cost ${integer(o.trees.cost)}${o.trees.costUnit ? ` ${o.trees.costUnit}` : ''}` : '';
+  lines.push(`  Host trees removed: ${integer(o.trees.stemsRemoved)}${cost}`);
+  if (o.speeds.baselineKmPerYear !== null || o.speeds.optionKmPerYear !== null) {
+    lines.push(`  Spread rate: ${speed(o.speeds.baselineKmPerYear)} without the clearing; ${speed(o.speeds.optionKmPerYear)} measured beyond it`);
+  }
+  return lines;
+}
+
 /** Plain-text summary printed by `npm run evaluate`. */
 export function textSummary(doc: ResultDocument): string {
   const b = doc.baseline;
@@ -52,7 +102,7 @@ export function textSummary(doc: ResultDocument): string {
   );
   out.push('', 'Baseline (the stand as it stands, no clearing)', ...runSummary(b, doc.horizonYears));
   for (const o of doc.options) {
-    out.push('', `Option "${o.name}": ${o.cover} from km ${km(o.fromKm)}, ${num(o.widthM)} m wide`, ...runSummary(o.run, doc.horizonYears));
+    out.push('', `Option "${o.name}": ${o.cover} from km ${km(o.fromKm)}, ${num(o.widthM)} m wide`, ...optionDecision(o), ...runSummary(o.run, doc.horizonYears));
   }
   out.push(...uncertaintySummary(doc));
   out.push('', 'Limits and cautions:', ...doc.cautions.map((c) => `  - ${c}`));

@@ -1,0 +1,534 @@
+/**
+ * Runs used by the barrier analysis: a computational window around a clearing that can start from any
+ * state (a snapshot of the baseline, or the end of an option run), watchers that stop a run when the
+ * front is established beyond the clearing, and the judge that verifies a pinned front.
+ */
+import { makeDiffusionOperator, makeDiffusionStepper, type DiffusionOperator, type DiffusionStepper } from '../numerics/diffusion.ts';
+import { makeReactionStepper, type ReactionStepper } from '../numerics/reaction.ts';
+import { runSplitTimeLoop, type FieldState, type Observer } from '../numerics/time-loop.ts';
+import { solveSteadyState, linearStability } from '../numerics/steady.ts';
+import { cellIndexAt, type Grid } from '../numerics/grid.ts';
+import { alleeThreshold, equilibria, lowDensityRate, type PointGrowth } from '../model/growth.ts';
+import type { PointScenario } from '../model/scenario.ts';
+import { segmentBreaks } from '../model/scenario.ts';
+import { discretise, growthRateScale, type Resolution, type TransectProblem } from './discretise.ts';
+import type { ClearingSpec, Piece } from './layout.ts';
+import { cellReaction, establishedLevel, potentialThreshold, strongAllee } from './barrier-growth.ts';
+
+/** Where a clearing sits relative to the infestation. */
+export interface BarrierGeometry {
+  /** +1 when the front must travel right to reach the clearing, −1 when left. */
+  direction: 1 | -1;
+  /** Edge of the clearing that faces the infestation [km]. */
+  nearKm: number;
+  /** Edge the front must pass to cross [km]. */
+  farKm: number;
+}
+
+/** Positions closer than this are equal [km] (1 mm). */
+const SAME_KM = 1e-6;
+
+/** Which way the front meets the clearing (the scenario's cross-checks guarantee no overlap with the infestation). */
+export function barrierGeometry(s: PointScenario, c: ClearingSpec): BarrierGeometry {
+  const a = c.fromKm;
+  const b = c.fromKm + c.widthM / 1000;
+  if (a >= s.infestation.toKm - SAME_KM) return { direction: 1, nearKm: a, farKm: b };
+  return { direction: -1, nearKm: b, farKm: a };
+}
+
+/** True when x lies beyond the clearing as seen from the infestation. */
+export function isBeyond(g: BarrierGeometry, xKm: number): boolean {
+  return g.direction * (xKm - g.farKm) > SAME_KM;
+}
+
+/** Movement length in host forest √(D/r) [km]: the distance over which a front profile changes. */
+export function movementLengthKm(s: PointScenario): number {
+  return Math.sqrt(s.pest.diffusionHost / growthRateScale(s.pest.growth));
+}
+
+/** Decay length of a low-density fringe in host forest √(D/|g(0)|) [km] (the movement length when g(0) = 0). */
+export function fringeLengthKm(s: PointScenario): number {
+  const g0 = Math.abs(lowDensityRate(s.pest.growth, 1));
+  return g0 > 0 ? Math.sqrt(s.pest.diffusionHost / g0) : movementLengthKm(s);
+}
+
+/** A discretised stretch of the layout with its steppers, ready to run from any state. */
+export interface WindowSolver {
+  scenario: PointScenario;
+  problem: TransectProblem;
+  op: DiffusionOperator;
+  diffusion: DiffusionStepper;
+  reaction: ReactionStepper;
+  windowKm: [number, number];
+  /** Density at which each cell counts as established (Infinity off host); per cell. */
+  establishedAtCells: Float64Array;
+}
+
+/** The layout restricted to [lo, hi] (pieces clipped). */
+export function slicePieces(pieces: Piece[], lo: number, hi: number): Piece[] {
+  const out: Piece[] = [];
+  for (const p of pieces) {
+    const a = Math.max(p.fromKm, lo);
+    const b = Math.min(p.toKm, hi);
+    if (b - a > SAME_KM) out.push({ ...p, fromKm: a, toKm: b });
+  }
+  return out;
+}
+
+/**
+ * Builds a solver on [lo, hi] of a layout. Cut ends are reflecting (no flux); where the window reaches a
+ * transect end, that end's own condition applies. `resolution` should be the full layout's, so that window
+ * and full runs use the same cells and step; `horizonYears` is only used for the step-count limit.
+ */
+export function makeWindowSolver(
+  s: PointScenario,
+  pieces: Piece[],
+  windowKm: [number, number],
+  resolution: Resolution,
+  horizonYears: number,
+): WindowSolver {
+  const breaks = segmentBreaks(s.transect);
+  const lo = Math.max(windowKm[0], breaks[0]);
+  const hi = Math.min(windowKm[1], breaks[breaks.length - 1]);
+  const sliced = slicePieces(pieces, lo, hi);
+  const ends = {
+    left: lo <= breaks[0] + SAME_KM ? s.transect.ends.left : ('reflecting' as const),
+    right: hi >= breaks[breaks.length - 1] - SAME_KM ? s.transect.ends.right : ('reflecting' as const),
+  };
+  const sw: PointScenario = { ...s, transect: { ...s.transect, ends }, horizonYears };
+  const problem = discretise(sw, sliced, resolution);
+  const op = makeDiffusionOperator(problem.grid, problem.diffusionAtCells, problem.residenceAtCells, problem.ends);
+  const diffusion = makeDiffusionStepper(op);
+  const reaction = makeReactionStepper({
+    hostAtCells: problem.hostAtCells,
+    mortalityAtCells: problem.mortalityAtCells,
+    perCapita: problem.perCapita,
+    hostKillRate: problem.hostKillRate,
+    stiffness: problem.stiffness,
+  });
+  const establishedAtCells = establishedLevels(s, problem);
+  return { scenario: s, problem, op, diffusion, reaction, windowKm: [lo, hi], establishedAtCells };
+}
+
+/**
+ * Cell averages of a piecewise-constant field (cells of `from`) over the cells of `to` (overlap-weighted).
+ * Positions outside `from` take the nearest end value.
+ */
+export function remap(from: Grid, values: Float64Array, to: Grid): Float64Array {
+  const out = new Float64Array(to.nCells);
+  const ff = from.facesKm;
+  let j = 0;
+  for (let i = 0; i < to.nCells; i++) {
+    const a = to.facesKm[i];
+    const b = to.facesKm[i + 1];
+    while (j < from.nCells - 1 && ff[j + 1] <= a) j++;
+    let k = j;
+    let acc = 0;
+    let covered = 0;
+    while (k < from.nCells && ff[k] < b) {
+      const o = Math.min(b, ff[k + 1]) - Math.max(a, ff[k]);
+      if (o > 0) {
+        acc += o * values[k];
+        covered += o;
+      }
+      k++;
+    }
+    if (covered > 0) out[i] = acc / covered;
+    else out[i] = a < ff[0] ? values[0] : values[from.nCells - 1];
+  }
+  return out;
+}
+
+/** A state to start a window run from: fields on some grid at an absolute time [yr]. */
+export interface StartState {
+  grid: Grid;
+  u: Float64Array;
+  h: Float64Array;
+  /** Years since the start of the scenario. */
+  t: number;
+}
+
+/**
+ * Initial fields of a window run: remapped density; host fraction remapped but never above the
+ * window cell's own stocking (the clearing has none).
+ */
+export function initialFields(solver: WindowSolver, start: StartState): { u: Float64Array; h: Float64Array } {
+  const { grid, stockingAtCells, hostAtCells } = solver.problem;
+  const u = remap(start.grid, start.u, grid);
+  const hr = remap(start.grid, start.h, grid);
+  const h = new Float64Array(grid.nCells);
+  for (let i = 0; i < grid.nCells; i++) h[i] = hostAtCells[i] ? Math.min(hr[i], stockingAtCells[i]) : 0;
+  return { u, h };
+}
+
+/** An observer that sees absolute time (run time + offset). */
+export function withOffset(o: Observer, offset: number): Observer {
+  const shift = (s: FieldState): FieldState => ({ t: s.t + offset, u: s.u, h: s.h, stepIndex: s.stepIndex });
+  return {
+    initialize: o.initialize ? (s) => o.initialize!(shift(s)) : undefined,
+    handle: (s) => o.handle(shift(s)),
+    finalize: o.finalize ? (s) => o.finalize!(shift(s)) : undefined,
+  };
+}
+
+/**
+ * Records the first time the front is established beyond the far edge: any host cell beyond it at or above
+ * its established level, or the detection level reached at a probe far enough beyond the clearing that a
+ * pinned front's low-density fringe cannot reach it (this catches fronts whose peak density stays below the
+ * established level, e.g. consumer–resource pulses). Optionally stops the run there.
+ */
+export class CrossingWatch implements Observer {
+  crossedYears: number | null = null;
+  private readonly beyond: number[];
+  private readonly probeCell: number;
+  constructor(
+    grid: Grid,
+    geometry: BarrierGeometry,
+    private readonly levels: Float64Array,
+    private readonly stop: boolean,
+    probeKm: number,
+    private readonly detection: number,
+  ) {
+    this.beyond = [];
+    for (let i = 0; i < grid.nCells; i++) if (isBeyond(geometry, grid.centersKm[i]) && Number.isFinite(levels[i])) this.beyond.push(i);
+    const x = geometry.farKm + geometry.direction * probeKm;
+    const inside = x > grid.facesKm[0] && x < grid.facesKm[grid.nCells];
+    this.probeCell = inside ? cellIndexAt(grid, x) : -1;
+  }
+  initialize(s: FieldState): void {
+    this.handle(s);
+  }
+  handle(s: FieldState): boolean {
+    if (this.crossedYears !== null) return this.stop;
+    if (this.probeCell >= 0 && s.u[this.probeCell] >= this.detection) {
+      this.crossedYears = s.t;
+      return this.stop;
+    }
+    for (const i of this.beyond) {
+      if (s.u[i] >= this.levels[i]) {
+        this.crossedYears = s.t;
+        return this.stop;
+      }
+    }
+    return false;
+  }
+}
+
+/** Smallest positive host stocking on the transect (sets the longest low-density fringe). */
+export function smallestStocking(s: PointScenario): number {
+  let h = Infinity;
+  for (const seg of s.transect.segments) if (seg.habitat === 'host-forest' && seg.stocking > 0) h = Math.min(h, seg.stocking);
+  return Number.isFinite(h) ? h : 1;
+}
+
+/**
+ * Distance beyond the far edge [km] at which the detection level means the front has crossed: a pinned
+ * front's fringe starts below θ at the edge and decays like exp(−x/ℓ), ℓ = √(D/|g(0)|) at the lowest
+ * stocking, so it falls below the detection level within ℓ·ln(θ/detection); two movement lengths are
+ * added as a margin.
+ */
+export function crossingProbeKm(s: PointScenario): number {
+  const h = smallestStocking(s);
+  const g = s.pest.growth;
+  const theta = potentialThreshold(g, 1);
+  const g0 = Math.abs(lowDensityRate(g, h));
+  const lf = g0 > 0 ? Math.sqrt(s.pest.diffusionHost / g0) : fringeLengthKm(s);
+  const ratio = theta !== null && Number.isFinite(theta) ? Math.max(theta / s.detectionLevel, 1) : 1 / s.detectionLevel;
+  return lf * Math.log(ratio) + 2 * movementLengthKm(s);
+}
+
+/** Established levels per cell for a discretised layout (Infinity off host). */
+export function establishedLevels(s: PointScenario, problem: TransectProblem): Float64Array {
+  const out = new Float64Array(problem.grid.nCells);
+  const cache = new Map<number, number>();
+  for (let i = 0; i < problem.grid.nCells; i++) {
+    const h0 = problem.stockingAtCells[i];
+    if (!problem.hostAtCells[i] || !(h0 > 0)) {
+      out[i] = Infinity;
+      continue;
+    }
+    let v = cache.get(h0);
+    if (v === undefined) {
+      v = establishedLevel(s.pest.growth, h0);
+      cache.set(h0, v);
+    }
+    out[i] = v;
+  }
+  return out;
+}
+
+/** How a pinned front was (or could be) verified. */
+export type PinningMode = 'steady-state' | 'dies-out' | 'none';
+
+export interface Judgement {
+  verified: boolean;
+  mode: PinningMode;
+  method: string;
+  detail: string;
+  /** Year of verification. */
+  atYears: number | null;
+  /** The verified steady state (cells of the judge's problem), when one was computed. */
+  steady: Float64Array | null;
+  leadingEigenvalue: number | null;
+}
+
+/** Which verification applies: exact steady state (hosts not depleted), die-out (hosts depleted), or none. */
+export function pinningMode(s: PointScenario, hBeyond: number): PinningMode {
+  if (!strongAllee(s.pest.growth, hBeyond)) return 'none';
+  return s.pest.hostKillRate === 0 ? 'steady-state' : 'dies-out';
+}
+
+/** Shortest guarantee [yr] the cubic die-out bound must give before the pest counts as gone. */
+export const DIE_OUT_GUARANTEE_YEARS = 1e6;
+
+export const PINNING_METHODS: Record<PinningMode, string> = {
+  'steady-state':
+    "Newton on the unsplit finite-volume steady-state equations from the run's state, then a Sturm count on the symmetrised Jacobian (no unstable mode)",
+  'dies-out':
+    'die-out check: with hosts being consumed there is no steady front, so the pest must die out at the clearing; a comparison (upper-solution) bound on the density everywhere in the computational window shows it cannot regrow',
+  none: 'no pinning is possible: the forest beyond has no strong Allee effect, so any insects that cross found a growing population',
+};
+
+/**
+ * Verifies pinning during a run (called every few steps).
+ *
+ * - steady-state (no host depletion): Newton on the unsplit residual from the run's state must converge to
+ *   a state that is linearly stable (Sturm count 0), keeps the density beyond the clearing below the
+ *   potential threshold θ (front on the near side), and that the run is close to and not moving away from
+ *   (checked again one interval later).
+ * - dies-out (host depletion): w = max_i u_i ρ_max/ρ_i bounds the density by the upper solution
+ *   W ρ/ρ_max (constant in the residence-index variable, so diffusion leaves it unchanged). For growth that
+ *   does not rise as hosts fall (logistic, mate-finding), W = w is an upper solution for ever once w lies
+ *   below every cell's Allee threshold. For the cubic, whose threshold a·h falls with the hosts, the per-capita
+ *   rate never exceeds k w² with k = r(1−a)²/(4a) whatever the hosts do, so W(t) = w/√(1 − 2k w² t) is an
+ *   upper solution; it stays below 2w for 3/(8 k w²) years, and the check requires that to exceed
+ *   {@link DIE_OUT_GUARANTEE_YEARS}.
+ */
+export class PinningJudge {
+  readonly mode: PinningMode;
+  private candidate: { t: number; u: Float64Array; distance: number } | null = null;
+  private readonly beyondHost: number[] = [];
+  private readonly thetaAtCells: Float64Array;
+  private readonly capScale: number;
+  private readonly rScale: number;
+  attempts = 0;
+  constructor(
+    private readonly solver: WindowSolver,
+    geometry: BarrierGeometry,
+  ) {
+    const s = solver.scenario;
+    const { grid, hostAtCells, stockingAtCells } = solver.problem;
+    let hBeyond = 0;
+    this.thetaAtCells = new Float64Array(grid.nCells).fill(Infinity);
+    let capMax = 0;
+    for (let i = 0; i < grid.nCells; i++) {
+      if (!hostAtCells[i]) continue;
+      capMax = Math.max(capMax, equilibria(s.pest.growth, stockingAtCells[i]).capacity ?? 0);
+      if (isBeyond(geometry, grid.centersKm[i]) && stockingAtCells[i] > 0) {
+        this.beyondHost.push(i);
+        hBeyond = Math.max(hBeyond, stockingAtCells[i]);
+        this.thetaAtCells[i] = potentialThreshold(s.pest.growth, stockingAtCells[i]) ?? 0;
+      }
+    }
+    this.mode = this.beyondHost.length ? pinningMode(s, hBeyond) : 'none';
+    this.capScale = capMax > 0 ? capMax : 1;
+    this.rScale = growthRateScale(s.pest.growth);
+  }
+
+  /** Returns a verified judgement, or null when pinning is not (yet) shown. */
+  check(t: number, u: Float64Array, h: Float64Array): Judgement | null {
+    switch (this.mode) {
+      case 'none':
+        return null;
+      case 'dies-out':
+        return this.checkDiesOut(t, u, h);
+      default:
+        return this.checkSteady(t, u, h);
+    }
+  }
+
+  private checkDiesOut(t: number, u: Float64Array, h: Float64Array): Judgement | null {
+    const s = this.solver.scenario;
+    const g = s.pest.growth;
+    const { hostAtCells, residenceAtCells } = this.solver.problem;
+    const n = u.length;
+    let rhoMax = 0;
+    for (let i = 0; i < n; i++) rhoMax = Math.max(rhoMax, residenceAtCells[i]);
+    let w = 0;
+    for (let i = 0; i < n; i++) w = Math.max(w, (u[i] * rhoMax) / residenceAtCells[i]);
+    const base = { verified: true, mode: 'dies-out' as const, method: PINNING_METHODS['dies-out'], atYears: t, steady: null, leadingEigenvalue: null };
+    if (g.form === 'allee-cubic') {
+      const k = (g.rate * (1 - g.alleeThreshold) ** 2) / (4 * g.alleeThreshold);
+      const guarantee = w > 0 ? 3 / (8 * k * w * w) : Infinity;
+      if (!(guarantee >= DIE_OUT_GUARANTEE_YEARS)) return null;
+      return {
+        ...base,
+        detail:
+          `at year ${t.toFixed(1)} the density is at most ${w.toExponential(2)} everywhere in the computational window; ` +
+          `whatever the hosts do, it cannot exceed twice that for ${guarantee === Infinity ? 'ever' : `${guarantee.toExponential(1)} years`} (comparison bound)`,
+      };
+    }
+    let minThreshold = Infinity;
+    for (let i = 0; i < n; i++) {
+      if (!hostAtCells[i]) continue;
+      const hi = h[i];
+      if (lowDensityRate(g, hi) > 0) return null;
+      const th = alleeThreshold(g, hi);
+      if (th !== null) minThreshold = Math.min(minThreshold, th);
+      if (w >= minThreshold) return null;
+    }
+    return {
+      ...base,
+      detail:
+        `at year ${t.toFixed(1)} the density is at most ${w.toExponential(2)} everywhere in the computational window, below the smallest Allee threshold ` +
+        `${Number.isFinite(minThreshold) ? minThreshold.toExponential(2) : '(none: the hosts left cannot support growth)'}; growth does not rise as hosts are consumed, so it can only decline`,
+    };
+  }
+
+  private checkSteady(t: number, u: Float64Array, h: Float64Array): Judgement | null {
+    const closeTol = 0.05 * this.capScale;
+    const distance = (a: Float64Array) => {
+      let d = 0;
+      for (let i = 0; i < u.length; i++) d = Math.max(d, Math.abs(u[i] - a[i]));
+      return d;
+    };
+    const reaction = cellReaction(this.solver.problem, h);
+    if (this.candidate) {
+      // Second look: the run must not be moving away from the candidate (a saddle or a slow crossing would).
+      const c = this.candidate;
+      this.candidate = null;
+      const d2 = distance(c.u);
+      if (d2 <= 1.05 * c.distance + 1e-9 * this.capScale) {
+        const st = linearStability(this.solver.op, reaction, c.u);
+        return {
+          verified: true,
+          mode: 'steady-state',
+          method: PINNING_METHODS['steady-state'],
+          detail:
+            `steady state found at year ${c.t.toFixed(1)} and confirmed at year ${t.toFixed(1)} (run within ${d2.toExponential(1)} of it and not moving away); ` +
+            `leading eigenvalue ${st.leadingEigenvalue.toExponential(2)} /yr, so every perturbation decays`,
+          atYears: t,
+          steady: c.u,
+          leadingEigenvalue: st.leadingEigenvalue,
+        };
+      }
+    }
+    this.attempts++;
+    const r = solveSteadyState(this.solver.op, reaction, u, { tolerance: 1e-9 * this.rScale * this.capScale });
+    if (!r.converged) return null;
+    for (const i of this.beyondHost) if (!(r.u[i] < this.thetaAtCells[i])) return null;
+    const d = distance(r.u);
+    if (d > closeTol) return null;
+    if (!linearStability(this.solver.op, reaction, r.u).stable) return null;
+    this.candidate = { t, u: r.u, distance: d };
+    return null;
+  }
+}
+
+/** Result of a window run. */
+export interface WindowOutcome {
+  outcome: 'crossed' | 'pinned' | 'open';
+  /** Year the front was established beyond the clearing, if it was. */
+  crossedYears: number | null;
+  judgement: Judgement | null;
+  /** Year the run ended. */
+  endYears: number;
+  /** First year each requested position reached the detection level (null if not). */
+  arrivals: (number | null)[];
+  u: Float64Array;
+  h: Float64Array;
+  steps: number;
+}
+
+export interface WindowRunOptions {
+  start: StartState;
+  /** Absolute end time [yr]. */
+  tEnd: number;
+  geometry: BarrierGeometry;
+  /** Stop as soon as the front is established beyond the clearing. */
+  stopOnCross: boolean;
+  /** Verify pinning every `checkYears` and stop once verified. */
+  judge?: boolean;
+  checkYears?: number;
+  /** Positions whose arrival (detection level) to record [km]; the run continues until they are all reached when stopOnArrivals. */
+  sitesKm?: number[];
+  stopOnArrivals?: boolean;
+  shouldCancel?: () => boolean;
+}
+
+/** Runs a window solver from a start state until crossing, verified pinning, all arrivals, or tEnd. */
+export function runWindow(solver: WindowSolver, o: WindowRunOptions): WindowOutcome {
+  const { grid } = solver.problem;
+  const s = solver.scenario;
+  const f = initialFields(solver, o.start);
+  const u = f.u;
+  const h = f.h;
+  const watch = new CrossingWatch(grid, o.geometry, solver.establishedAtCells, o.stopOnCross, crossingProbeKm(s), s.detectionLevel);
+  const judge = o.judge ? new PinningJudge(solver, o.geometry) : null;
+  const dt = solver.problem.resolution.stepYears;
+  const checkEvery = Math.max(1, Math.round((o.checkYears ?? Math.max(0.5, 2 / growthRateScale(s.pest.growth))) / dt));
+  let judgement: Judgement | null = null;
+  const sites = o.sitesKm ?? [];
+  const siteCells = sites.map((x) => cellIndexAt(grid, x));
+  const arrivals: (number | null)[] = sites.map(() => null);
+  const level = s.detectionLevel;
+  let lastT = o.start.t;
+  const lastU = siteCells.map((c) => u[c]);
+  const observer: Observer = {
+    initialize: (st) => {
+      watch.initialize(st);
+      siteCells.forEach((c, k) => {
+        if (st.u[c] >= level) arrivals[k] = st.t;
+        lastU[k] = st.u[c];
+      });
+    },
+    handle: (st) => {
+      let stop = watch.handle(st);
+      siteCells.forEach((c, k) => {
+        const now = st.u[c];
+        if (arrivals[k] === null && now >= level) {
+          const frac = now > lastU[k] ? (level - lastU[k]) / (now - lastU[k]) : 1;
+          arrivals[k] = lastT + Math.min(1, Math.max(0, frac)) * (st.t - lastT);
+        }
+        lastU[k] = now;
+      });
+      lastT = st.t;
+      if (o.stopOnArrivals && sites.length && arrivals.every((a) => a !== null) && (watch.crossedYears !== null || !o.stopOnCross)) stop = true;
+      if (judge && watch.crossedYears === null && st.stepIndex % checkEvery === 0) {
+        const j = judge.check(st.t, st.u, st.h);
+        if (j) {
+          judgement = j;
+          stop = true;
+        }
+      }
+      return stop;
+    },
+  };
+  const t0 = o.start.t;
+  const span = o.tEnd - t0;
+  let steps = 0;
+  let endYears = t0;
+  if (span > 1e-12) {
+    const res = runSplitTimeLoop(solver.diffusion, solver.reaction, u, h, {
+      tEnd: span,
+      dt,
+      observers: [withOffset(observer, t0)],
+      shouldCancel: o.shouldCancel,
+    });
+    steps = res.info.steps;
+    endYears = t0 + res.t;
+  }
+  // A last look at the horizon: a run that ends exactly there still gets its pinning check.
+  if (judge && !judgement && watch.crossedYears === null) judgement = judge.check(endYears, u, h);
+  const j = judgement as Judgement | null;
+  return {
+    outcome: watch.crossedYears !== null ? 'crossed' : j?.verified ? 'pinned' : 'open',
+    crossedYears: watch.crossedYears,
+    judgement: j,
+    endYears,
+    arrivals,
+    u,
+    h,
+    steps,
+  };
+}
