@@ -14,6 +14,7 @@ import { segmentBreaks } from '../model/scenario.ts';
 import { discretise, growthRateScale, type Resolution, type TransectProblem } from './discretise.ts';
 import type { ClearingSpec, Piece } from './layout.ts';
 import { cellReaction, establishedLevel, potentialThreshold, strongAllee } from './barrier-growth.ts';
+import { ArrivalTracker } from './trackers.ts';
 
 /** Where a clearing sits relative to the infestation. */
 export interface BarrierGeometry {
@@ -469,31 +470,16 @@ export function runWindow(solver: WindowSolver, o: WindowRunOptions): WindowOutc
   const checkEvery = Math.max(1, Math.round((o.checkYears ?? Math.max(0.5, 2 / growthRateScale(s.pest.growth))) / dt));
   let judgement: Judgement | null = null;
   const sites = o.sitesKm ?? [];
-  const siteCells = sites.map((x) => cellIndexAt(grid, x));
-  const arrivals: (number | null)[] = sites.map(() => null);
-  const level = s.detectionLevel;
-  let lastT = o.start.t;
-  const lastU = siteCells.map((c) => u[c]);
+  const arrivalTracker = new ArrivalTracker(grid, sites, s.detectionLevel);
   const observer: Observer = {
     initialize: (st) => {
       watch.initialize(st);
-      siteCells.forEach((c, k) => {
-        if (st.u[c] >= level) arrivals[k] = st.t;
-        lastU[k] = st.u[c];
-      });
+      arrivalTracker.initialize(st);
     },
     handle: (st) => {
       let stop = watch.handle(st);
-      siteCells.forEach((c, k) => {
-        const now = st.u[c];
-        if (arrivals[k] === null && now >= level) {
-          const frac = now > lastU[k] ? (level - lastU[k]) / (now - lastU[k]) : 1;
-          arrivals[k] = lastT + Math.min(1, Math.max(0, frac)) * (st.t - lastT);
-        }
-        lastU[k] = now;
-      });
-      lastT = st.t;
-      if (o.stopOnArrivals && sites.length && arrivals.every((a) => a !== null) && (watch.crossedYears !== null || !o.stopOnCross)) stop = true;
+      arrivalTracker.handle(st);
+      if (o.stopOnArrivals && sites.length && arrivalTracker.allArrived() && (watch.crossedYears !== null || !o.stopOnCross)) stop = true;
       if (judge && watch.crossedYears === null && st.stepIndex % checkEvery === 0) {
         const j = judge.check(st.t, st.u, st.h);
         if (j) {
@@ -526,7 +512,8 @@ export function runWindow(solver: WindowSolver, o: WindowRunOptions): WindowOutc
     crossedYears: watch.crossedYears,
     judgement: j,
     endYears,
-    arrivals,
+    // A site already at the detection level when the window run starts counts as reached at its start.
+    arrivals: arrivalTracker.arrivalYears.map((a) => (a === null ? null : Math.max(a, t0))),
     u,
     h,
     steps,
