@@ -45,6 +45,14 @@ export interface TransectProblem {
 const CELLS_PER_LENGTH = 10;
 /** Automatic time step as a fraction of the fastest local rate's time scale 1/rate. */
 const STEP_PER_RATE_TIME = 0.05;
+/**
+ * Automatic time step as a fraction of 1/mortality for off-host mortality. The reaction step integrates
+ * mortality exactly (u·e^(−m dt)), so it only enters through the splitting error and gets a looser bound
+ * than the growth rates. Measured cost on the demo scenarios: arrival times change by ≤ 0.02 yr against a
+ * step four times smaller (tests/analysis/step-rule.test.ts); run time falls 4–8× for options with a
+ * high mortality in the clearing.
+ */
+const STEP_PER_EXACT_RATE_TIME = 0.5;
 /** Largest number of cells a run may use. */
 export const MAX_CELLS = 200_000;
 /** Largest number of time steps a run may take. */
@@ -67,23 +75,24 @@ export function growthRateScale(g: PointGrowth): number {
  * Automatic resolution (documented in DEVELOPERS.md):
  * - cell = (shortest movement length)/10, where the movement lengths are √(D_host/r) in host forest and
  *   √(D/m) in each open or non-host habitat that appears (the distance over which density changes);
- * - step = 0.05 / (largest local rate) [yr], the largest rate being the growth-rate scale, the mortalities
- *   in habitats that appear and the host-kill rate.
+ * - step = min(0.05 / (largest of the growth-rate scale and the host-kill rate), 0.5 / (largest mortality
+ *   in habitats that appear)) [yr]: mortality is integrated exactly, so it only bounds the splitting error.
  * User values in `numerics` override either choice.
  */
 export function chooseResolution(s: PointScenario, pieces: Piece[]): Resolution {
   const r = growthRateScale(s.pest.growth);
   const lengths: number[] = [Math.sqrt(s.pest.diffusionHost / r)];
   const rates: number[] = [r, s.pest.hostKillRate];
+  const exactRates: number[] = [0];
   for (const habitat of new Set(pieces.map((p) => p.habitat))) {
     if (habitat === 'host-forest') continue;
     const c = habitatCoefficients(s.pest, habitat);
     // A habitat with little mortality still needs resolving on the growth scale.
     lengths.push(Math.sqrt(c.diffusion / Math.max(c.mortality, r)));
-    rates.push(c.mortality);
+    exactRates.push(c.mortality);
   }
   const autoCellKm = Math.min(...lengths) / CELLS_PER_LENGTH;
-  const autoStep = STEP_PER_RATE_TIME / Math.max(...rates);
+  const autoStep = Math.min(STEP_PER_RATE_TIME / Math.max(...rates), STEP_PER_EXACT_RATE_TIME / Math.max(...exactRates));
   return {
     cellKm: s.numerics.cellM !== undefined ? s.numerics.cellM / 1000 : autoCellKm,
     stepYears: s.numerics.stepYears ?? autoStep,

@@ -112,13 +112,20 @@ const NEGATIVE_TOLERANCE = 1e-13;
  */
 export function makeDiffusionStepper(op: DiffusionOperator): DiffusionStepper {
   const n = op.n;
-  const trap = makeTridiagonalSolver(n);
-  const bdf = makeTridiagonalSolver(n);
+  const { lower, diag, upper } = op;
   const be = makeTridiagonalSolver(n);
   const lo = new Float64Array(n);
   const di = new Float64Array(n);
   const up = new Float64Array(n);
-  const lu = new Float64Array(n);
+  // Thomas factors of the two TR-BDF2 matrices, kept here so that the stages can be fused into four
+  // sweeps over memory (apply + stage-1 forward, stage-1 back + stage-2 right side, stage-2 forward,
+  // stage-2 back + positivity check) instead of nine.
+  const sub1 = new Float64Array(n);
+  const inv1 = new Float64Array(n);
+  const cp1 = new Float64Array(n);
+  const sub2 = new Float64Array(n);
+  const inv2 = new Float64Array(n);
+  const cp2 = new Float64Array(n);
   const stage = new Float64Array(n);
   const saved = new Float64Array(n);
   const counters: DiffusionCounters = { trbdf2Steps: 0, fallbackSteps: 0, factorisations: 0 };
@@ -128,11 +135,25 @@ export function makeDiffusionStepper(op: DiffusionOperator): DiffusionStepper {
   const cStar = 1 / (GAMMA * (2 - GAMMA));
   const cOld = ((1 - GAMMA) * (1 - GAMMA)) / (GAMMA * (2 - GAMMA));
 
-  function factorImplicit(solver: typeof trap, theta: number): void {
+  /** Thomas factors of I − θL: sub-diagonal, inverse pivots, modified super-diagonal. */
+  function factorInto(theta: number, sub: Float64Array, inv: Float64Array, cp: Float64Array): void {
+    let prevCp = 0;
     for (let i = 0; i < n; i++) {
-      lo[i] = -theta * op.lower[i];
-      di[i] = 1 - theta * op.diag[i];
-      up[i] = -theta * op.upper[i];
+      const a = i > 0 ? -theta * lower[i] : 0;
+      const piv = 1 - theta * diag[i] - a * prevCp;
+      const ip = 1 / piv;
+      sub[i] = a;
+      inv[i] = ip;
+      prevCp = i < n - 1 ? -theta * upper[i] * ip : 0;
+      cp[i] = prevCp;
+    }
+  }
+
+  function factorImplicit(solver: typeof be, theta: number): void {
+    for (let i = 0; i < n; i++) {
+      lo[i] = -theta * lower[i];
+      di[i] = 1 - theta * diag[i];
+      up[i] = -theta * upper[i];
     }
     solver.factor(lo, di, up);
   }
@@ -150,22 +171,44 @@ export function makeDiffusionStepper(op: DiffusionOperator): DiffusionStepper {
     counters,
     step(u, dt) {
       if (dt !== factoredDt) {
-        factorImplicit(trap, (GAMMA * dt) / 2);
-        factorImplicit(bdf, w * dt);
+        factorInto((GAMMA * dt) / 2, sub1, inv1, cp1);
+        factorInto(w * dt, sub2, inv2, cp2);
         factoredDt = dt;
         counters.factorisations += 2;
       }
-      saved.set(u);
-      applyDiffusion(op, u, lu);
       const half = (GAMMA * dt) / 2;
-      for (let i = 0; i < n; i++) stage[i] = u[i] + half * lu[i];
-      trap.solve(stage, stage);
-      for (let i = 0; i < n; i++) u[i] = cStar * stage[i] - cOld * u[i];
-      bdf.solve(u, u);
+      // Sweep 1 (forward): save u; right side (I + γdt/2 L)u; forward elimination of stage 1.
+      let y = 0;
+      let uPrev = 0;
+      let uCur = u[0];
+      for (let i = 0; i < n; i++) {
+        const uNext = i < n - 1 ? u[i + 1] : 0;
+        saved[i] = uCur;
+        const lu = lower[i] * uPrev + diag[i] * uCur + upper[i] * uNext;
+        y = (uCur + half * lu - sub1[i] * y) * inv1[i];
+        stage[i] = y;
+        uPrev = uCur;
+        uCur = uNext;
+      }
+      // Sweep 2 (backward): stage-1 back substitution; stage-2 right side into u.
+      let x = 0;
+      for (let i = n - 1; i >= 0; i--) {
+        x = stage[i] - cp1[i] * x;
+        u[i] = cStar * x - cOld * saved[i];
+      }
+      // Sweep 3 (forward): stage-2 forward elimination.
+      y = 0;
+      for (let i = 0; i < n; i++) {
+        y = (u[i] - sub2[i] * y) * inv2[i];
+        u[i] = y;
+      }
+      // Sweep 4 (backward): stage-2 back substitution and the range of the result.
       let min = 0;
       let max = 0;
-      for (let i = 0; i < n; i++) {
-        const x = u[i];
+      x = 0;
+      for (let i = n - 1; i >= 0; i--) {
+        x = u[i] - cp2[i] * x;
+        u[i] = x;
         if (x < min) min = x;
         else if (x > max) max = x;
       }
