@@ -221,6 +221,12 @@ export interface MosaicResult {
   sentence: string;
   /** Dispersion curve for charts: decay rates s [1/km] and λ(s) [1/yr]. */
   curve: { s: number[]; lambda: number[] };
+  /** Decay rate s* [1/km] of the front's leading edge at the minimum of λ(s)/s; null where not applicable. */
+  decayRate?: number | null;
+  /** What the homogenised estimate assumes (it is reported beside the exact value, not asserted equal). */
+  homogenisedNote?: string;
+  /** The measured speed was fitted with the Bramson log term (pulled fronts). */
+  measuredLogCorrected?: boolean;
 }
 
 /* ---------------------------------------------------------------------------------------------------

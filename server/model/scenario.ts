@@ -74,8 +74,8 @@ export const BarrierSchema = z.strictObject({
   /** Currency or unit printed next to costs, e.g. "EUR" (free text). */
   costUnit: z.string().max(12).optional(),
   options: z.array(BarrierOptionSchema).max(8, { error: 'at most 8 options per scenario' }).default([]),
-  /** Tolerance of the critical-width bracket [m]. */
-  toleranceM: valueSchema(FIELDS.widthToleranceM).default(FIELDS.widthToleranceM.defaultValue),
+  /** Tolerance of the critical-width bracket [m]; 10 m when absent (applied by the analysis). */
+  toleranceM: valueSchema(FIELDS.widthToleranceM).optional(),
   /** Widths of the width–delay curve [m]; automatic (six widths up to twice the option's) when absent. */
   curveWidthsM: z
     .array(valueSchema(FIELDS.widthM))
