@@ -241,6 +241,23 @@ export function parameterRows(scenario: Scenario, raw?: unknown, used?: RunResul
       add(bar, ['barrier', 'options', k, 'widthM'], FIELDS.widthM, `${optionKey(k)} width`);
     });
   }
+  if (scenario.transport) {
+    const tr = 'People moving infested wood (transport)';
+    const t = scenario.transport;
+    add(tr, ['transport', 'ratePerKm2Year'], FIELDS.transportRate);
+    if (t.kernel.shape === 'exponential') add(tr, ['transport', 'kernel', 'meanKm'], FIELDS.transportMeanKm);
+    else rows.push({ group: tr, label: 'Distance table', value: `${t.kernel.points.length} rows up to ${num(t.kernel.points[t.kernel.points.length - 1].distanceKm, 4)} km`, unit: 'km', source: sourceText(null, ['transport', 'kernel'], t.kernel, ctx) });
+    add(tr, ['transport', 'establishmentProbability'], FIELDS.establishmentProbability);
+    add(tr, ['transport', 'forwardShare'], FIELDS.forwardShare);
+    add(tr, ['transport', 'bandWidthKm'], FIELDS.bandWidthKm);
+  }
+  if (scenario.uncertainty) {
+    const un = 'Uncertainty analysis';
+    add(un, ['uncertainty', 'draws'], FIELDS.ensembleDraws);
+    add(un, ['uncertainty', 'seed'], FIELDS.ensembleSeed);
+    add(un, ['uncertainty', 'targetStandardError'], FIELDS.targetStandardError);
+    rows.push({ group: un, label: 'Critical width per draw', value: scenario.uncertainty.criticalWidth ? 'yes' : 'no', unit: '–', source: sourceText(null, ['uncertainty', 'criticalWidth'], scenario.uncertainty.criticalWidth, ctx) });
+  }
   const run = 'Run settings';
   add(run, ['horizonYears'], FIELDS.horizonYears);
   add(run, ['detectionLevel'], FIELDS.detectionLevel);
@@ -333,7 +350,7 @@ export interface UncertaintyView {
   completed: number;
   status: string;
   parameters: { label: string; unit: string; distribution: string }[];
-  options: { name: string; holds: string; holds90: string; holds95: string; crossing: string; sentences: string[] }[];
+  options: { name: string; holds: string; holdsWithTransport: string | null; holds90: string; holds95: string; crossing: string; sentences: string[] }[];
   convergence: string | null;
 }
 
@@ -368,6 +385,7 @@ export function readUncertainty(u: unknown): UncertaintyView | null {
       return {
         name: typeof o.name === 'string' ? o.name : '',
         holds: prob(o.holdsWithinHorizon),
+        holdsWithTransport: isObj(o.holdsIncludingTransport) ? prob(o.holdsIncludingTransport) : null,
         holds90: computed ? widthText(cw.holds90M) : 'not computed',
         holds95: computed ? widthText(cw.holds95M) : 'not computed',
         crossing: quant(o.crossingYears),

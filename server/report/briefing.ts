@@ -297,17 +297,20 @@ function uncertaintySection(flow: Flow, doc: ResultDocument, opts: BriefingOptio
       );
     }
     if (u.options.length) {
+      const transport = u.options.some((o) => o.holdsWithTransport !== null);
       flow.table(
         [
-          { header: 'Option', width: 140 },
-          { header: 'P(holds within horizon)', width: 85, align: 'right' },
-          { header: 'Width for 90 %', width: 70, align: 'right' },
-          { header: 'Width for 95 %', width: 70, align: 'right' },
-          { header: 'Front crosses', width: 130 },
+          { header: 'Option', width: transport ? 115 : 140 },
+          { header: 'P(holds within horizon)', width: transport ? 70 : 85, align: 'right' },
+          ...(transport ? [{ header: 'P(holds, people moving wood included)', width: 80, align: 'right' as const }] : []),
+          { header: 'Width for 90 %', width: transport ? 60 : 70, align: 'right' },
+          { header: 'Width for 95 %', width: transport ? 60 : 70, align: 'right' },
+          { header: 'Front crosses', width: transport ? 110 : 130 },
         ],
         u.options.map((o) => {
           const k = doc.options.findIndex((x) => x.name === o.name);
-          return [k >= 0 ? `${optionKey(k)}  ${o.name}` : o.name, o.holds, o.holds90, o.holds95, o.crossing];
+          const name = k >= 0 ? `${optionKey(k)}  ${o.name}` : o.name;
+          return transport ? [name, o.holds, o.holdsWithTransport ?? '—', o.holds90, o.holds95, o.crossing] : [name, o.holds, o.holds90, o.holds95, o.crossing];
         }),
       );
       flow.bullets(u.options.flatMap((o) => o.sentences), { size: 8.5 });

@@ -10,7 +10,7 @@ import { fingerprint } from '../../server/model/canonical.ts';
 import { parseScenario, pointScenario, type Scenario, type ScenarioInput } from '../../server/model/scenario.ts';
 import { buildLayout, stemsRemoved } from '../../server/analysis/layout.ts';
 import { allCautions } from '../../server/analysis/cautions.ts';
-import { RESULT_VERSION, type MosaicResult, type OptionResult, type ResultDocument, type RunResult, type SiteVerdict, type VerdictKind } from '../../server/analysis/result.ts';
+import { RESULT_VERSION, type UncertaintyResult, type MosaicResult, type OptionResult, type ResultDocument, type RunResult, type SiteVerdict, type VerdictKind } from '../../server/analysis/result.ts';
 import { TOOL } from '../../server/version.ts';
 
 export interface FixtureSpec {
@@ -168,14 +168,14 @@ function fixtureMosaics(): MosaicResult[] {
   ];
 }
 
-/** An uncertainty section shaped like the ensemble analysis's output (issue 6), as plain data. */
-function fixtureUncertainty(doc: ResultDocument): Record<string, unknown> {
+/** An uncertainty section of the ensemble analysis's type (issue 6); typed, so a layout change shows up here. */
+function fixtureUncertainty(doc: ResultDocument): UncertaintyResult {
   const q = (median: number | null) => ({ p05: median === null ? null : median * 0.8, median, p95: median === null ? null : median * 1.25, mean: median, n: 200, beyondHorizon: 0, medianStandardError: 0.3 });
   return {
-    method: 'latin-hypercube',
+    method: 'latin-hypercube' as const,
     draws: 200,
     completed: 200,
-    status: 'completed',
+    status: 'completed' as const,
     seed: 7,
     parameters: [{ path: 'pest.diffusionOpen', label: 'Movement in the open (clearing)', unit: 'km²/yr', distribution: { dist: 'uniform', min: 0.5, max: 1.5 }, centralValue: 1, clippedDraws: 0 }],
     baseline: { sites: [] },
@@ -282,6 +282,6 @@ export function makeResultFixture(spec: FixtureSpec = {}): { input: ScenarioInpu
     cautions: allCautions(),
   };
   if (spec.mosaics ?? analysis) doc.mosaics = fixtureMosaics();
-  if (spec.uncertainty) doc.uncertainty = fixtureUncertainty(doc) as unknown as ResultDocument['uncertainty'];
+  if (spec.uncertainty) doc.uncertainty = fixtureUncertainty(doc);
   return { input, scenario, doc };
 }

@@ -1,7 +1,7 @@
 import { describe, expect, it, beforeAll } from 'vitest';
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { renderBriefing, PAGE, footerLines, runDateText, type BriefingLayout } from '../../server/report/briefing.ts';
-import { bottomLine, baselineLine, optionRows, parameterRows, questionText, splitCautions, treesOf, treesText, VERDICT_LABELS } from '../../server/report/briefing-text.ts';
+import { bottomLine, baselineLine, optionRows, parameterRows, questionText, readUncertainty, splitCautions, treesOf, treesText, VERDICT_LABELS } from '../../server/report/briefing-text.ts';
 import { CAUTIONS, MODEL_LIMITS } from '../../server/analysis/cautions.ts';
 import { parseScenario } from '../../server/model/scenario.ts';
 import { FIELDS } from '../../server/model/fields.ts';
@@ -93,6 +93,14 @@ describe('briefing for a full result (3 options, 2 sites, uncertainty)', () => {
         if (site.delayYears !== null && Math.abs(site.delayYears) >= 0.05) expect(t).toContain(squash(`${site.delayYears > 0 ? '+' : '−'}${Math.abs(site.delayYears).toFixed(1)} yr`));
       }
     }
+  });
+
+  it('reads the uncertainty section of the ensemble analysis, and refuses a layout it does not know', () => {
+    const u = readUncertainty(r.doc.uncertainty)!;
+    expect(u.options.map((o) => o.holds)).toEqual(['93 % ± 1.8 %', '41 % ± 1.8 %', '5 % ± 1.8 %']);
+    expect(u.options[0].holds90).toBe('520 m');
+    expect(readUncertainty({ something: 'else' })).toBeNull();
+    expect(readUncertainty(undefined)).toBeNull();
   });
 
   it('uncertainty section: probabilities with their standard error and widths for 90/95 %', () => {
@@ -241,6 +249,18 @@ describe('parameter sources', () => {
     const rows = parameterRows(parseScenario(input), input);
     for (const f of ['birthRate', 'deathRate', 'crowding', 'mateScale'] as const) expect(rows.some((x) => x.label === FIELDS[f].label)).toBe(true);
     expect(rows.find((x) => x.label === FIELDS.crowding.label)!.source).toMatch(/^illustrative|^default/);
+  });
+
+  it('lists the transport and uncertainty blocks with their sources', () => {
+    const input = makeResultFixture({ illustrative: false }).input as Record<string, unknown>;
+    input.transport = { ratePerKm2Year: 0.004, kernel: { shape: 'exponential', meanKm: 20 }, establishmentProbability: 0.2 };
+    input.uncertainty = { draws: 50, seed: 9 };
+    const rows = parameterRows(parseScenario(input), input);
+    const row = (label: string) => rows.find((x) => x.label === label);
+    expect(row(FIELDS.transportRate.label)?.source).toMatch(/^entered/);
+    expect(row(FIELDS.forwardShare.label)?.source).toMatch(/^default/);
+    expect(row(FIELDS.ensembleDraws.label)?.value).toBe('50');
+    expect(row(FIELDS.targetStandardError.label)?.source).toMatch(/^default/);
   });
 
   it('splits the result cautions into model limits and practical cautions, losing none', () => {
