@@ -1,6 +1,6 @@
-import { makeDiffusionOperator, makeDiffusionStepper } from '../numerics/diffusion.ts';
-import { makeReactionStepper } from '../numerics/reaction.ts';
-import { runSplitTimeLoop, type Observer, type SolverResult } from '../numerics/time-loop.ts';
+import { makeDiffusionOperator } from '../numerics/diffusion.ts';
+import { makeCoupledStepper } from '../numerics/coupled.ts';
+import { runTimeLoop, type Observer, type SolverResult } from '../numerics/time-loop.ts';
 import type { PointScenario } from '../model/scenario.ts';
 import { discretise, type Resolution, type TransectProblem } from './discretise.ts';
 import { HA_PER_KM2, type Piece } from './layout.ts';
@@ -54,8 +54,7 @@ export function runLayout(req: RunRequest): RunOutput {
   const tEnd = req.tEnd ?? s.horizonYears;
   const { grid } = problem;
   const op = makeDiffusionOperator(grid, problem.diffusionAtCells, problem.residenceAtCells, problem.ends);
-  const diffusion = makeDiffusionStepper(op);
-  const reaction = makeReactionStepper({
+  const stepper = makeCoupledStepper(op, {
     hostAtCells: problem.hostAtCells,
     mortalityAtCells: problem.mortalityAtCells,
     perCapita: problem.perCapita,
@@ -72,7 +71,7 @@ export function runLayout(req: RunRequest): RunOutput {
   const profiles = record ? new SnapshotRecorder(pCells, linspace(0, tEnd, PROFILE_SNAPSHOTS)) : null;
   const map = record ? new SnapshotRecorder(mCells, linspace(0, tEnd, MAP_ROWS)) : null;
   const observers: Observer[] = [front, arrivals, ...(profiles ? [profiles] : []), ...(map ? [map] : []), ...(req.observers ?? [])];
-  const solver = runSplitTimeLoop(diffusion, reaction, u, h, {
+  const solver = runTimeLoop(stepper, u, h, {
     tEnd,
     dt: problem.resolution.stepYears,
     observers,

@@ -14,9 +14,9 @@ import { describe, expect, it } from 'vitest';
 import { buildLayout } from '../../server/analysis/layout.ts';
 import { chooseResolution, discretise, type TransectProblem } from '../../server/analysis/discretise.ts';
 import { jumpRatio } from '../../server/model/habitat.ts';
-import { makeDiffusionOperator, makeDiffusionStepper } from '../../server/numerics/diffusion.ts';
-import { makeReactionStepper } from '../../server/numerics/reaction.ts';
-import { runSplitTimeLoop } from '../../server/numerics/time-loop.ts';
+import { makeDiffusionOperator } from '../../server/numerics/diffusion.ts';
+import { makeCoupledStepper } from '../../server/numerics/coupled.ts';
+import { runTimeLoop } from '../../server/numerics/time-loop.ts';
 import type { PointScenario } from '../../server/model/scenario.ts';
 import { expectAllClose } from '../helpers/close.ts';
 import { clearingSegment, hostSegment, testPest, testScenario } from '../helpers/scenario.ts';
@@ -36,10 +36,9 @@ function problemOf(s: PointScenario, cellKm: number): TransectProblem {
   return discretise(s, pieces, { ...chooseResolution(s, pieces), cellKm });
 }
 
-/** Pure movement: runs the split time loop with growth and mortality switched off. */
+/** Pure movement: the engine's stepper and time loop with growth and mortality switched off. */
 function runWithoutGrowth(p: TransectProblem, u: Float64Array, tEnd: number, dt: number, onStep?: (u: Float64Array) => void) {
-  const diffusion = makeDiffusionStepper(makeDiffusionOperator(p.grid, p.diffusionAtCells, p.residenceAtCells, p.ends));
-  const reaction = makeReactionStepper({
+  const stepper = makeCoupledStepper(makeDiffusionOperator(p.grid, p.diffusionAtCells, p.residenceAtCells, p.ends), {
     hostAtCells: p.hostAtCells,
     mortalityAtCells: new Float64Array(p.grid.nCells),
     perCapita: () => 0,
@@ -47,7 +46,7 @@ function runWithoutGrowth(p: TransectProblem, u: Float64Array, tEnd: number, dt:
     stiffness: 0,
   });
   const h = Float64Array.from(p.stockingAtCells);
-  return runSplitTimeLoop(diffusion, reaction, u, h, { tEnd, dt, observers: onStep ? [{ handle: (st) => onStep(st.u) }] : [] });
+  return runTimeLoop(stepper, u, h, { tEnd, dt, observers: onStep ? [{ handle: (st) => onStep(st.u) }] : [] });
 }
 
 function mass(p: TransectProblem, u: Float64Array, from = -Infinity): number {
