@@ -4,6 +4,7 @@ import { pointScenario, type Scenario, type PointScenario } from '../model/scena
 import { alleeThreshold, lowDensityRate } from '../model/growth.ts';
 import { linearSpreadSpeed } from './discretise.ts';
 import { analyseBaseline, analyseOption } from './barrier.ts';
+import { analyseMosaic } from './mosaic.ts';
 import { allCautions } from './cautions.ts';
 import { RESULT_VERSION, type OptionResult, type ResultDocument, type UncertaintyResult } from './result.ts';
 import { runEnsemble } from './ensemble.ts';
@@ -58,6 +59,7 @@ export function evaluateScenario(scenario: Scenario, opts: EvaluateOptions = {})
         onProgress: (f, stage) => progress(k + 1, stage)(f),
       }).result,
   );
+  const mosaics = (s.mosaics ?? []).map((m) => analyseMosaic(s, m, { shouldCancel: opts.shouldCancel }));
   let uncertainty: UncertaintyResult | undefined;
   if (scenario.uncertainty && opts.ensemble !== 'skip') {
     uncertainty = runEnsemble(scenario, {
@@ -83,6 +85,7 @@ export function evaluateScenario(scenario: Scenario, opts: EvaluateOptions = {})
     model: modelFacts(s),
     baseline: baseline.summary,
     options: optionResults,
+    ...(mosaics.length ? { mosaics } : {}),
     ...(uncertainty ? { uncertainty } : {}),
     ...(bypass ? { bypass } : {}),
     cautions: allCautions(),

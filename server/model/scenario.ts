@@ -84,6 +84,20 @@ export const BarrierSchema = z.strictObject({
     .optional(),
 });
 
+/** A periodic thinning pattern (strip thinning): host-forest strips alternating with host-free strips. */
+export const MosaicSchema = z.strictObject({
+  name: z.string().min(1, { error: 'must not be empty' }).max(80),
+  /** Host-forest strip width along the direction of spread [m]. */
+  forestM: valueSchema(FIELDS.widthM),
+  /** Host-free strip width [m]. */
+  gapM: valueSchema(FIELDS.widthM),
+  cover: z.enum(BARRIER_COVERS, { error: `must be one of ${BARRIER_COVERS.join(', ')}` }).default('clearing'),
+  /** Host stocking of the forest strips, 0–1 (1 when absent). */
+  stocking: valueSchema(FIELDS.stocking).optional(),
+  /** Also simulate a long pattern and measure the speed (default true). */
+  measure: z.boolean().optional(),
+});
+
 export const NumericsSchema = z.strictObject({
   /** Largest cell [m]; automatic when absent. */
   cellM: valueSchema(FIELDS.cellM).optional(),
@@ -169,6 +183,8 @@ const ScenarioObjectSchema = z.strictObject({
   horizonYears: valueSchema(FIELDS.horizonYears),
   detectionLevel: valueSchema(FIELDS.detectionLevel).default(0.01),
   numerics: NumericsSchema.default({}),
+  /** Thinning patterns whose asymptotic spread rate to report. */
+  mosaics: z.array(MosaicSchema).max(6, { error: 'at most 6 mosaics per scenario' }).optional(),
   uncertainty: UncertaintySchema.optional(),
   transport: TransportSchema.optional(),
 });
@@ -232,7 +248,8 @@ function crossChecks(s: z.infer<typeof ScenarioObjectSchema>): Problem[] {
   });
   const usesNonHost =
     s.transect.segments.some((seg) => seg.habitat === 'non-host-forest') ||
-    (s.barrier?.options ?? []).some((o) => o.cover === 'non-host-forest');
+    (s.barrier?.options ?? []).some((o) => o.cover === 'non-host-forest') ||
+    (s.mosaics ?? []).some((m) => m.cover === 'non-host-forest');
   if (usesNonHost) {
     for (const f of NON_HOST_PEST_FIELDS) {
       if (s.pest[f] === undefined) {

@@ -105,6 +105,17 @@ export function textSummary(doc: ResultDocument): string {
     out.push('', `Option "${o.name}": ${o.cover} from km ${km(o.fromKm)}, ${num(o.widthM)} m wide`, ...optionDecision(o), ...runSummary(o.run, doc.horizonYears));
   }
   out.push(...uncertaintySummary(doc));
+  if (doc.mosaics?.length) {
+    out.push('', 'Thinning patterns (periodic host-forest / host-free strips):');
+    for (const m of doc.mosaics) {
+      out.push(`  ${m.sentence}`);
+      out.push(
+        `    exact (dispersion relation) ${speed(m.exactKmPerYear)}; homogenised estimate ${speed(m.homogenisedKmPerYear)}; ` +
+          `measured in a simulated pattern ${speed(m.measuredKmPerYear)}${m.measuredLogCorrected ? ' (log-corrected fit)' : ''}; unbroken forest ${speed(m.intactKmPerYear)}; ` +
+          `λ(0) = ${num(m.lambda0)} /yr (${m.persists ? 'persists' : 'does not persist'})`,
+      );
+    }
+  }
   out.push('', 'Limits and cautions:', ...doc.cautions.map((c) => `  - ${c}`));
   return out.join('\n');
 }
