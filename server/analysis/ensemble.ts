@@ -11,15 +11,12 @@ import { FIELDS, inRange, type FieldSpec } from '../model/fields.ts';
 import { centralValue, listUncertain, quantile, resolveQuantities, type Distribution } from '../model/quantity.ts';
 import { pointScenario, type PointScenario, type Scenario } from '../model/scenario.ts';
 import { formatPath } from '../model/errors.ts';
-import { alleeThreshold, lowDensityRate } from '../model/growth.ts';
 import { latinHypercube, makeRng } from '../numerics/rng.ts';
-import type { FieldState, Observer } from '../numerics/time-loop.ts';
-import { cellIndexAt } from '../numerics/grid.ts';
 import { buildLayout } from './layout.ts';
-import { discretise, growthRateScale } from './discretise.ts';
+import { discretise } from './discretise.ts';
 import { runLayout } from './simulate.ts';
-import { ArrivalTracker } from './trackers.ts';
-import { BypassTracker, bandWidth, barrierGeometry, effectiveRate, makeSurvivalKernel, sourceWeights, type BarrierGeometry } from './bypass.ts';
+import { DEFAULT_TOLERANCE_M, analyseBaseline, analyseOption } from './barrier.ts';
+import { BypassTracker, bandWidth, barrierGeometry, effectiveRate, makeSurvivalKernel, sourceWeights } from './bypass.ts';
 import { partialRankCorrelation } from './sensitivity.ts';
 import type {
   OptionUncertainty,
@@ -133,18 +130,21 @@ export interface PointOutcome {
   /** Baseline arrival per site [yr]; null: not within the horizon. */
   baselineArrivals: (number | null)[];
   options: {
-    /** Year the front passed the clearing (probe beyond the far edge reached); null: not within the horizon. */
+    /** Year the breeding front got past the clearing (barrier analysis); null: not within the horizon. */
     crossingYears: number | null;
+    /** Arrival per site with the option [yr]; null: not within the horizon, or held (front verified pinned). */
     arrivals: (number | null)[];
-    /** Verified pinned (from the barrier analysis); null when not available. */
-    pinned: boolean | null;
-    /** Critical width [m]; Infinity: no width in the search range pins the front; null: not computed. */
+    /** Front verified pinned (holds indefinitely under the model). */
+    pinned: boolean;
+    /**
+     * Critical width [m]: the narrowest width verified to pin the front (upper end of the bisection bracket);
+     * Infinity: no finite width pins it (no strong Allee effect, or none up to the widest the transect allows);
+     * null: not computed (switched off, or no front approached the clearing in the baseline and no phase-plane value).
+     */
     criticalWidthM: number | null;
     /** Expected established introductions beyond the barrier up to the crossing or the horizon; null without transport. */
     bypassLambda: number | null;
   }[];
-  /** Grid cell-steps simulated (for performance figures). */
-  cellSteps: number;
 }
 
 export interface DrawOutcome extends PointOutcome {
@@ -153,108 +153,65 @@ export interface DrawOutcome extends PointOutcome {
   clipped: boolean[];
 }
 
-/**
- * Distance beyond the far edge of a clearing at which a front counts as having crossed [km]: two
- * movement lengths √(D_host/r) (r the growth-rate scale, or the low-density rate if larger in size).
- * A pinned front leaves a decaying tail just beyond the far edge that may exceed the detection level; the
- * probe keeps such a tail from counting as a crossing.
- */
-export function crossingProbeKm(s: PointScenario): number {
-  const r = Math.max(growthRateScale(s.pest.growth), Math.abs(lowDensityRate(s.pest.growth, 1)));
-  return 2 * Math.sqrt(s.pest.diffusionHost / r);
+/** Critical-width tolerance for ensemble draws [m]: the scenario's, or 2 % of the option width if larger (the spread over draws is far wider). */
+export function drawToleranceM(s: PointScenario, widthM: number): number {
+  return Math.max(s.barrier?.toleranceM ?? DEFAULT_TOLERANCE_M, 0.02 * widthM);
+}
+
+/** Expected number of established introductions beyond an option's clearing, up to `untilYears` (a run of the option layout). */
+export function bypassLambda(s: PointScenario, option: { fromKm: number; widthM: number; cover: 'clearing' | 'non-host-forest' }, untilYears: number, shouldCancel?: () => boolean): number {
+  const t = s.transport!;
+  const pieces = buildLayout(s, option);
+  const { grid, hostAtCells } = discretise(s, pieces);
+  const tracker = new BypassTracker([sourceWeights(grid, hostAtCells, barrierGeometry(s, option), makeSurvivalKernel(t.kernel), bandWidth(s))], effectiveRate(t), s.detectionLevel, []);
+  runLayout({ scenario: s, pieces, record: false, tEnd: Math.max(untilYears, 1e-6), observers: [tracker], shouldCancel });
+  return tracker.total();
 }
 
 /**
- * Density at the probe that counts as a crossing: the detection level, or the Allee threshold of the
- * stand at the probe when that is higher (a group above the threshold grows on its own; a transient tail
- * below it, leaking through the clearing early on, dies out).
+ * Evaluates one point scenario for the ensemble with the barrier analysis (analyseBaseline / analyseOption,
+ * without recorded profiles or width–delay curve): crossing, verified pinning, arrivals and, when asked,
+ * the critical width; plus the bypass expectation when the scenario describes transport.
  */
-export function crossingLevel(s: PointScenario, stocking: number): number {
-  const a = alleeThreshold(s.pest.growth, stocking);
-  return Math.max(s.detectionLevel, a ?? 0);
-}
-
-function discretiseStocking(grid: { segmentAtCells: Int32Array }, pieces: readonly { stocking: number }[], cell: number): number {
-  return pieces[grid.segmentAtCells[cell]].stocking;
-}
-
-/** Records the first time the density at the probe cell beyond a clearing reaches the level. */
-export class CrossingTracker implements Observer {
-  crossingYears: number | null = null;
-  constructor(
-    private readonly cell: number,
-    private readonly level: number,
-  ) {}
-  initialize(s: FieldState): void {
-    if (s.u[this.cell] >= this.level) this.crossingYears = 0;
-  }
-  handle(s: FieldState): void {
-    if (this.crossingYears === null && s.u[this.cell] >= this.level) this.crossingYears = s.t;
-  }
-}
-
-/** Stops a run once every watched condition is met (saves time in ensembles). */
-class StopWhen implements Observer {
-  constructor(private readonly done: () => boolean) {}
-  handle(): boolean {
-    return this.done();
-  }
-}
-
-/**
- * Evaluates one point scenario for the ensemble: baseline run (arrivals) and, per option, a run with the
- * clearing (crossing, arrivals, bypass). Runs stop early once nothing more can change the outcome.
- */
-export function evaluatePoint(s: PointScenario, shouldCancel?: () => boolean): PointOutcome {
-  let cellSteps = 0;
-  const basePieces = buildLayout(s);
-  const sitesKm = s.sites.map((x) => x.atKm);
-  const baseArrivals = new ArrivalTracker(discretise(s, basePieces).grid, sitesKm, s.detectionLevel);
-  const base = runLayout({
-    scenario: s,
-    pieces: basePieces,
-    record: false,
-    shouldCancel,
-    observers: [baseArrivals, new StopWhen(() => baseArrivals.allArrived())],
-  });
-  cellSteps += base.problem.grid.nCells * base.solver.info.steps;
-  const baselineArrivals = [...base.arrivals.arrivalYears];
-  const probeKm = crossingProbeKm(s);
-  const options = (s.barrier?.options ?? []).map((o) => {
-    const geometry = barrierGeometry(s, o);
-    const pieces = buildLayout(s, o);
-    // Same grid as runLayout builds (same layout, automatic or scenario resolution).
-    const { grid, hostAtCells } = discretise(s, pieces);
-    const cell = probeCell(grid, geometry, probeKm);
-    const crossing = new CrossingTracker(cell, crossingLevel(s, discretiseStocking(grid, pieces, cell)));
-    const bypass = s.transport
-      ? new BypassTracker([sourceWeights(grid, hostAtCells, geometry, makeSurvivalKernel(s.transport.kernel), bandWidth(s))], effectiveRate(s.transport), s.detectionLevel, [])
-      : null;
-    const arrivals = new ArrivalTracker(grid, sitesKm, s.detectionLevel);
-    const observers: Observer[] = [crossing, arrivals, ...(bypass ? [bypass] : []), new StopWhen(() => crossing.crossingYears !== null && arrivals.allArrived())];
-    const out = runLayout({ scenario: s, pieces, record: false, shouldCancel, observers });
-    cellSteps += out.problem.grid.nCells * out.solver.info.steps;
+export function evaluatePoint(s: PointScenario, settings: { criticalWidth?: boolean; shouldCancel?: () => boolean } = {}): PointOutcome {
+  const options = s.barrier?.options ?? [];
+  const shouldCancel = settings.shouldCancel;
+  const base = analyseBaseline(s, options, { record: false, shouldCancel });
+  const baselineArrivals = base.summary.arrivals.map((a) => a.arrivalYears);
+  const outcomes = options.map((o) => {
+    const a = analyseOption(s, o, {
+      baseline: base,
+      record: false,
+      widthCurve: false,
+      criticalWidth: settings.criticalWidth ?? true,
+      toleranceM: drawToleranceM(s, o.widthM),
+      shouldCancel,
+    });
+    const r = a.result;
+    const c = a.critical;
+    let criticalWidthM: number | null = null;
+    if (settings.criticalWidth !== false) {
+      if (!c.applicable) criticalWidthM = Infinity;
+      else if (c.bracketM) criticalWidthM = c.bracketM[1];
+      else if (c.runs > 0) criticalWidthM = Infinity;
+      else criticalWidthM = c.phasePlaneM;
+    }
+    const crossingYears = r.crossingYears.option;
     return {
-      crossingYears: crossing.crossingYears,
-      arrivals: [...out.arrivals.arrivalYears],
-      pinned: null,
-      criticalWidthM: null,
-      bypassLambda: bypass ? bypass.total() : null,
+      crossingYears,
+      arrivals: r.sites.map((x) => x.optionArrivalYears),
+      pinned: r.pinned,
+      criticalWidthM,
+      bypassLambda: s.transport ? bypassLambda(s, o, crossingYears ?? s.horizonYears, shouldCancel) : null,
     };
   });
-  return { baselineArrivals, options, cellSteps };
-}
-
-function probeCell(grid: { facesKm: Float64Array; nCells: number }, g: BarrierGeometry, probeKm: number): number {
-  const f = grid.facesKm;
-  const x = g.side === 'right' ? Math.min(g.farKm + probeKm, f[grid.nCells] - 1e-9) : Math.max(g.farKm - probeKm, f[0] + 1e-9);
-  return cellIndexAt(grid as never, x);
+  return { baselineArrivals, options: outcomes };
 }
 
 /** Evaluates draw i of the plan. */
 export function evaluateDraw(scenario: Scenario, plan: EnsemblePlan, i: number, shouldCancel?: () => boolean): DrawOutcome {
   const { point, values, clipped } = drawScenario(scenario, plan, i);
-  return { index: i, values, clipped, ...evaluatePoint(point, shouldCancel) };
+  return { index: i, values, clipped, ...evaluatePoint(point, { criticalWidth: scenario.uncertainty?.criticalWidth ?? true, shouldCancel }) };
 }
 
 /* ------------------------------------------------------------------ summaries */
@@ -379,8 +336,7 @@ export function summariseEnsemble(
   const options: OptionUncertainty[] = (s.barrier?.options ?? []).map((o, m) => {
     const per = outcomes.map((d) => d.options[m]);
     const holds = probability(per.filter((x) => x.crossingYears === null).length, n);
-    const pinnedKnown = per.every((x) => x.pinned !== null);
-    const pinned = pinnedKnown && n > 0 ? probability(per.filter((x) => x.pinned).length, n) : null;
+    const pinned = n > 0 ? probability(per.filter((x) => x.pinned).length, n) : null;
     const withTransport = s.transport ? meanProbability(per.map((x) => (x.crossingYears === null ? Math.exp(-(x.bypassLambda ?? 0)) : 0))) : null;
     probs.push(holds, ...(pinned ? [pinned] : []), ...(withTransport ? [withTransport] : []));
     const sites: SiteUncertainty[] = s.sites.map((site, k) => {
@@ -394,21 +350,27 @@ export function summariseEnsemble(
       probs.push(reached);
       return { name: site.name, atKm: site.atKm, reachedWithinHorizon: reached, arrivalYears: summariseQuantiles(arrivals), delayYears: summariseQuantiles(delays) };
     });
-    const cw = per.map((x) => x.criticalWidthM);
-    const cwKnown = cw.every((x) => x !== null) && n > 0;
-    const cwSummary = cwKnown ? summariseQuantiles(cw as number[]) : null;
-    const sortedCw = cwKnown ? [...(cw as number[])].sort((a, b) => a - b) : [];
+    const cw = per.map((x) => x.criticalWidthM).filter((x): x is number => x !== null);
+    const cwAny = cw.length > 0 && cw.some(Number.isFinite);
+    const cwSummary = cw.length > 0 ? summariseQuantiles(cw) : null;
+    const sortedCw = [...cw].sort((a, b) => a - b);
+    const missing = n - cw.length;
     const criticalWidth = {
-      computed: cwKnown,
-      note: cwKnown
-        ? 'Per-draw critical width; a width W holds in a draw when W is at least that draw’s critical width, so the 90 % and 95 % quantiles are the widths that hold with those probabilities.'
-        : 'Per-draw critical width not computed (needs the barrier analysis for each draw, or switched off in uncertainty.criticalWidth).',
+      computed: cwAny,
+      note: cwAny
+        ? `Critical width per draw (narrowest width verified to pin the front, bisection to ${Math.round(drawToleranceM(s, o.widthM))} m); a width W holds in a draw when it is at least that draw’s critical width, so the 90 % and 95 % quantiles are the widths that hold with those probabilities. ` +
+          `Draws where no finite width pins the front count as beyond every width.` +
+          (missing ? ` ${missing} draw(s) without a value (no front approached the clearing) are left out.` : '')
+        : cw.length > 0
+          ? 'No finite clearing pins the front in any draw (no strong Allee effect, or none within the transect): widths only delay.'
+          : 'Per-draw critical width not computed (switched off in uncertainty.criticalWidth, or no front approached the clearing).',
       widthM: cwSummary,
-      holds90M: cwKnown ? finiteOrNull(sortedQuantile(sortedCw, 0.9)) : null,
-      holds95M: cwKnown ? finiteOrNull(sortedQuantile(sortedCw, 0.95)) : null,
+      holds90M: cwAny ? finiteOrNull(sortedQuantile(sortedCw, 0.9)) : null,
+      holds95M: cwAny ? finiteOrNull(sortedQuantile(sortedCw, 0.95)) : null,
     };
+    const cwKnown = cwAny && missing === 0;
     const outcomeForRanking = cwKnown
-      ? { y: cw as number[], what: { outcome: 'critical width', outcomeKey: 'criticalWidthM', verb: 'depends' } }
+      ? { y: per.map((x) => x.criticalWidthM as number), what: { outcome: 'critical width', outcomeKey: 'criticalWidthM', verb: 'depends' } }
       : { y: per.map((x) => inf(x.crossingYears)), what: { outcome: 'year the front crosses the clearing', outcomeKey: 'crossingYears', verb: 'depends' } };
     const sensitivity = sensitivityRanking(plan, labels, values, outcomeForRanking.y, outcomeForRanking.what);
     const sentences: string[] = [];

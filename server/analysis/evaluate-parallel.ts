@@ -23,7 +23,7 @@ export async function evaluateScenarioParallel(scenario: Scenario, opts: Evaluat
     shouldCancel: opts.shouldCancel,
     onProgress: (f, stage) => opts.onProgress?.(share + (1 - share) * f, stage),
   });
-  const bypass = analyseBypass(pointScenario(scenario), uncertainty, opts.shouldCancel);
+  const bypass = analyseBypass(pointScenario(scenario), doc.options, uncertainty, opts.shouldCancel);
   opts.onProgress?.(1, 'done');
   const { cautions, ...rest } = doc;
   return { ...rest, uncertainty, ...(bypass ? { bypass } : {}), cautions };

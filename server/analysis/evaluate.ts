@@ -68,7 +68,7 @@ export function evaluateScenario(scenario: Scenario, opts: EvaluateOptions = {})
     });
   }
   // When the caller runs the ensemble it also adds the bypass section (which uses the ensemble).
-  const bypass = opts.ensemble === 'skip' && scenario.uncertainty ? undefined : analyseBypass(s, uncertainty, opts.shouldCancel);
+  const bypass = opts.ensemble === 'skip' && scenario.uncertainty ? undefined : analyseBypass(s, optionResults, uncertainty, opts.shouldCancel);
   opts.onProgress?.(1, 'done');
   return {
     resultVersion: RESULT_VERSION,

@@ -335,9 +335,9 @@ export interface OptionUncertainty {
   widthM: number;
   /** Front not past the far edge of the clearing at the horizon. */
   holdsWithinHorizon: ProbabilityEstimate;
-  /** Front verified pinned (holds indefinitely); null until the barrier analysis provides it per draw. */
+  /** Front verified pinned (holds indefinitely), from the barrier analysis of each draw; null only for an empty ensemble. */
   pinned: ProbabilityEstimate | null;
-  /** Year the front passes the far edge of the clearing [yr]. */
+  /** Year the breeding front gets past the clearing [yr] (the barrier analysis's crossing, per draw). */
   crossingYears: QuantileSummary;
   /** Barrier holds against natural spread AND no established human-carried introduction beyond it by the horizon; null without transport. */
   holdsIncludingTransport: ProbabilityEstimate | null;

@@ -16,9 +16,7 @@ import {
   makeSurvivalKernel,
   sourceWeights,
 } from './bypass.ts';
-import { CrossingTracker, crossingLevel, crossingProbeKm } from './ensemble.ts';
-import { cellIndexAt } from '../numerics/grid.ts';
-import type { BypassResult, OptionBypass, UncertaintyResult } from './result.ts';
+import type { BypassResult, OptionBypass, OptionResult, UncertaintyResult } from './result.ts';
 
 /** Extra clearing width used to show how little width helps against transport [km]. */
 const EXTRA_WIDTH_KM = 0.1;
@@ -31,7 +29,12 @@ const pct = (p: number): string => (p > 0 && p < 0.005 ? '< 1 %' : `${Math.round
  * Bypass risk per option from a run at the central values (curve by year, and with the clearing 100 m
  * wider), combined with the ensemble when there is one.
  */
-export function analyseBypass(s: PointScenario, uncertainty: UncertaintyResult | undefined, shouldCancel?: () => boolean): BypassResult | undefined {
+export function analyseBypass(
+  s: PointScenario,
+  optionResults: readonly Pick<OptionResult, 'crossingYears'>[],
+  uncertainty: UncertaintyResult | undefined,
+  shouldCancel?: () => boolean,
+): BypassResult | undefined {
   const t = s.transport;
   if (!t) return undefined;
   const kernel = makeSurvivalKernel(t.kernel);
@@ -50,14 +53,11 @@ export function analyseBypass(s: PointScenario, uncertainty: UncertaintyResult |
       s.detectionLevel,
       years,
     );
-    const f = grid.facesKm;
-    const probeX = g.side === 'right' ? Math.min(g.farKm + crossingProbeKm(s), f[grid.nCells] - 1e-9) : Math.max(g.farKm - crossingProbeKm(s), f[0] + 1e-9);
-    const cell = cellIndexAt(grid, probeX);
-    const crossing = new CrossingTracker(cell, crossingLevel(s, pieces[grid.segmentAtCells[cell]].stocking));
-    runLayout({ scenario: s, pieces, record: false, observers: [tracker, crossing], shouldCancel });
+    runLayout({ scenario: s, pieces, record: false, observers: [tracker], shouldCancel });
     const probability = atLeastOne(tracker.total(0));
     const ens = uncertainty?.options[m];
-    const holdsNatural = ens ? ens.holdsWithinHorizon.p : crossing.crossingYears === null ? 1 : 0;
+    // Natural spread: the barrier analysis's crossing within the horizon (central values), or the ensemble.
+    const holdsNatural = ens ? ens.holdsWithinHorizon.p : optionResults[m]?.crossingYears.option === null ? 1 : 0;
     let ensemble = null;
     let holdsOverall = holdsNatural * (1 - probability);
     if (ens?.holdsIncludingTransport && ens.holdsWithinHorizon.p > 0) {

@@ -24,7 +24,7 @@ export function smallEnsembleScenario(over: Partial<ScenarioInput> = {}, pest: R
     barrier: { lengthKm: 2, options: [{ name: '300 m cut', fromKm: 2.5, widthM: 300 }] },
     horizonYears: 15,
     numerics: { cellM: 100, stepYears: 0.05 },
-    uncertainty: { draws: 32, seed: 3 },
+    uncertainty: { draws: 32, seed: 3, criticalWidth: false },
     transport: { ratePerKm2Year: 0.01, kernel: { shape: 'exponential', meanKm: 10 }, establishmentProbability: 0.3 },
     ...over,
   };
