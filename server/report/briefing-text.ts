@@ -95,14 +95,19 @@ export function bottomLine(doc: ResultDocument, o: OptionResult): string {
   return `No verdict in this result (the barrier analysis did not run). ${parts.length ? `Arrival with this option — ${parts.join('; ')}.` : ''}`.trim();
 }
 
+/** A width in metres: whole metres from 100 m up, else 3 significant digits. */
+export function metres(x: number): string {
+  return Math.abs(x) >= 100 ? integer(x) : num(x, 3);
+}
+
 /** Critical width as a short cell: "380–420 m (phase-plane 401 m)". */
 export function criticalWidthText(o: OptionResult): string {
   const c = o.criticalWidth;
   if (!c) return 'not computed';
   if (!c.applicable) return 'none: no width holds (no Allee effect)';
-  const pp = c.phasePlaneM !== null && Number.isFinite(c.phasePlaneM) ? ` (phase-plane ${num(c.phasePlaneM, 3)} m)` : '';
+  const pp = c.phasePlaneM !== null && Number.isFinite(c.phasePlaneM) ? ` (phase-plane ${metres(c.phasePlaneM)} m)` : '';
   if (!c.bracketM) return `not found${pp}`;
-  return `${num(c.bracketM[0], 4)}–${num(c.bracketM[1], 4)} m${pp}`;
+  return `${metres(c.bracketM[0])}–${metres(c.bracketM[1])} m${pp}`;
 }
 
 /** One row of the options table. */

@@ -9,7 +9,6 @@ import { line as d3line } from 'd3-shape';
 import type { OptionResult } from '../../analysis/result.ts';
 import { num } from '../format.ts';
 import { el, isNum, line, rect, svgRoot, text } from './svg.ts';
-import { fitText } from './text-metrics.ts';
 import { marker, siteStyle, strokeAttrs, type SeriesStyle } from './styles.ts';
 import { BOTTOM_AXIS_SPACE, DEFAULT_WIDTH, axisBottom, axisLeft, bottom, leftAxisSpace, legend, padExtent, right, type Box, type Chart, type ChartSize, type LegendEntry } from './frame.ts';
 
@@ -57,7 +56,8 @@ export function widthDelayChart(option: WidthDelayInput, o: WidthDelayOptions = 
   const xScale = scaleLinear().domain([0, Math.max(...xMaxCandidates) * 1.05]).nice(6);
   const yScale = scaleLinear().domain(yExt);
   const left = leftAxisSpace(yScale);
-  const box: Box = { left, top: 14 + HOLDS_STRIP, width: width - left - 16, height: plotHeight };
+  const showHolds = cw?.applicable !== false || rows.some((r) => r.pinned);
+  const box: Box = { left, top: 14 + (showHolds ? HOLDS_STRIP : 0), width: width - left - 16, height: plotHeight };
   xScale.range([box.left, right(box)]);
   yScale.range([bottom(box), box.top]);
 
@@ -75,18 +75,20 @@ export function widthDelayChart(option: WidthDelayInput, o: WidthDelayOptions = 
     const [a, b] = cw.bracketM;
     const xa = xScale(a);
     const w = Math.max(2, xScale(b) - xa);
-    body += rect(xa, box.top - HOLDS_STRIP, w, box.height + HOLDS_STRIP, { fill: '#cfcfcf', 'fill-opacity': 0.8, stroke: '#555555', 'stroke-width': 0.6 });
+    body += rect(xa, box.top - (showHolds ? HOLDS_STRIP : 0), w, box.height + (showHolds ? HOLDS_STRIP : 0), { fill: '#cfcfcf', 'fill-opacity': 0.8, stroke: '#555555', 'stroke-width': 0.6 });
   }
   if (isNum(cw?.phasePlaneM)) {
     const x = xScale(cw.phasePlaneM);
-    body += line(x, box.top - HOLDS_STRIP, x, bottom(box), { stroke: '#000000', 'stroke-dasharray': '3 2', 'stroke-width': 1.3 });
+    body += line(x, box.top - (showHolds ? HOLDS_STRIP : 0), x, bottom(box), { stroke: '#000000', 'stroke-dasharray': '3 2', 'stroke-width': 1.3 });
   }
   const ox = xScale(option.widthM);
-  body += line(ox, box.top - HOLDS_STRIP, ox, bottom(box), { stroke: '#000000', 'stroke-width': 2 });
+  body += line(ox, box.top - (showHolds ? HOLDS_STRIP : 0), ox, bottom(box), { stroke: '#000000', 'stroke-width': 2 });
   body += text(Math.min(ox + 4, right(box) - 4), box.top + 3, `${num(option.widthM)} m`, { size: 9, valign: 'top', anchor: ox + 50 > right(box) ? 'end' : 'start', bold: true });
-  // "Holds" strip above the plot.
-  body += line(box.left, box.top - 2, right(box), box.top - 2, { stroke: '#bbbbbb', 'stroke-width': 0.6 });
-  body += text(box.left + 3, box.top - HOLDS_STRIP / 2 - 1, 'holds:', { size: 9, valign: 'middle', fill: '#333333' });
+  // "Holds" strip above the plot (only where holding is possible or was seen).
+  if (showHolds) {
+    body += line(box.left, box.top - 2, right(box), box.top - 2, { stroke: '#bbbbbb', 'stroke-width': 0.6 });
+    body += text(box.left + 3, box.top - HOLDS_STRIP / 2 - 1, 'holds:', { size: 9, valign: 'middle', fill: '#333333' });
+  }
   for (const r of rows.filter((r) => r.pinned)) {
     const x = xScale(r.widthM);
     const y = box.top - HOLDS_STRIP / 2 - 1;
@@ -101,13 +103,13 @@ export function widthDelayChart(option: WidthDelayInput, o: WidthDelayOptions = 
     if (d) body += el('path', { d, ...strokeAttrs(l.style) });
     for (const p of l.pts) if (isNum(p[1])) body += marker(l.style, xScale(p[0]), yScale(p[1]), 26);
   });
-  if (cw && !cw.applicable) {
-    body += text(box.left + box.width / 2, bottom(box) - 8, fitText(cw.note, box.width - 16, 9), { anchor: 'middle', size: 9, fill: '#333333' });
-  }
   body += lg.svg;
   const title = `How the delay grows with width${o.key ? ` — option ${o.key}` : ''}`;
-  const hint = cw?.applicable
+  const per100 = cw?.delayPer100mYears;
+  const hint = cw?.applicable !== false
     ? 'Widths right of the shaded bracket hold the front; a width inside the bracket cannot be called either way.'
-    : 'Each extra metre buys only time here: read the delay at your width, no width stops the front for good.';
+    : isNum(per100)
+      ? `No width stops the front for good here; each extra 100 m buys about ${num(per100, 2)} years at the first site beyond the clearing.`
+      : 'No width stops the front for good here: read the delay your width buys.';
   return { svg: svgRoot(width, height, title, hint, body), title, hint, width, height };
 }

@@ -260,6 +260,16 @@ describe('width–delay, host and mosaic charts', () => {
     expect(texts(c.svg).map((t) => t.text)).toContain('800 m');
   });
 
+  it('for a growth form that cannot be held: no "holds" strip, and the hint gives the delay per 100 m', () => {
+    const o = structuredClone(doc.options[1]);
+    o.criticalWidth = { ...o.criticalWidth, applicable: false, bracketM: null, phasePlaneM: null, delayPer100mYears: 0.153 };
+    o.widthDelay = o.widthDelay.map((r) => ({ ...r, pinned: false }));
+    const c = widthDelayChart(o)!;
+    expect(texts(c.svg).map((t) => t.text)).not.toContain('holds:');
+    expect(c.hint).toMatch(/each extra 100 m buys about 0\.15 years/);
+    expect(c.svg).not.toContain('#cfcfcf');
+  });
+
   it('returns null where the barrier analysis has not filled the rows', () => {
     const bare = makeResultFixture({ nOptions: 1, analysis: false }).doc;
     expect(widthDelayChart(bare.options[0])).toBeNull();
