@@ -20,6 +20,7 @@ import openapi from './web/plugins/openapi.ts';
 import { openStore } from './web/store.ts';
 import { loadDemos, makeCatalogue } from './web/catalogue.ts';
 import { makeJobRunner } from './web/jobs.ts';
+import { makeBriefingRenderer } from './web/briefings.ts';
 import { DEFAULT_LIMITS, type WebLimits } from './web/limits.ts';
 import scenarioPages from './web/routes/scenario-pages.ts';
 import runPages from './web/routes/run-pages.ts';
@@ -65,8 +66,9 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
     maxQueued: limits.maxQueued,
     onError: (err) => app.log.error({ err }, 'evaluation failed'),
   });
+  const briefings = makeBriefingRenderer();
   app.addHook('onClose', async () => {
-    await jobs.close();
+    await Promise.all([jobs.close(), briefings.close()]);
     store.close();
   });
 
@@ -85,6 +87,7 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
     catalogue: makeCatalogue(demos, store),
     jobs,
     limits,
+    briefings,
     computeRateLimit: { max: computePerMinute, timeWindow: '1 minute' },
   };
   await app.register(scenarioPages, deps);

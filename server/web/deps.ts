@@ -2,6 +2,7 @@ import type { Store } from './store.ts';
 import type { Catalogue } from './catalogue.ts';
 import type { JobRunner } from './jobs.ts';
 import type { WebLimits } from './limits.ts';
+import type { BriefingRenderer } from './briefings.ts';
 
 /** What route plugins need, passed as plugin options (no globals). */
 export interface WebDeps {
@@ -9,6 +10,7 @@ export interface WebDeps {
   catalogue: Catalogue;
   jobs: JobRunner;
   limits: WebLimits;
+  briefings: BriefingRenderer;
   /** Route config that switches the compute rate limit on. */
   computeRateLimit: { max: number; timeWindow: string };
 }

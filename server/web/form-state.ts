@@ -27,6 +27,12 @@ export const ALL_DIST_PARTS = ['min', 'mode', 'max', 'median', 'spread'] as cons
 
 export type InputKind = 'text' | 'textarea' | 'number' | 'quantity' | 'select' | 'checkbox';
 
+/** An input is used only when another input of the form has one of these values (all conditions must hold). */
+export interface Condition {
+  input: string;
+  values: readonly string[];
+}
+
 /** One input of the form, by its path relative to its group (or to a row). */
 export interface FormFieldDef {
   path: string;
@@ -36,21 +42,27 @@ export interface FormFieldDef {
   label?: string;
   help?: string;
   choices?: readonly { value: string; label: string }[];
-  /** Only used for these growth forms (pest.growth.* fields). */
-  growthForms?: readonly string[];
+  /** Only used when these conditions hold (growth inputs of one growth form, the ensemble settings, ...). */
+  showWhen?: readonly Condition[];
   /** Only used for these habitats (segment columns). */
   habitats?: readonly string[];
+  /** A switch of the form itself (not a scenario field): checked when the scenario has this block. */
+  switchFor?: string;
+  /** Text put in the input when the scenario leaves the field out (a block's documented defaults). */
+  prefill?: string;
 }
 
 /** A table of rows (segments, sites, options) edited with add/remove/reorder buttons. */
 export interface RowGroupDef {
-  key: 'segments' | 'sites' | 'options';
+  key: 'segments' | 'sites' | 'options' | 'kernel';
   prefix: string;
   columns: FormFieldDef[];
   /** Text of each input in a new row. */
   newRow: (index: number) => FormState;
   /** Most rows allowed (mirrors the schema limit). */
   maxRows: number;
+  /** Only used when these conditions hold. */
+  showWhen?: readonly Condition[];
 }
 
 export const HABITAT_CHOICES = [
@@ -75,6 +87,21 @@ export const MATING_CHOICES = [
   { value: 'saturating', label: 'Saturating (half success at the mate-finding scale)' },
   { value: 'exponential', label: 'Exponential (63 % success at the mate-finding scale)' },
 ] as const;
+
+export const KERNEL_CHOICES = [
+  { value: 'exponential', label: 'Exponential, by its mean distance' },
+  { value: 'table', label: 'My own table of distances (rows below)' },
+] as const;
+
+/** Condition: a switch of the form is ticked. */
+function ON(input: string): Condition[] {
+  return [{ input, values: ['on'] }];
+}
+
+/** True when every condition of an input holds for the form as typed. */
+export function applies(showWhen: readonly Condition[] | undefined, state: FormState): boolean {
+  return (showWhen ?? []).every((c) => c.values.includes(state[c.input] ?? ''));
+}
 
 export const END_CHOICES = [
   { value: 'reflecting', label: 'Closed (no insect leaves)' },
@@ -108,20 +135,28 @@ export const FORM_SECTIONS: readonly { id: string; title: string; intro?: string
       { path: 'pest.mortalityOpen', kind: 'quantity', field: 'mortalityOpen' },
       { path: 'pest.hostKillRate', kind: 'quantity', field: 'hostKillRate' },
       { path: 'pest.growth.form', kind: 'select', label: 'Growth form', choices: GROWTH_CHOICES, help: 'How the local population grows in host forest.' },
-      { path: 'pest.growth.rate', kind: 'quantity', field: 'growthRate', growthForms: ['logistic', 'allee-cubic'] },
-      { path: 'pest.growth.alleeThreshold', kind: 'quantity', field: 'alleeThreshold', growthForms: ['allee-cubic'] },
-      { path: 'pest.growth.birthRate', kind: 'quantity', field: 'birthRate', growthForms: ['mate-finding'] },
-      { path: 'pest.growth.deathRate', kind: 'quantity', field: 'deathRate', growthForms: ['mate-finding'] },
-      { path: 'pest.growth.crowding', kind: 'quantity', field: 'crowding', growthForms: ['mate-finding'] },
+      { path: 'pest.growth.rate', kind: 'quantity', field: 'growthRate', showWhen: [{ input: 'pest.growth.form', values: ['logistic', 'allee-cubic'] }] },
+      { path: 'pest.growth.alleeThreshold', kind: 'quantity', field: 'alleeThreshold', showWhen: [{ input: 'pest.growth.form', values: ['allee-cubic'] }] },
+      { path: 'pest.growth.birthRate', kind: 'quantity', field: 'birthRate', showWhen: [{ input: 'pest.growth.form', values: ['mate-finding'] }] },
+      { path: 'pest.growth.deathRate', kind: 'quantity', field: 'deathRate', showWhen: [{ input: 'pest.growth.form', values: ['mate-finding'] }] },
+      { path: 'pest.growth.crowding', kind: 'quantity', field: 'crowding', showWhen: [{ input: 'pest.growth.form', values: ['mate-finding'] }] },
       {
         path: 'pest.growth.mating',
         kind: 'select',
         label: 'Mate finding',
         choices: MATING_CHOICES,
-        growthForms: ['mate-finding'],
+        showWhen: [{ input: 'pest.growth.form', values: ['mate-finding'] }],
         help: 'How the chance of finding a mate falls at low density.',
       },
-      { path: 'pest.growth.mateScale', kind: 'quantity', field: 'mateScale', growthForms: ['mate-finding'] },
+      {
+        path: 'pest.growth.mateScale',
+        kind: 'quantity',
+        field: 'mateScale',
+        showWhen: [
+          { input: 'pest.growth.form', values: ['mate-finding'] },
+          { input: 'pest.growth.mating', values: ['saturating', 'exponential'] },
+        ],
+      },
     ],
   },
   {
@@ -172,6 +207,51 @@ export const FORM_SECTIONS: readonly { id: string; title: string; intro?: string
       { path: 'numerics.stepYears', kind: 'number', field: 'stepYears' },
     ],
   },
+  {
+    id: 'uncertainty',
+    title: 'Uncertainty: an ensemble over the ranges',
+    intro:
+      'Draws every number given as a range (Latin hypercube sampling) and reports probabilities, quantiles and which ' +
+      'parameters matter most. Without ranges the ensemble is one draw. Large ensembles take minutes.',
+    fields: [
+      { path: '_uncertainty', kind: 'checkbox', label: 'Run an ensemble', switchFor: 'uncertainty', help: 'Adds an ensemble over the uncertain parameters to the evaluation.' },
+      { path: 'uncertainty.draws', kind: 'number', field: 'ensembleDraws', showWhen: ON('_uncertainty'), prefill: '1000' },
+      { path: 'uncertainty.seed', kind: 'number', field: 'ensembleSeed', showWhen: ON('_uncertainty'), prefill: '1' },
+      { path: 'uncertainty.targetStandardError', kind: 'number', field: 'targetStandardError', showWhen: ON('_uncertainty'), prefill: '0.02' },
+      {
+        path: 'uncertainty.criticalWidth',
+        kind: 'checkbox',
+        label: 'Critical width in every draw',
+        help: 'Searches the critical width of each option in every draw (the costly part of an ensemble).',
+        showWhen: ON('_uncertainty'),
+        prefill: 'on',
+      },
+    ],
+  },
+  {
+    id: 'transport',
+    title: 'People carrying the pest past the clearing',
+    intro:
+      'Infested firewood, logs, nursery stock and vehicles can carry the pest far beyond any clearing. Describe this ' +
+      'traffic to see how likely it is to bypass each option; movement controls set by the regulator are the tool against it.',
+    fields: [
+      { path: '_transport', kind: 'checkbox', label: 'Include human-carried introductions', switchFor: 'transport', help: 'Adds the bypass-risk estimate to the evaluation.' },
+      { path: 'transport.ratePerKm2Year', kind: 'quantity', field: 'transportRate', showWhen: ON('_transport') },
+      { path: 'transport.establishmentProbability', kind: 'quantity', field: 'establishmentProbability', showWhen: ON('_transport') },
+      { path: 'transport.forwardShare', kind: 'number', field: 'forwardShare', showWhen: ON('_transport'), prefill: '0.5' },
+      { path: 'transport.bandWidthKm', kind: 'number', field: 'bandWidthKm', showWhen: ON('_transport') },
+      {
+        path: 'transport.kernel.shape',
+        kind: 'select',
+        label: 'Transport distances',
+        choices: KERNEL_CHOICES,
+        help: 'How far introductions travel: an exponential distribution by its mean, or your own table of distances.',
+        showWhen: ON('_transport'),
+        prefill: 'exponential',
+      },
+      { path: 'transport.kernel.meanKm', kind: 'quantity', field: 'transportMeanKm', showWhen: [...ON('_transport'), { input: 'transport.kernel.shape', values: ['exponential'] }] },
+    ],
+  },
 ];
 
 export const ROW_GROUPS: Record<RowGroupDef['key'], RowGroupDef> = {
@@ -217,6 +297,20 @@ export const ROW_GROUPS: Record<RowGroupDef['key'], RowGroupDef> = {
       { path: 'cover', kind: 'select', label: 'Ground after cutting', choices: COVER_CHOICES, help: 'Whether the strip is left open or replanted with trees the pest cannot use.' },
     ],
     newRow: (index) => ({ name: `Option ${index + 1}`, fromKm: '', widthM: '', cover: 'clearing' }),
+  },
+  kernel: {
+    key: 'kernel',
+    prefix: 'transport.kernel.points',
+    maxRows: 200,
+    showWhen: [
+      { input: '_transport', values: ['on'] },
+      { input: 'transport.kernel.shape', values: ['table'] },
+    ],
+    columns: [
+      { path: 'distanceKm', kind: 'number', field: 'transportDistanceKm' },
+      { path: 'shareBeyond', kind: 'number', field: 'shareBeyond' },
+    ],
+    newRow: (index) => (index === 0 ? { distanceKm: '0', shareBeyond: '1' } : { distanceKm: '', shareBeyond: '' }),
   },
 };
 
@@ -265,7 +359,10 @@ function writeField(state: FormState, name: string, def: FormFieldDef, v: unknow
 
 /** Every path (relative to the scenario) that the form edits, for separating the settings it does not show. */
 const KNOWN: Record<string, readonly string[]> = {
-  '': ['version', 'title', 'description', 'region', 'pest', 'transect', 'infestation', 'sites', 'barrier', 'horizonYears', 'detectionLevel', 'numerics'],
+  '': [
+    'version', 'title', 'description', 'region', 'pest', 'transect', 'infestation', 'sites', 'barrier', 'horizonYears',
+    'detectionLevel', 'numerics', 'uncertainty', 'transport',
+  ],
   pest: [
     'name', 'illustrative', 'notes', 'diffusionHost', 'diffusionOpen', 'diffusionNonHost', 'edgePreferenceOpen',
     'edgePreferenceNonHost', 'growth', 'hostKillRate', 'mortalityOpen', 'mortalityNonHost',
@@ -276,6 +373,9 @@ const KNOWN: Record<string, readonly string[]> = {
   infestation: ['fromKm', 'toKm', 'density'],
   barrier: ['lengthKm', 'costPerStem', 'costUnit', 'options'],
   numerics: ['cellM', 'stepYears'],
+  uncertainty: ['draws', 'seed', 'targetStandardError', 'criticalWidth'],
+  transport: ['ratePerKm2Year', 'kernel', 'establishmentProbability', 'forwardShare', 'bandWidthKm'],
+  'transport.kernel': ['shape', 'meanKm', 'points'],
 };
 
 /** The parts of a scenario the form does not show (unknown keys at any object level the form owns). */
@@ -301,7 +401,14 @@ export function extraSettings(scenario: unknown): Obj {
 export function scenarioToForm(scenario: unknown): FormState {
   const state: FormState = {};
   for (const section of FORM_SECTIONS) {
-    for (const def of section.fields) writeField(state, def.path, def, getPath(scenario, def.path));
+    for (const def of section.fields) {
+      if (def.switchFor) state[def.path] = getPath(scenario, def.switchFor) === undefined ? '' : 'on';
+      else {
+        const v = getPath(scenario, def.path);
+        if (v === undefined && def.prefill !== undefined) state[def.path] = def.prefill;
+        else writeField(state, def.path, def, v);
+      }
+    }
   }
   if (!state['pest.growth.mating']) state['pest.growth.mating'] = 'none';
   for (const key of ['transect.ends.left', 'transect.ends.right']) if (!state[key]) state[key] = 'reflecting';
@@ -430,15 +537,19 @@ export function formToScenario(state: FormState): { input: Obj; problems: Proble
     }
   }
   const input: Obj = {};
-  const form = state['pest.growth.form'];
   for (const section of FORM_SECTIONS) {
     for (const def of section.fields) {
-      if (def.growthForms && !def.growthForms.includes(form)) continue;
-      if (def.path === 'pest.growth.mateScale' && state['pest.growth.mating'] === 'none') continue;
+      if (def.switchFor) {
+        // A ticked switch with nothing else filled in still makes the block (its fields have defaults).
+        if (state[def.path] === 'on') setPath(input, def.switchFor, {});
+        continue;
+      }
+      if (!applies(def.showWhen, state)) continue;
       setPath(input, def.path, readField(state, def.path, def));
     }
   }
   for (const group of Object.values(ROW_GROUPS)) {
+    if (!applies(group.showWhen, state)) continue;
     const rows = rowIndices(state, group.prefix).map((i) => {
       const row: Obj = {};
       const habitat = state[`${group.prefix}[${i}].habitat`];
@@ -469,7 +580,7 @@ export type RowAction =
 
 /** Parses an action button value such as `add:segments` or `remove:sites:2`; undefined for other values. */
 export function parseRowAction(value: string | undefined): RowAction | undefined {
-  const m = /^(add|remove|up|down):(segments|sites|options)(?::(\d{1,4}))?$/.exec(value ?? '');
+  const m = /^(add|remove|up|down):(segments|sites|options|kernel)(?::(\d{1,4}))?$/.exec(value ?? '');
   if (!m) return undefined;
   const group = m[2] as RowGroupDef['key'];
   if (m[1] === 'add') return { kind: 'add', group };

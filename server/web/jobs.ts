@@ -70,7 +70,7 @@ const KEEP_FINISHED = 200;
 const HARD_STOP_GRACE_MS = 15_000;
 
 /** The tsx loader, so worker threads can load the TypeScript worker file (also under vitest). */
-function tsxLoaderUrl(): string {
+export function tsxLoaderUrl(): string {
   return pathToFileURL(createRequire(import.meta.url).resolve('tsx')).href;
 }
 
@@ -184,7 +184,7 @@ export function makeJobRunner(opts: JobRunnerOptions): JobRunner {
           id: randomUUID(),
           status: 'queued',
           fraction: 0,
-          stage: 'waiting for a free worker',
+          stage: 'in the queue',
           title: scenario.title,
           scenarioRef,
           createdAt: new Date().toISOString(),

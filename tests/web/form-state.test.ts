@@ -64,6 +64,50 @@ describe('scenario → form text → scenario', () => {
   });
 });
 
+describe('ensemble and transport blocks', () => {
+  const withBlocks = (kernel: Record<string, unknown>) => {
+    const raw = JSON.parse(readFileSync(new URL('quick-check.json', fixtureDir), 'utf8'));
+    raw.uncertainty = { draws: 200, seed: 7, targetStandardError: 0.03, criticalWidth: false };
+    raw.transport = { ratePerKm2Year: { dist: 'uniform', min: 0.001, max: 0.01 }, kernel, establishmentProbability: 0.2, forwardShare: 0.4, bandWidthKm: 5 };
+    return parseScenario(raw);
+  };
+
+  it('come back unchanged, with an exponential or a table kernel', () => {
+    for (const kernel of [
+      { shape: 'exponential', meanKm: 20 },
+      { shape: 'table', points: [{ distanceKm: 0, shareBeyond: 1 }, { distanceKm: 10, shareBeyond: 0.3 }, { distanceKm: 50, shareBeyond: 0 }] },
+    ]) {
+      const s = withBlocks(kernel);
+      const state = scenarioToForm(s);
+      expect(state._uncertainty).toBe('on');
+      expect(state._transport).toBe('on');
+      expect(parseScenario(formToScenario(state).input)).toEqual(s);
+    }
+  });
+
+  it('are left out when their switch is off, and get their defaults when it is ticked', () => {
+    const state = scenarioToForm(withBlocks({ shape: 'exponential', meanKm: 20 }));
+    state._uncertainty = '';
+    delete state._transport;
+    const off = parseScenario(formToScenario(state).input);
+    expect(off.uncertainty).toBeUndefined();
+    expect(off.transport).toBeUndefined();
+    const fresh = scenarioToForm(quick());
+    expect(fresh['uncertainty.draws']).toBe('1000');
+    expect(fresh['uncertainty.criticalWidth']).toBe('on');
+    fresh._uncertainty = 'on';
+    expect(parseScenario(formToScenario(fresh).input).uncertainty).toEqual({ draws: 1000, seed: 1, targetStandardError: 0.02, criticalWidth: true });
+  });
+
+  it('a kernel table row that grows is reported in its row', () => {
+    const state = scenarioToForm(withBlocks({ shape: 'table', points: [{ distanceKm: 0, shareBeyond: 1 }, { distanceKm: 10, shareBeyond: 0.3 }] }));
+    state['transport.kernel.points[1].shareBeyond'] = '1.2';
+    const problems = problemsOf(state);
+    expect(problems[0]).toMatchObject({ path: 'transport.kernel.points[1].shareBeyond', value: 1.2 });
+    expect(formView(state, problems).kernel.rows[1].cells[1].errors[0]).toMatch(/≤ 1/);
+  });
+});
+
 describe('reading typed numbers', () => {
   it.each([
     ['12', 12],

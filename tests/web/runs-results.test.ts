@@ -11,6 +11,7 @@ import { parseScenarioText } from '../../server/model/scenario.ts';
 import { evaluateScenario } from '../../server/analysis/evaluate.ts';
 import type { ResultDocument } from '../../server/analysis/result.ts';
 import { TOOL } from '../../server/version.ts';
+import { readPdfText } from '../helpers/pdf.ts';
 
 const quickText = readFileSync(new URL('./fixtures/scenarios/quick-check.json', import.meta.url), 'utf8');
 const quick = () => parseScenarioText(quickText);
@@ -159,6 +160,21 @@ describe('the result page', () => {
     expect(parseScenarioText(scenario.body)).toEqual(quick());
   });
 
+  it('the PDF briefing button gives the briefing of this result (drawn in a worker thread)', async () => {
+    const page = await t.app.inject(resultUrl);
+    expect(page.body).toContain(`href="${resultUrl}/briefing.pdf"`);
+    const r = await t.app.inject(`${resultUrl}/briefing.pdf`);
+    expect(r.statusCode).toBe(200);
+    expect(r.headers['content-type']).toBe('application/pdf');
+    expect(r.headers['content-disposition']).toMatch(/^attachment; filename="briefing-[0-9a-f]{8}\.pdf"$/);
+    const pages = await readPdfText(r.rawPayload);
+    const text = pages.map((p) => p.text).join(' ');
+    expect(text).toContain('Ossenvale test strip');
+    expect(text).toMatch(/regulator/);
+    expect((await t.app.inject(`/api/results/${resultUrl.split('/')[2]}/briefing.pdf`)).headers['content-type']).toBe('application/pdf');
+    expect((await t.app.inject('/results/00000000-0000-0000-0000-000000000000/briefing.pdf')).statusCode).toBe(404);
+  });
+
   it('lists past results, and deletes one after confirmation', async () => {
     const list = await t.app.inject('/results');
     expect(list.body).toContain(resultUrl);
@@ -167,6 +183,26 @@ describe('the result page', () => {
     expect(del.statusCode).toBe(303);
     expect((await t.app.inject(resultUrl)).statusCode).toBe(404);
     expect((await t.app.inject('/results/not-a-result')).statusCode).toBe(404);
+  });
+});
+
+describe('ensemble and transport', () => {
+  it('an evaluation with an uncertainty and a transport block shows both sections with the regulator note', async () => {
+    const raw = JSON.parse(quickText);
+    raw.pest.diffusionOpen = { dist: 'uniform', min: 0.1, max: 0.5 };
+    raw.uncertainty = { draws: 8, criticalWidth: false };
+    raw.transport = { ratePerKm2Year: 0.01, kernel: { shape: 'exponential', meanKm: 5 }, establishmentProbability: 0.2 };
+    const r = await t.app.inject({ method: 'POST', url: '/api/evaluations', payload: { scenario: raw } });
+    const job = await waitForJob(t.app, r.json().id);
+    expect(job.status).toBe('done');
+    const doc = (await t.app.inject(`/api/results/${job.resultId}`)).json().document as ResultDocument;
+    const html = (await t.app.inject(`/results/${job.resultId}`)).body;
+    expect(html).toContain('Uncertainty: the ensemble over the ranges');
+    expect(html).toContain(`${doc.uncertainty!.completed} of 8 draws (Latin hypercube, seed 1)`);
+    const holds = doc.uncertainty!.options[0].holdsWithinHorizon;
+    expect(html).toContain(`${(100 * holds.p).toFixed(1)} % ± ${(100 * holds.standardError).toFixed(1)}`);
+    expect(html).toContain('People carrying the pest past the clearing');
+    expect(html).toContain(doc.bypass!.regulatorNote.replace(/'/g, '&#x27;'));
   });
 });
 

@@ -1,5 +1,6 @@
 // Small enhancements of the scenario form; the form works fully without them.
-// - shows only the growth inputs of the chosen growth form, and stocking/stems only for host forest rows;
+// - shows only the inputs that apply (growth form, mating, ensemble and transport switches), and
+//   greys stocking/stems out for rows that are not host forest;
 // - shows only the inputs of the chosen distribution kind;
 // - redraws the transect strip while the layout is typed.
 (function () {
@@ -9,19 +10,23 @@
 
   function words(s) { return (s || '').split(' ').filter(Boolean); }
 
-  // ---- growth form ----
-  var growthSelect = form.querySelector('[data-growth-select]');
-  function showGrowth() {
-    if (!growthSelect) return;
-    var form_ = growthSelect.value;
-    form.querySelectorAll('.field[data-growth]').forEach(function (el) {
-      var on = words(el.getAttribute('data-growth')).indexOf(form_) >= 0;
+  // ---- inputs used only under conditions (growth form, mating, ensemble and transport switches) ----
+  function valueOf(name) {
+    var el = form.elements.namedItem(name);
+    if (!el) return '';
+    if (el.type === 'checkbox') return el.checked ? 'on' : '';
+    return 'value' in el ? String(el.value) : '';
+  }
+  function showConditional() {
+    form.querySelectorAll('[data-show-when]').forEach(function (el) {
+      var conditions;
+      try { conditions = JSON.parse(el.getAttribute('data-show-when')); } catch (e) { return; }
+      var on = conditions.every(function (c) { return c.values.indexOf(valueOf(c.input)) >= 0; });
       el.hidden = !on;
       el.classList.toggle('inactive', !on);
     });
   }
-  if (growthSelect) growthSelect.addEventListener('change', showGrowth);
-  showGrowth();
+  showConditional();
 
   // ---- habitat of each segment row ----
   function showHabitat(row) {
@@ -122,6 +127,7 @@
     var t = e.target;
     if (t.matches && t.matches('[data-dist-kind]')) showDist(t.closest('[data-dist]'));
     if (t.name && /\.habitat$/.test(t.name)) showHabitat(t.closest('tr'));
+    showConditional();
     redraw();
   });
 })();

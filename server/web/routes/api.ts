@@ -12,6 +12,7 @@ import { checkLimits } from '../limits.ts';
 import { savedId } from '../catalogue.ts';
 import { conflict, notFound } from '../plugins/errors.ts';
 import { jobEvents, jobPayload } from './run-pages.ts';
+import { briefingName } from './result-pages.ts';
 import type { WebDeps } from '../deps.ts';
 
 const ProblemSchema = z.object({ path: z.string(), value: z.unknown(), message: z.string() });
@@ -217,6 +218,26 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
       const r = store.getResult(req.params.id);
       if (!r) throw notFound('This result');
       return r as unknown as z.infer<typeof ResultOut>;
+    },
+  );
+
+  api.get(
+    '/api/results/:id/briefing.pdf',
+    {
+      config: { rateLimit: deps.computeRateLimit },
+      schema: {
+        tags: ['results'],
+        summary: 'The PDF briefing of a stored result',
+        params: IdParams,
+        produces: ['application/pdf'],
+        response: { 200: z.any().describe('PDF file'), 404: ErrorSchema },
+      },
+    },
+    async (req, reply) => {
+      const r = store.getResult(req.params.id);
+      if (!r) throw notFound('This result');
+      const pdf = await deps.briefings.render(r.document, r.scenario);
+      return reply.type('application/pdf').header('content-disposition', `attachment; filename="${briefingName(r.id)}"`).send(pdf);
     },
   );
 

@@ -12,6 +12,8 @@ type IdParams = { Params: { id: string } };
 
 /** Download name stem of a result: the first part of its id (ids are random, so this is unique enough). */
 const stem = (id: string) => `result-${id.slice(0, 8)}`;
+/** Download name of a result's PDF briefing. */
+export const briefingName = (id: string) => `briefing-${id.slice(0, 8)}.pdf`;
 
 export default async function resultPages(app: FastifyInstance, deps: WebDeps) {
   const { store } = deps;
@@ -32,7 +34,7 @@ export default async function resultPages(app: FastifyInstance, deps: WebDeps) {
 
   app.get<IdParams>('/results/:id', async (req, reply) => {
     const stored = resultOr404(req.params.id);
-    return reply.page('result', { r: resultPageView(stored), title: `Results: ${stored.title}` });
+    return reply.page('result', { r: resultPageView(stored, { briefingUrl: `/results/${stored.id}/briefing.pdf` }), title: `Results: ${stored.title}` });
   });
 
   app.get<IdParams>('/results/:id/compare', async (req, reply) => {
@@ -62,6 +64,15 @@ export default async function resultPages(app: FastifyInstance, deps: WebDeps) {
       .type('application/json; charset=utf-8')
       .header('content-disposition', `attachment; filename="${stem(stored.id)}-scenario.json"`)
       .send(`${JSON.stringify(stored.scenario, null, 2)}\n`);
+  });
+
+  app.get<IdParams>('/results/:id/briefing.pdf', { config: { rateLimit: deps.computeRateLimit } }, async (req, reply) => {
+    const stored = resultOr404(req.params.id);
+    const pdf = await deps.briefings.render(stored.document, stored.scenario);
+    return reply
+      .type('application/pdf')
+      .header('content-disposition', `attachment; filename="${briefingName(stored.id)}"`)
+      .send(pdf);
   });
 
   app.get<IdParams>('/results/:id/delete', async (req, reply) => {

@@ -9,6 +9,7 @@ import { integer, km, num, percent, speed, years } from '../../report/format.ts'
 import type { StoredResult } from '../store.ts';
 import { compareChart, resultCharts } from './charts.ts';
 import { optionKey } from '../../report/charts/index.ts';
+import { bypassView, uncertaintyView } from './uncertainty-view.ts';
 
 export const VERDICT_WORDS: Record<VerdictKind, { label: string; tone: string }> = {
   holds: { label: 'Holds', tone: 'good' },
@@ -288,7 +289,8 @@ export function resultPageView(stored: StoredResult, extras: { briefingUrl?: str
     mosaics: mosaicTable(doc),
     numerics: numericsTable(doc),
     charts: resultCharts(doc),
-    extraSections: [doc.uncertainty ? 'uncertainty' : '', doc.bypass ? 'bypass risk' : ''].filter(Boolean),
+    uncertainty: uncertaintyView(doc),
+    bypass: bypassView(doc),
   };
 }
 

@@ -13,6 +13,7 @@ import {
   HABITAT_CHOICES,
   QUANTITY_KINDS,
   ROW_GROUPS,
+  applies,
   readNumber,
   rowIndices,
   type FormFieldDef,
@@ -49,11 +50,11 @@ export interface FieldView {
   source: string;
   errors: string[];
   invalid: boolean;
-  /** Space-separated growth forms this input applies to ('' = all). */
-  growthForms: string;
+  /** JSON of the conditions under which this input is used ('' = always); read by the page script. */
+  showWhen: string;
   /** Space-separated habitats this input applies to ('' = all). */
   habitats: string;
-  /** Not used with the current growth form or habitat (greyed out; the page script hides it). */
+  /** Not used as the form stands (another growth form or habitat, a switch off): greyed out; the page script hides it. */
   inactive: boolean;
   /** Quantity inputs: the distribution part. */
   dist: { kind: string; open: boolean; kinds: ChoiceView[]; parts: { id: string; name: string; label: string; value: string; kinds: string }[] } | null;
@@ -75,6 +76,8 @@ export interface TableView {
   errors: string[];
   canAdd: boolean;
   addLabel: string;
+  showWhen: string;
+  inactive: boolean;
 }
 
 export interface ProblemView {
@@ -89,6 +92,7 @@ export interface FormView {
   segments: TableView;
   sites: TableView;
   options: TableView;
+  kernel: TableView;
   strip: StripView;
   problems: ProblemView[];
   /** Plain-text listing of the problems (for the page title and logs). */
@@ -146,7 +150,7 @@ function defaultText(spec: FieldSpec | undefined): string {
   return spec.defaultValue !== undefined ? `${spec.defaultValue}${spec.unit ? ` ${spec.unit}` : ''}` : '';
 }
 
-function fieldView(def: FormFieldDef, name: string, state: FormState, board: ProblemBoard, ctx: { growthForm?: string; habitat?: string } = {}): FieldView {
+function fieldView(def: FormFieldDef, name: string, state: FormState, board: ProblemBoard, ctx: { habitat?: string } = {}): FieldView {
   const spec = specOf(def);
   const id = inputId(name);
   const label = def.label ?? spec?.label ?? def.path;
@@ -194,11 +198,9 @@ function fieldView(def: FormFieldDef, name: string, state: FormState, board: Pro
     source: spec?.source ?? '',
     errors,
     invalid: errors.length > 0,
-    growthForms: (def.growthForms ?? []).join(' '),
+    showWhen: def.showWhen ? JSON.stringify(def.showWhen) : '',
     habitats: (def.habitats ?? []).join(' '),
-    inactive:
-      (def.growthForms !== undefined && !def.growthForms.includes(ctx.growthForm ?? '')) ||
-      (def.habitats !== undefined && !def.habitats.includes(ctx.habitat ?? '')),
+    inactive: !applies(def.showWhen, state) || (def.habitats !== undefined && !def.habitats.includes(ctx.habitat ?? '')),
     dist,
   };
 }
@@ -230,7 +232,9 @@ function tableView(group: RowGroupDef, state: FormState, board: ProblemBoard): T
     rows,
     errors,
     canAdd: rows.length < group.maxRows,
-    addLabel: { segments: 'Add a segment', sites: 'Add a site', options: 'Add an option' }[group.key],
+    addLabel: { segments: 'Add a segment', sites: 'Add a site', options: 'Add an option', kernel: 'Add a row' }[group.key],
+    showWhen: group.showWhen ? JSON.stringify(group.showWhen) : '',
+    inactive: !applies(group.showWhen, state),
   };
 }
 
@@ -239,17 +243,20 @@ export function formView(state: FormState, problems: Problem[] = []): FormView {
   const board = new ProblemBoard(problems);
   const sections: FormView['sections'] = {};
   for (const s of FORM_SECTIONS) {
-    const fields = s.fields.map((def) => fieldView(def, def.path, state, board, { growthForm: state['pest.growth.form'] }));
+    const fields = s.fields.map((def) => fieldView(def, def.path, state, board));
     sections[s.id] = { id: s.id, title: s.title, intro: s.intro ?? '', fields, errors: [] };
   }
   const segments = tableView(ROW_GROUPS.segments, state, board);
   const sites = tableView(ROW_GROUPS.sites, state, board);
   const options = tableView(ROW_GROUPS.options, state, board);
+  const kernel = tableView(ROW_GROUPS.kernel, state, board);
   // Problems about a whole part (e.g. "infestation must overlap a host-forest segment").
   for (const s of FORM_SECTIONS) sections[s.id].errors = board.take(s.id, `section-${s.id}`, s.title);
   sections.transect.errors.push(...board.take('transect', 'section-transect', 'Transect'));
   sections.pest.errors.push(...board.take('pest', 'section-pest', 'Pest profile'));
   sections.barrier.errors.push(...board.take('barrier', 'section-barrier', 'Barrier options'));
+  sections.uncertainty.errors.push(...board.take('uncertainty', 'section-uncertainty', 'Uncertainty'));
+  sections.transport.errors.push(...board.take('transport', 'section-transport', 'Human-carried introductions'));
   const extraKeys = (() => {
     try {
       return Object.keys(JSON.parse(state[EXTRA_INPUT] || '{}') as object);
@@ -262,6 +269,7 @@ export function formView(state: FormState, problems: Problem[] = []): FormView {
     segments,
     sites,
     options,
+    kernel,
     strip: stripFromForm(state),
     problems: problems.map((p) => {
       const where = board.placed.get(p);

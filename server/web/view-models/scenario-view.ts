@@ -93,6 +93,17 @@ export function scenarioView(entry: CatalogueEntry) {
           })),
         }
       : null,
+    ensemble: s.uncertainty
+      ? `${integer(s.uncertainty.draws)} draws, seed ${s.uncertainty.seed}, target standard error ${num(s.uncertainty.targetStandardError)}` +
+        `${s.uncertainty.criticalWidth ? ', critical width in every draw' : ''}`
+      : '',
+    transport: s.transport
+      ? `${quantityText(s.transport.ratePerKm2Year, FIELDS.transportRate)}; distances ` +
+        (s.transport.kernel.shape === 'exponential'
+          ? `exponential, mean ${quantityText(s.transport.kernel.meanKm, FIELDS.transportMeanKm)}`
+          : `from a table of ${s.transport.kernel.points.length} rows`) +
+        `; establishment probability ${quantityText(s.transport.establishmentProbability, FIELDS.establishmentProbability)}`
+      : '',
     horizon: `${num(s.horizonYears)} yr`,
     detection: `${num(s.detectionLevel)} of capacity`,
     uncertain: JSON.stringify(s).includes('"dist"'),
