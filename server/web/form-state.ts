@@ -25,7 +25,7 @@ export const DIST_PARTS: Record<Exclude<QuantityKind, 'value'>, readonly string[
 };
 export const ALL_DIST_PARTS = ['min', 'mode', 'max', 'median', 'spread'] as const;
 
-export type InputKind = 'text' | 'textarea' | 'number' | 'quantity' | 'select' | 'checkbox';
+export type InputKind = 'text' | 'textarea' | 'number' | 'numberList' | 'quantity' | 'select' | 'checkbox';
 
 /** An input is used only when another input of the form has one of these values (all conditions must hold). */
 export interface Condition {
@@ -195,6 +195,14 @@ export const FORM_SECTIONS: readonly { id: string; title: string; intro?: string
       { path: 'barrier.lengthKm', kind: 'number', field: 'barrierLengthKm' },
       { path: 'barrier.costPerStem', kind: 'number', field: 'costPerStem' },
       { path: 'barrier.costUnit', kind: 'text', label: 'Cost unit', help: 'Currency or unit printed next to costs, e.g. “credits” (optional).' },
+      { path: 'barrier.toleranceM', kind: 'number', field: 'widthToleranceM', prefill: '10' },
+      {
+        path: 'barrier.curveWidthsM',
+        kind: 'numberList',
+        field: 'widthM',
+        label: 'Widths for the delay curve',
+        help: 'Clearing widths at which the delay (or pinning) is computed, separated by commas. Leave empty for six widths up to twice each option’s width.',
+      },
     ],
   },
   {
@@ -352,6 +360,9 @@ function writeField(state: FormState, name: string, def: FormFieldDef, v: unknow
     case 'checkbox':
       state[name] = v === true ? 'on' : '';
       return;
+    case 'numberList':
+      state[name] = Array.isArray(v) ? v.map(toText).join(', ') : toText(v);
+      return;
     default:
       state[name] = toText(v);
   }
@@ -371,7 +382,7 @@ const KNOWN: Record<string, readonly string[]> = {
   transect: ['originKm', 'segments', 'ends'],
   'transect.ends': ['left', 'right'],
   infestation: ['fromKm', 'toKm', 'density'],
-  barrier: ['lengthKm', 'costPerStem', 'costUnit', 'options'],
+  barrier: ['lengthKm', 'costPerStem', 'costUnit', 'options', 'toleranceM', 'curveWidthsM'],
   numerics: ['cellM', 'stepYears'],
   uncertainty: ['draws', 'seed', 'targetStandardError', 'criticalWidth'],
   transport: ['ratePerKm2Year', 'kernel', 'establishmentProbability', 'forwardShare', 'bandWidthKm'],
@@ -477,6 +488,12 @@ function readField(state: FormState, name: string, def: FormFieldDef): unknown {
       return readQuantity(state, name);
     case 'checkbox':
       return state[name] === 'on' || state[name] === 'true' || state[name] === '1';
+    case 'numberList': {
+      const text = (state[name] ?? '').trim();
+      if (text === '') return undefined;
+      // Commas or semicolons separate entries; a decimal comma is not possible here, so "0,5" is two numbers.
+      return text.split(/[;,\s]+/).filter(Boolean).map((x) => readNumber(x));
+    }
     case 'select':
       return state[name] === '' ? undefined : state[name];
     default:
@@ -562,12 +579,11 @@ export function formToScenario(state: FormState): { input: Obj; problems: Proble
     });
     if (rows.length || group.key !== 'options') setPath(input, group.prefix, rows);
   }
-  // No barrier at all when nothing about it was filled in.
+  // No barrier at all when neither its length nor any option was given (its other settings then do not apply).
   const barrier = input.barrier as Obj | undefined;
-  if (barrier && Object.keys(barrier).every((k) => k === 'options' && (barrier.options as unknown[]).length === 0)) {
+  if (barrier && barrier.lengthKm === undefined && !(Array.isArray(barrier.options) && barrier.options.length > 0)) {
     delete input.barrier;
   }
-  if (barrier && Array.isArray(barrier.options) === false) barrier.options = [];
   return { input: deepMerge(extra, input) as Obj, problems };
 }
 

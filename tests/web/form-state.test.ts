@@ -108,6 +108,22 @@ describe('ensemble and transport blocks', () => {
   });
 });
 
+describe('lists of numbers', () => {
+  it('the widths of the delay curve round-trip, and a bad entry is reported by its index', () => {
+    const s = quick();
+    s.barrier!.curveWidthsM = [100, 250.5, 600];
+    const state = scenarioToForm(s);
+    expect(state['barrier.curveWidthsM']).toBe('100, 250.5, 600');
+    expect(parseScenario(formToScenario(state).input)).toEqual(s);
+    state['barrier.curveWidthsM'] = '100; wide';
+    const problems = problemsOf(state);
+    expect(problems).toEqual([expect.objectContaining({ path: 'barrier.curveWidthsM[1]', value: 'wide' })]);
+    const field = formView(state, problems).sections.barrier.fields.find((f) => f.name === 'barrier.curveWidthsM')!;
+    expect(field.errors[0]).toMatch(/^entry 2: must be > 0/);
+    expect(field.value).toBe('100; wide');
+  });
+});
+
 describe('reading typed numbers', () => {
   it.each([
     ['12', 12],

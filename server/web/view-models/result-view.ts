@@ -139,7 +139,11 @@ function criticalWidthTable(doc: ResultDocument): TableView {
       const extra = c.delayPer100mYears !== null ? ` About ${years(c.delayPer100mYears)} yr of delay per extra 100 m.` : '';
       return {
         label: keyed(doc, k),
-        cells: [bracket, c.phasePlaneM === null ? '—' : `${integer(c.phasePlaneM)} m`, `${c.note}${extra}`],
+        cells: [
+          bracket,
+          `${c.phasePlaneM === null ? '—' : `${integer(c.phasePlaneM)} m`}${c.phasePlaneNote ? ` (${c.phasePlaneNote})` : ''}`,
+          `${c.note}${extra}`,
+        ],
       };
     }),
   };

@@ -35,6 +35,7 @@ export interface FieldView {
   isText: boolean;
   isTextarea: boolean;
   isNumber: boolean;
+  isNumberList: boolean;
   isQuantity: boolean;
   isSelect: boolean;
   isCheckbox: boolean;
@@ -131,7 +132,8 @@ class ProblemBoard {
       const p = this.left[i];
       if (p.path === path || p.path.startsWith(`${path}.`) || p.path.startsWith(`${path}[`)) {
         const sub = p.path.slice(path.length).replace(/^\./, '');
-        const subLabel = sub === 'dist' ? 'distribution' : (PART_LABELS[sub] ?? sub);
+        const entry = /^\[(\d+)\]$/.exec(sub);
+        const subLabel = sub === 'dist' ? 'distribution' : entry ? `entry ${Number(entry[1]) + 1}` : (PART_LABELS[sub] ?? sub);
         out.push(sub ? `${subLabel}: ${p.message}` : p.message);
         this.placed.set(p, { anchor, label });
         this.left.splice(i--, 1);
@@ -182,6 +184,7 @@ function fieldView(def: FormFieldDef, name: string, state: FormState, board: Pro
     isText: def.kind === 'text',
     isTextarea: def.kind === 'textarea',
     isNumber: def.kind === 'number',
+    isNumberList: def.kind === 'numberList',
     isQuantity: def.kind === 'quantity',
     isSelect: def.kind === 'select',
     isCheckbox: def.kind === 'checkbox',
