@@ -195,7 +195,7 @@ export const FORM_SECTIONS: readonly { id: string; title: string; intro?: string
       { path: 'barrier.lengthKm', kind: 'number', field: 'barrierLengthKm' },
       { path: 'barrier.costPerStem', kind: 'number', field: 'costPerStem' },
       { path: 'barrier.costUnit', kind: 'text', label: 'Cost unit', help: 'Currency or unit printed next to costs, e.g. “credits” (optional).' },
-      { path: 'barrier.toleranceM', kind: 'number', field: 'widthToleranceM', prefill: '10' },
+      { path: 'barrier.toleranceM', kind: 'number', field: 'widthToleranceM' },
       {
         path: 'barrier.curveWidthsM',
         kind: 'numberList',
