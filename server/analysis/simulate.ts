@@ -21,6 +21,11 @@ export interface RunRequest {
   record?: boolean;
   shouldCancel?: () => boolean;
   onProgress?: (fraction: number) => void;
+  /**
+   * Initial density per cell in place of the infestation stretch (e.g. a smooth profile for a verification
+   * run, or a state to continue from); must return nCells non-negative values.
+   */
+  initialDensity?: (problem: TransectProblem) => Float64Array;
 }
 
 export interface RunOutput {
@@ -61,7 +66,8 @@ export function runLayout(req: RunRequest): RunOutput {
     hostKillRate: problem.hostKillRate,
     stiffness: problem.stiffness,
   });
-  const u = Float64Array.from(problem.u0);
+  const u = Float64Array.from(req.initialDensity ? req.initialDensity(problem) : problem.u0);
+  if (u.length !== grid.nCells) throw new RangeError(`initialDensity gave ${u.length} values for ${grid.nCells} cells`);
   const h = Float64Array.from(problem.stockingAtCells);
   const front = new FrontTracker(grid, s.detectionLevel);
   const arrivals = new ArrivalTracker(grid, s.sites.map((x) => x.atKm), s.detectionLevel);
