@@ -87,6 +87,22 @@ export function problemsFromZod(issues: readonly z.core.$ZodIssue[], input: unkn
     }
     if (issue.code === 'invalid_union') {
       const branches = issue.errors;
+      if (branches.length === 0) {
+        // A discriminated union whose tag (e.g. growth form, habitat) matched no branch: zod puts the tag in the path.
+        const value = valueAt(input, issue.path);
+        const options = 'options' in issue && Array.isArray(issue.options) ? (issue.options as unknown[]) : [];
+        out.push({
+          path: formatPath(path),
+          value,
+          message:
+            value === undefined
+              ? `is required${options.length ? ` (one of ${options.map((o) => JSON.stringify(o)).join(', ')})` : ''}`
+              : options.length
+                ? `must be one of ${options.map((o) => JSON.stringify(o)).join(', ')}`
+                : issue.message,
+        });
+        continue;
+      }
       const typeOnly = branches.every((b) => b.length === 1 && b[0].code === 'invalid_type' && b[0].path.length === 0);
       if (typeOnly) {
         const value = valueAt(input, issue.path);

@@ -323,7 +323,10 @@ export function parseScenarioText(text: string): Scenario {
   try {
     raw = JSON.parse(text);
   } catch (e) {
-    throw new ScenarioError([{ path: '', value: undefined, message: `is not valid JSON (${(e as Error).message})` }]);
+    const start = text.trim().slice(0, 40);
+    throw new ScenarioError([
+      { path: '', value: start === '' ? '(empty file)' : start, message: `is not valid JSON (${(e as Error).message}); a scenario file is one JSON object` },
+    ]);
   }
   return parseScenario(raw);
 }
