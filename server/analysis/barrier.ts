@@ -15,12 +15,16 @@ import { criticalGapWidth } from '../numerics/steady-blocking.ts';
 import { chooseResolution, discretise, growthRateScale, type Resolution } from './discretise.ts';
 import { buildLayout, stemsRemoved, type ClearingSpec } from './layout.ts';
 import { runLayout, summariseRun, type RunOutput } from './simulate.ts';
+import { ArrivalTracker } from './trackers.ts';
+import { makeDiffusionOperator, makeDiffusionStepper } from '../numerics/diffusion.ts';
+import { makeReactionStepper } from '../numerics/reaction.ts';
 import { spreadRate } from './speed.ts';
 import type { CriticalWidth, OptionResult, RunResult, SiteVerdict, VerdictKind, WidthDelayRow } from './result.ts';
 import { potential, potentialThreshold, strongAllee } from './barrier-growth.ts';
 import {
   CrossingWatch,
   PINNING_METHODS,
+  PinningJudge,
   barrierGeometry,
   crossingProbeKm,
   establishedLevels,
@@ -156,12 +160,23 @@ export function analyseBaseline(s: PointScenario, options: ClearingSpec[], setti
   const probe = { problem: discretise(s, pieces, resolution) };
   const levels = establishedLevels(s, probe.problem);
   const watches = options.map((o) => new BaselineWatch(s, probe.problem.grid, levels, barrierGeometry(s, o)));
+  const record = settings.record ?? true;
+  // Without recorded profiles nothing after the last event matters: stop once every site is reached and
+  // every clearing's far edge is passed (the summary then covers the run up to that year).
+  const arrived = new ArrivalTracker(probe.problem.grid, s.sites.map((x) => x.atKm), s.detectionLevel);
+  const stopper: Observer = {
+    initialize: (st) => arrived.initialize(st),
+    handle: (st) => {
+      arrived.handle(st);
+      return !record && arrived.allArrived() && watches.every((w) => w.snapshot !== null && w.crossing.crossedYears !== null);
+    },
+  };
   const out = runLayout({
     scenario: s,
     pieces,
     resolution,
-    record: settings.record ?? true,
-    observers: watches,
+    record,
+    observers: [...watches, stopper],
     shouldCancel: settings.shouldCancel,
     onProgress: (f) => settings.onProgress?.(f, 'baseline'),
   });
@@ -518,8 +533,13 @@ function widthDelayCurve(
     const clearing: ClearingSpec = { fromKm, widthM, cover: option.cover };
     if (fromKm < breaks[0] - 1e-9 || fromKm + widthM / 1000 > breaks[breaks.length - 1] + 1e-9) continue;
     const g = barrierGeometry(s, clearing);
+    // The stretch ahead only needs to reach the farthest site beyond the clearing (plus a few movement lengths).
+    const beyondKm = s.sites.filter((_, k) => beyondSites[k]).map((x) => x.atKm);
+    const margin = 5 * movementLengthKm(s);
     const window: [number, number] =
-      g.direction > 0 ? [g.nearKm - behind, breaks[breaks.length - 1]] : [breaks[0], g.nearKm + behind];
+      g.direction > 0
+        ? [g.nearKm - behind, beyondKm.length ? Math.max(...beyondKm) + margin : breaks[breaks.length - 1]]
+        : [beyondKm.length ? Math.min(...beyondKm) - margin : breaks[0], g.nearKm + behind];
     const solver = makeWindowSolver(s, buildLayout(s, clearing), window, resolution, s.horizonYears);
     const sitesKm = s.sites.map((x) => x.atKm);
     const r = runWindow(solver, {
@@ -547,10 +567,10 @@ function widthDelayCurve(
   return rows;
 }
 
-/** Default widths of the curve: six evenly spaced up to max(2 × option, 1.5 × upper bracket end). */
+/** Default widths of the curve: five evenly spaced up to max(2 × option, 1.5 × upper bracket end). */
 function autoCurveWidths(optionWidthM: number, bracket: [number, number] | null): number[] {
   const top = Math.max(2 * optionWidthM, bracket ? 1.5 * bracket[1] : 0);
-  return Array.from({ length: 6 }, (_, k) => Math.round((top * (k + 1)) / 6));
+  return Array.from({ length: 5 }, (_, k) => Math.round((top * (k + 1)) / 5));
 }
 
 /** Least-squares slope through the origin of delay against width, ×100 [yr per 100 m]. */
@@ -588,12 +608,42 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
   const probe = { problem: discretise(s, pieces, resolution) };
   const levels = establishedLevels(s, probe.problem);
   const watch = new CrossingWatch(probe.problem.grid, geometry, levels, false, crossingProbeKm(s), s.detectionLevel);
+  // Without recorded profiles the run stops as soon as pinning is verified on the whole transect (nothing
+  // changes after that); with profiles it runs to the horizon so that charts cover it.
+  let earlyJudgement: Judgement | null = null;
+  const observers: Observer[] = [watch];
+  if (!record) {
+    const p = probe.problem;
+    const op = makeDiffusionOperator(p.grid, p.diffusionAtCells, p.residenceAtCells, p.ends);
+    const judgeSolver = {
+      scenario: s,
+      problem: p,
+      op,
+      diffusion: makeDiffusionStepper(op),
+      reaction: makeReactionStepper({ hostAtCells: p.hostAtCells, mortalityAtCells: p.mortalityAtCells, perCapita: p.perCapita, hostKillRate: p.hostKillRate, stiffness: p.stiffness }),
+      windowKm: [p.grid.facesKm[0], p.grid.facesKm[p.grid.nCells]] as [number, number],
+      establishedAtCells: levels,
+    };
+    const judge = new PinningJudge(judgeSolver, geometry);
+    const every = Math.max(1, Math.round(Math.max(0.5, 2 / growthRateScale(s.pest.growth)) / resolution.stepYears));
+    const arrived = new ArrivalTracker(p.grid, s.sites.map((x) => x.atKm), s.detectionLevel);
+    observers.push({
+      initialize: (st) => arrived.initialize(st),
+      handle: (st) => {
+        arrived.handle(st);
+        if (watch.crossedYears !== null) return arrived.allArrived();
+        if (st.stepIndex % every !== 0) return false;
+        earlyJudgement = judge.check(st.t, st.u, st.h);
+        return earlyJudgement !== null;
+      },
+    });
+  }
   const out = runLayout({
     scenario: s,
     pieces,
     resolution,
     record,
-    observers: [watch],
+    observers,
     shouldCancel: settings.shouldCancel,
     onProgress: (f) => settings.onProgress?.(0.3 * f, `option ${option.name}`),
   });
@@ -603,10 +653,10 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
   const beyondSites = s.sites.map((site) => isBeyond(geometry, site.atKm));
 
   // Past the horizon: verify pinning, or project the crossing and the arrivals that did not happen in time.
-  let judgement: Judgement | null = null;
+  let judgement: Judgement | null = earlyJudgement;
   let projected: WindowOutcome | null = null;
   const missing = s.sites.some((_, k) => optArr[k] === null && (baseArr[k] !== null || beyondSites[k]));
-  if (out.solver.status === 'completed' && (watch.crossedYears === null || missing)) {
+  if (!judgement && out.solver.status === 'completed' && (watch.crossedYears === null || missing)) {
     const breaks = segmentBreaks(s.transect);
     const behind = snapshotDistanceKm(s) + 10 * movementLengthKm(s);
     const window: [number, number] = geometry.direction > 0 ? [geometry.nearKm - behind, breaks[breaks.length - 1]] : [breaks[0], geometry.nearKm + behind];

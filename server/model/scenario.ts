@@ -76,7 +76,7 @@ export const BarrierSchema = z.strictObject({
   options: z.array(BarrierOptionSchema).max(8, { error: 'at most 8 options per scenario' }).default([]),
   /** Tolerance of the critical-width bracket [m]; 10 m when absent (applied by the analysis). */
   toleranceM: valueSchema(FIELDS.widthToleranceM).optional(),
-  /** Widths of the width–delay curve [m]; automatic (six widths up to twice the option's) when absent. */
+  /** Widths of the width–delay curve [m]; automatic (five widths up to twice the option's or 1.5 × the critical width) when absent. */
   curveWidthsM: z
     .array(valueSchema(FIELDS.widthM))
     .min(1, { error: 'needs at least one width' })
