@@ -487,7 +487,8 @@ export function reasonInWords(s: PointScenario, cover: ClearingSpec['cover'], ki
   const growthWords = allee
     ? 'the pest has a strong Allee effect: the few insects that get across are too sparse to breed unless enough of them arrive together'
     : 'the pest has no Allee effect: even a few insects that get across found a growing population';
-  const core = `${moveWords}; ${edgeWords}, so the density just inside the cut is ${fmt(jump)} of that at the forest edge; ${mort}; ${growthWords}.`;
+  const jumpWords = Math.abs(jump - 1) < 1e-6 ? 'so the density is continuous across the edge' : `so the density just inside the cut is ${fmt(jump)} times that at the forest edge`;
+  const core = `${moveWords}; ${edgeWords}, ${jumpWords}; ${mort}; ${growthWords}.`;
   switch (kind) {
     case 'speeds-up':
       return `Faster, not slower: ${core} Insects cross the cut quickly and little of the flow is lost there, so the stand beyond is reached sooner than through unbroken forest.`;

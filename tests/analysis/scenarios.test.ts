@@ -11,6 +11,7 @@ const EXPECTED_VERDICTS: Record<string, string[]> = {
   'clearing-holds.json': ['holds', 'delays', 'marginal'],
   'clearing-delays.json': ['delays', 'delays'],
   'clearing-speeds-up.json': ['speeds-up'],
+  'clearing-not-crossed.json': ['not-crossed', 'holds'],
 };
 
 describe('demo scenarios', () => {
