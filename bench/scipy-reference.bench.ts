@@ -56,6 +56,8 @@ function l1(grid: Grid, a: ArrayLike<number>, b: ArrayLike<number>): number {
 const coarseKm = 0.025;
 const dt = auto.stepYears;
 const run25 = ours(coarseKm, dt);
+// Our engine with longer steps too (a user may set numerics.stepYears): 2× and 4× the automatic step.
+const longer = [2, 4].map((f) => ({ factor: f, ...ours(coarseKm, f * dt) }));
 const fine = ours(coarseKm / 4, dt / 4);
 const mid = ours(coarseKm / 2, dt / 2);
 const g25 = run25.out.problem.grid;
@@ -65,7 +67,13 @@ const frontRef = rightFrontKm(fine.out.problem.grid, fine.out.u, level);
 const errOurs = l1(g25, run25.out.u, ref);
 const selfCheck = l1(g25, coarsen(mid.out.problem.grid, mid.out.u, g25), ref);
 console.log(`fine reference: ${fine.out.problem.grid.nCells} cells, dt ${dt / 4} yr (${(fine.ms / 1000).toFixed(1)} s); its 12.5 m neighbour differs by L1 ${selfCheck.toExponential(2)} km`);
-console.log(`ours   25 m, dt ${dt} yr: ${run25.ms.toFixed(0)} ms, L1 error ${errOurs.toExponential(2)} km, front error ${((rightFrontKm(g25, run25.out.u, level) - frontRef) * 1000).toFixed(1)} m`);
+console.log(`ours   25 m, dt ${dt} yr (automatic): ${run25.ms.toFixed(0)} ms, L1 error ${errOurs.toExponential(2)} km, front error ${((rightFrontKm(g25, run25.out.u, level) - frontRef) * 1000).toFixed(1)} m`);
+const oursRows = [{ label: `automatic step ${dt} yr`, ms: run25.ms, err: errOurs }];
+for (const r of longer) {
+  const err = l1(g25, r.out.u, ref);
+  oursRows.push({ label: `step ${r.factor * dt} yr`, ms: r.ms, err });
+  console.log(`ours   25 m, dt ${r.factor * dt} yr: ${r.ms.toFixed(0)} ms, L1 error ${err.toExponential(2)} km, front error ${((rightFrontKm(g25, r.out.u, level) - frontRef) * 1000).toFixed(1)} m`);
+}
 
 const python = spawnSync('python3', ['-c', 'import scipy'], { encoding: 'utf8' });
 if (python.status !== 0) {
@@ -87,7 +95,7 @@ if (python.status !== 0) {
     u0: Array.from(problem.u0),
     h0: Array.from(problem.stockingAtCells),
     tEnd: s.horizonYears,
-    rtols: [1e-2, 1e-3, 1e-4, 1e-5],
+    rtols: [1e-2, 3e-3, 1e-3, 3e-4, 1e-4, 3e-5, 1e-5, 3e-6],
   };
   const r = spawnSync('python3', [fileURLToPath(new URL('./fv_reference.py', import.meta.url))], {
     input: JSON.stringify(input),
@@ -96,15 +104,19 @@ if (python.status !== 0) {
   });
   if (r.status !== 0) throw new Error(r.stderr);
   const rows = JSON.parse(r.stdout) as { rtol: number; seconds: number; status: number; nfev: number; nlu: number; u: number[] }[];
-  let matched: { rtol: number; seconds: number } | null = null;
-  for (const row of rows) {
-    const err = l1(g25, row.u, ref);
+  const scipyRows = rows.map((row) => ({ ...row, err: l1(g25, row.u, ref) }));
+  for (const row of scipyRows) {
     const front = (rightFrontKm(g25, Float64Array.from(row.u), level) - frontRef) * 1000;
-    console.log(`scipy BDF rtol ${row.rtol.toExponential(0)}: ${(row.seconds * 1000).toFixed(0)} ms, L1 error ${err.toExponential(2)} km, front error ${front.toFixed(1)} m (nfev ${row.nfev}, LU ${row.nlu}, status ${row.status})`);
-    if (!matched && err <= errOurs) matched = row;
+    console.log(`scipy BDF rtol ${row.rtol.toExponential(0)}: ${(row.seconds * 1000).toFixed(0)} ms, L1 error ${row.err.toExponential(2)} km, front error ${front.toFixed(1)} m (nfev ${row.nfev}, LU ${row.nlu}, status ${row.status})`);
   }
-  if (matched) {
-    const ratio = (matched.seconds * 1000) / run25.ms;
-    console.log(`(b) matched error (loosest scipy tolerance with L1 error ≤ ours: rtol ${matched.rtol.toExponential(0)}): ours is ${ratio.toFixed(1)}× faster — floor 10×: ${ratio >= 10 ? 'MET' : 'NOT MET'}`);
-  } else console.log('(b) no scipy tolerance reached our error; ratio against the tightest run is a lower bound');
+  for (const o of oursRows) {
+    // Cheapest scipy run whose error is at most ours (equal or smaller error).
+    const ok = scipyRows.filter((r) => r.err <= o.err).sort((a, b) => a.seconds - b.seconds)[0];
+    if (!ok) {
+      console.log(`(b) ${o.label}: no scipy tolerance reached our error ${o.err.toExponential(2)}`);
+      continue;
+    }
+    const ratio = (ok.seconds * 1000) / o.ms;
+    console.log(`(b) ${o.label}: ours ${o.ms.toFixed(0)} ms at L1 ${o.err.toExponential(2)}; cheapest scipy at equal or smaller error: rtol ${ok.rtol.toExponential(0)}, ${(ok.seconds * 1000).toFixed(0)} ms → ours ${ratio.toFixed(1)}× faster (floor 10×: ${ratio >= 10 ? 'MET' : 'NOT MET'})`);
+  }
 }
