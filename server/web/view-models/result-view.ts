@@ -306,8 +306,11 @@ export function comparePageView(stored: StoredResult) {
   const rows = [
     row('Verdict', '—', (o) => (o.verdict ? (VERDICT_WORDS[o.verdict.kind]?.label ?? o.verdict.kind) : NOT_COMPUTED)),
     row('Clearing', 'none', (o) => optionWhat(o)),
-    row('Front passes the far edge of the clearing', o0(doc, (c) => yearOrNot(c, doc.horizonYears)), (o) =>
-      o.crossingYears ? yearOrNot(o.crossingYears.option, doc.horizonYears) : NOT_COMPUTED,
+    // Each option has its own clearing, so the baseline time for that place is shown in the option's cell.
+    row('Front passes the far edge of the clearing', '—', (o) =>
+      o.crossingYears
+        ? `${yearOrNot(o.crossingYears.option, doc.horizonYears)} (without it: ${yearOrNot(o.crossingYears.baseline, doc.horizonYears)})`
+        : NOT_COMPUTED,
     ),
     ...doc.baseline.arrivals.map((a, k) =>
       row(`Arrival at ${a.name} (km ${km(a.atKm)})`, yearOrNot(a.arrivalYears, doc.horizonYears), (o) => yearOrNot(o.run.arrivals[k]?.arrivalYears, doc.horizonYears)),
@@ -337,11 +340,6 @@ export function comparePageView(stored: StoredResult) {
   };
 }
 
-/** Baseline crossing year of the first option (the same baseline for all), formatted. */
-function o0(doc: ResultDocument, f: (y: number | null) => string): string {
-  const c = loose(doc.options[0] ?? ({} as OptionResult)).crossingYears;
-  return c ? f(c.baseline) : '—';
-}
 
 /** Compact facts for lists of past results. */
 export function resultListItem(r: { id: string; title: string; createdAt: string; toolVersion: string; scenarioRef: string | null }) {
