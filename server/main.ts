@@ -7,6 +7,10 @@ import { buildApp } from './app.ts';
 
 const host = process.env.HOST ?? '127.0.0.1';
 const port = Number(process.env.PORT ?? 3000);
+if (!Number.isInteger(port) || port < 0 || port > 65535) {
+  console.error(`PORT must be a whole number from 0 to 65535 (found ${JSON.stringify(process.env.PORT)})`);
+  process.exit(1);
+}
 const positive = (v: string | undefined) => (v !== undefined && Number(v) > 0 ? Number(v) : undefined);
 
 const app = await buildApp({
@@ -15,7 +19,18 @@ const app = await buildApp({
   workerThreads: positive(process.env.WORKERS),
   limits: { ...(positive(process.env.WALL_SECONDS) ? { wallSeconds: positive(process.env.WALL_SECONDS) } : {}) },
 });
-await app.listen({ host, port });
+try {
+  await app.listen({ host, port });
+} catch (err) {
+  const code = (err as NodeJS.ErrnoException).code;
+  console.error(
+    code === 'EADDRINUSE'
+      ? `Port ${port} on ${host} is already in use: stop the other program or set PORT to another number.`
+      : `Cannot listen on ${host}:${port}: ${(err as Error).message}`,
+  );
+  await app.close();
+  process.exit(1);
+}
 for (const signal of ['SIGINT', 'SIGTERM'] as const) {
   process.once(signal, () => {
     void app.close().then(() => process.exit(0));

@@ -50,7 +50,7 @@ describe('security headers', () => {
     expect(csp).not.toMatch(/script-src[^;]*unsafe/);
     expect(r.headers['x-content-type-options']).toBe('nosniff');
     expect(r.headers['x-frame-options']).toBe('SAMEORIGIN');
-    expect(r.headers['referrer-policy']).toBe('no-referrer');
+    expect(r.headers['referrer-policy']).toBe('same-origin');
   });
 
   it('no page has an inline script or inline event handler (they would be blocked)', async () => {
@@ -59,6 +59,22 @@ describe('security headers', () => {
       expect(html.match(/<script(?![^>]*\bsrc=)[^>]*>/g), url).toBeNull();
       expect(html.match(/\son[a-z]+="/g), url).toBeNull();
     }
+  });
+});
+
+describe('requests from other sites', () => {
+  it('a form post sent by a page of another site is refused; the app\'s own pages and scripts are not', async () => {
+    const url = `/scenarios/${QUICK_REF}/duplicate`;
+    const foreign = await app.inject({ method: 'POST', url, headers: { origin: 'https://elsewhere.example', host: 'localhost:80' } });
+    expect(foreign.statusCode).toBe(403);
+    expect(foreign.body).toContain('came from another site');
+    const api = await app.inject({ method: 'DELETE', url: '/api/scenarios/1', headers: { origin: 'null', host: 'localhost:80' } });
+    expect(api.statusCode).toBe(403);
+    expect(api.json().error).toBe('CROSS_SITE');
+    const own = await app.inject({ method: 'POST', url, headers: { origin: 'http://localhost:80', host: 'localhost:80' } });
+    expect(own.statusCode).toBe(303);
+    const script = await app.inject({ method: 'POST', url });
+    expect(script.statusCode).toBe(303);
   });
 });
 

@@ -21,6 +21,7 @@ export const isApiRequest = (req: FastifyRequest) => req.url.startsWith('/api/')
 
 const HTTP_TITLES: Record<number, string> = {
   400: 'The input needs correcting',
+  403: 'Refused',
   404: 'Not found',
   405: 'Not allowed',
   406: 'Not acceptable',

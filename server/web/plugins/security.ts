@@ -1,7 +1,8 @@
 /**
  * Security basics: security headers (helmet, with a content security policy that allows scripts and
- * styles from this server only — page scripts are files, never inline), and a rate limit that compute
- * routes switch on with `config: { rateLimit: computeRateLimit }`.
+ * styles from this server only — page scripts are files, never inline), refusal of state-changing requests
+ * sent by pages of other sites (Origin check), and a rate limit that compute routes switch on with
+ * `config: { rateLimit: computeRateLimit }`.
  */
 import fp from 'fastify-plugin';
 import helmet from '@fastify/helmet';
@@ -33,6 +34,28 @@ export default fp(
       },
       // Pages are served over http on 127.0.0.1 by default; HSTS would pin a name to https.
       strictTransportSecurity: false,
+      // Browsers send the page's origin with form posts to this server only (with "no-referrer" they send
+      // "null", which the Origin check below could not tell from a foreign page); nothing leaves for other sites.
+      referrerPolicy: { policy: 'same-origin' },
+    });
+    // Requests that change something must come from this app's own pages (or from a script, which sends no
+    // Origin): a page on another site cannot make a visitor's browser delete or run scenarios here.
+    app.addHook('onRequest', async (req) => {
+      if (req.method === 'GET' || req.method === 'HEAD' || req.method === 'OPTIONS') return;
+      const origin = req.headers.origin;
+      if (origin === undefined) return;
+      // Compare as URLs so that default ports (":80") do not make the same host look different.
+      const hostOf = (u: string) => {
+        try {
+          return new URL(u).host;
+        } catch {
+          return undefined;
+        }
+      };
+      const from = hostOf(origin);
+      if (from === undefined || from !== hostOf(`http://${req.headers.host ?? ''}`)) {
+        throw Object.assign(new Error('This request came from another site and was refused.'), { statusCode: 403, code: 'CROSS_SITE' });
+      }
     });
     await app.register(rateLimit, {
       global: false,

@@ -11,7 +11,7 @@ import { FIELDS, describeRange } from '../../model/fields.ts';
 import { checkLimits } from '../limits.ts';
 import { savedId } from '../catalogue.ts';
 import { conflict, notFound } from '../plugins/errors.ts';
-import { jobEvents, jobPayload } from './run-pages.ts';
+import { jobEvents, jobPayload, unknownJob } from './run-pages.ts';
 import { briefingName } from './result-pages.ts';
 import type { WebDeps } from '../deps.ts';
 
@@ -78,7 +78,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
   };
   const withResultId = (id: string) => {
     const job = jobs.get(id);
-    if (!job) throw notFound('This evaluation');
+    if (!job) throw unknownJob();
     return { ...jobPayload(job), resultId: job.resultId };
   };
 
@@ -174,7 +174,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
     '/api/evaluations/:id/cancel',
     { schema: { tags: ['evaluations'], summary: 'Cancel an evaluation', params: IdParams, response: { 202: JobSchema, ...errors } } },
     async (req, reply) => {
-      if (!jobs.cancel(req.params.id)) throw notFound('This evaluation');
+      if (!jobs.cancel(req.params.id)) throw unknownJob();
       reply.code(202);
       return withResultId(req.params.id);
     },
@@ -192,7 +192,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
       },
     },
     async (req, reply) => {
-      if (!jobs.get(req.params.id)) throw notFound('This evaluation');
+      if (!jobs.get(req.params.id)) throw unknownJob();
       await reply.sse.send(jobEvents(jobs, req.params.id));
     },
   );

@@ -5,6 +5,12 @@
 import type { FastifyInstance } from 'fastify';
 import { TERMINAL, type JobRunner, type JobView } from '../jobs.ts';
 import { notFound } from '../plugins/errors.ts';
+
+/** Jobs live in memory: after a restart (or long after they finished) the server no longer knows them. */
+export const unknownJob = () =>
+  Object.assign(notFound('This evaluation'), {
+    message: 'This evaluation is not known to the server (it may have finished long ago, or the server was restarted). Finished results are listed under Results.',
+  });
 import { percent } from '../../report/format.ts';
 import type { WebDeps } from '../deps.ts';
 
@@ -50,7 +56,7 @@ export default async function runPages(app: FastifyInstance, deps: WebDeps) {
   const { jobs } = deps;
   const jobOr404 = (id: string) => {
     const job = jobs.get(id);
-    if (!job) throw notFound('This evaluation');
+    if (!job) throw unknownJob();
     return job;
   };
 
