@@ -50,11 +50,13 @@ export interface FormFieldDef {
   switchFor?: string;
   /** Text put in the input when the scenario leaves the field out (a block's documented defaults). */
   prefill?: string;
+  /** A select whose values 'true' / 'false' stand for a yes/no field ('' leaves it out: its default applies). */
+  booleanChoice?: boolean;
 }
 
 /** A table of rows (segments, sites, options) edited with add/remove/reorder buttons. */
 export interface RowGroupDef {
-  key: 'segments' | 'sites' | 'options' | 'kernel';
+  key: 'segments' | 'sites' | 'options' | 'kernel' | 'mosaics';
   prefix: string;
   columns: FormFieldDef[];
   /** Text of each input in a new row. */
@@ -86,6 +88,12 @@ export const MATING_CHOICES = [
   { value: 'none', label: 'No mate limitation' },
   { value: 'saturating', label: 'Saturating (half success at the mate-finding scale)' },
   { value: 'exponential', label: 'Exponential (63 % success at the mate-finding scale)' },
+] as const;
+
+export const MEASURE_CHOICES = [
+  { value: '', label: 'yes (default)' },
+  { value: 'false', label: 'no, dispersion relation only' },
+  { value: 'true', label: 'yes' },
 ] as const;
 
 export const KERNEL_CHOICES = [
@@ -306,6 +314,27 @@ export const ROW_GROUPS: Record<RowGroupDef['key'], RowGroupDef> = {
     ],
     newRow: (index) => ({ name: `Option ${index + 1}`, fromKm: '', widthM: '', cover: 'clearing' }),
   },
+  mosaics: {
+    key: 'mosaics',
+    prefix: 'mosaics',
+    maxRows: 6,
+    columns: [
+      { path: 'name', kind: 'text', label: 'Pattern', help: 'A short name for this thinning pattern.' },
+      { path: 'forestM', kind: 'number', field: 'widthM', label: 'Forest strip', help: 'Width of each host-forest strip along the direction of spread.' },
+      { path: 'gapM', kind: 'number', field: 'widthM', label: 'Host-free strip', help: 'Width of each host-free strip between them.' },
+      { path: 'cover', kind: 'select', label: 'Host-free strips are', choices: COVER_CHOICES, help: 'Left open, or replanted with trees the pest cannot use.' },
+      { path: 'stocking', kind: 'number', field: 'stocking', label: 'Stocking of the forest strips', help: 'Share of a fully stocked host stand in the forest strips (1 when left empty).' },
+      {
+        path: 'measure',
+        kind: 'select',
+        booleanChoice: true,
+        label: 'Also simulate',
+        choices: MEASURE_CHOICES,
+        help: 'Besides the speed from the dispersion relation, simulate a long pattern and measure the speed (the default).',
+      },
+    ],
+    newRow: (index) => ({ name: `Pattern ${index + 1}`, forestM: '', gapM: '', cover: 'clearing', stocking: '', measure: '' }),
+  },
   kernel: {
     key: 'kernel',
     prefix: 'transport.kernel.points',
@@ -363,6 +392,9 @@ function writeField(state: FormState, name: string, def: FormFieldDef, v: unknow
     case 'numberList':
       state[name] = Array.isArray(v) ? v.map(toText).join(', ') : toText(v);
       return;
+    case 'select':
+      state[name] = def.booleanChoice && typeof v === 'boolean' ? String(v) : toText(v);
+      return;
     default:
       state[name] = toText(v);
   }
@@ -372,7 +404,7 @@ function writeField(state: FormState, name: string, def: FormFieldDef, v: unknow
 const KNOWN: Record<string, readonly string[]> = {
   '': [
     'version', 'title', 'description', 'region', 'pest', 'transect', 'infestation', 'sites', 'barrier', 'horizonYears',
-    'detectionLevel', 'numerics', 'uncertainty', 'transport',
+    'detectionLevel', 'numerics', 'uncertainty', 'transport', 'mosaics',
   ],
   pest: [
     'name', 'illustrative', 'notes', 'diffusionHost', 'diffusionOpen', 'diffusionNonHost', 'edgePreferenceOpen',
@@ -495,7 +527,9 @@ function readField(state: FormState, name: string, def: FormFieldDef): unknown {
       return text.split(/[;,\s]+/).filter(Boolean).map((x) => readNumber(x));
     }
     case 'select':
-      return state[name] === '' ? undefined : state[name];
+      if (state[name] === '' || state[name] === undefined) return undefined;
+      if (def.booleanChoice) return state[name] === 'true' ? true : state[name] === 'false' ? false : state[name];
+      return state[name];
     default:
       return readText(state[name]);
   }
@@ -577,7 +611,8 @@ export function formToScenario(state: FormState): { input: Obj; problems: Proble
       }
       return row;
     });
-    if (rows.length || group.key !== 'options') setPath(input, group.prefix, rows);
+    // Optional lists (options, mosaics) are left out when empty; the others are required.
+    if (rows.length || (group.key !== 'options' && group.key !== 'mosaics')) setPath(input, group.prefix, rows);
   }
   // No barrier at all when neither its length nor any option was given (its other settings then do not apply).
   const barrier = input.barrier as Obj | undefined;
@@ -596,7 +631,7 @@ export type RowAction =
 
 /** Parses an action button value such as `add:segments` or `remove:sites:2`; undefined for other values. */
 export function parseRowAction(value: string | undefined): RowAction | undefined {
-  const m = /^(add|remove|up|down):(segments|sites|options|kernel)(?::(\d{1,4}))?$/.exec(value ?? '');
+  const m = /^(add|remove|up|down):(segments|sites|options|kernel|mosaics)(?::(\d{1,4}))?$/.exec(value ?? '');
   if (!m) return undefined;
   const group = m[2] as RowGroupDef['key'];
   if (m[1] === 'add') return { kind: 'add', group };

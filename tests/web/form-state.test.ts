@@ -108,6 +108,25 @@ describe('ensemble and transport blocks', () => {
   });
 });
 
+describe('strip patterns (mosaics)', () => {
+  it('round-trip with the yes/no choice left at its default, set to no, or set to yes', () => {
+    for (const measure of [undefined, false, true]) {
+      const s = quick();
+      const raw = JSON.parse(JSON.stringify(s));
+      raw.mosaics = [{ name: 'Narrow strips', forestM: 200, gapM: 100, cover: 'clearing', ...(measure === undefined ? {} : { measure }) }, { name: 'Thin', forestM: 500, gapM: 50, stocking: 0.5 }];
+      const withMosaics = parseScenario(raw);
+      const state = scenarioToForm(withMosaics);
+      expect(state['mosaics[0].measure']).toBe(measure === undefined ? '' : String(measure));
+      expect(parseScenario(formToScenario(state).input)).toEqual(withMosaics);
+    }
+  });
+
+  it('are left out when the table is empty', () => {
+    const state = applyRowAction(applyRowAction(scenarioToForm(quick()), { kind: 'add', group: 'mosaics' }), { kind: 'remove', group: 'mosaics', index: 0 });
+    expect(formToScenario(state).input.mosaics).toBeUndefined();
+  });
+});
+
 describe('lists of numbers', () => {
   it('the widths of the delay curve round-trip, and a bad entry is reported by its index', () => {
     const s = quick();

@@ -206,6 +206,22 @@ describe('ensemble and transport', () => {
   });
 });
 
+describe('strip patterns', () => {
+  it('a scenario with mosaics shows their table and charts', async () => {
+    const raw = JSON.parse(quickText);
+    raw.mosaics = [{ name: 'Narrow strips', forestM: 300, gapM: 100, measure: false }];
+    const r = await t.app.inject({ method: 'POST', url: '/api/evaluations', payload: { scenario: raw } });
+    const job = await waitForJob(t.app, r.json().id);
+    expect(job.status).toBe('done');
+    const doc = (await t.app.inject(`/api/results/${job.resultId}`)).json().document as ResultDocument;
+    const html = (await t.app.inject(`/results/${job.resultId}`)).body;
+    expect(html).toContain('Strip patterns (thinning mosaics)');
+    expect(html).toContain('Narrow strips: 300 m forest / 100 m open clearing');
+    expect(html).toContain(doc.mosaics![0].sentence);
+    expect(html).toContain('data-chart="mosaic-speed"');
+  });
+});
+
 describe('stored documents from older versions', () => {
   it('a result without the barrier-analysis fields still renders, saying what is missing', async () => {
     const doc = evaluateScenario(quick());

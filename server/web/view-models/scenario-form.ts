@@ -94,6 +94,7 @@ export interface FormView {
   sites: TableView;
   options: TableView;
   kernel: TableView;
+  mosaics: TableView;
   strip: StripView;
   problems: ProblemView[];
   /** Plain-text listing of the problems (for the page title and logs). */
@@ -235,7 +236,7 @@ function tableView(group: RowGroupDef, state: FormState, board: ProblemBoard): T
     rows,
     errors,
     canAdd: rows.length < group.maxRows,
-    addLabel: { segments: 'Add a segment', sites: 'Add a site', options: 'Add an option', kernel: 'Add a row' }[group.key],
+    addLabel: { segments: 'Add a segment', sites: 'Add a site', options: 'Add an option', kernel: 'Add a row', mosaics: 'Add a pattern' }[group.key],
     showWhen: group.showWhen ? JSON.stringify(group.showWhen) : '',
     inactive: !applies(group.showWhen, state),
   };
@@ -253,6 +254,7 @@ export function formView(state: FormState, problems: Problem[] = []): FormView {
   const sites = tableView(ROW_GROUPS.sites, state, board);
   const options = tableView(ROW_GROUPS.options, state, board);
   const kernel = tableView(ROW_GROUPS.kernel, state, board);
+  const mosaics = tableView(ROW_GROUPS.mosaics, state, board);
   // Problems about a whole part (e.g. "infestation must overlap a host-forest segment").
   for (const s of FORM_SECTIONS) sections[s.id].errors = board.take(s.id, `section-${s.id}`, s.title);
   sections.transect.errors.push(...board.take('transect', 'section-transect', 'Transect'));
@@ -273,6 +275,7 @@ export function formView(state: FormState, problems: Problem[] = []): FormView {
     sites,
     options,
     kernel,
+    mosaics,
     strip: stripFromForm(state),
     problems: problems.map((p) => {
       const where = board.placed.get(p);

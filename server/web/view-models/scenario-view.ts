@@ -104,6 +104,10 @@ export function scenarioView(entry: CatalogueEntry) {
           : `from a table of ${s.transport.kernel.points.length} rows`) +
         `; establishment probability ${quantityText(s.transport.establishmentProbability, FIELDS.establishmentProbability)}`
       : '',
+    mosaics: (s.mosaics ?? []).map((m) => ({
+      name: m.name,
+      pattern: `${integer(m.forestM)} m forest / ${integer(m.gapM)} m ${label(COVER_CHOICES, m.cover).toLowerCase()}${m.stocking !== undefined ? `, forest stocking ${num(m.stocking)}` : ''}`,
+    })),
     horizon: `${num(s.horizonYears)} yr`,
     detection: `${num(s.detectionLevel)} of capacity`,
     uncertain: JSON.stringify(s).includes('"dist"'),
