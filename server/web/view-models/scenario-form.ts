@@ -10,11 +10,9 @@ import {
   DIST_PARTS,
   EXTRA_INPUT,
   FORM_SECTIONS,
-  HABITAT_CHOICES,
   QUANTITY_KINDS,
   ROW_GROUPS,
   applies,
-  readNumber,
   rowIndices,
   type FormFieldDef,
   type FormState,
@@ -316,4 +314,3 @@ export function newScenarioTemplate(): Record<string, unknown> {
   };
 }
 
-export { HABITAT_CHOICES, readNumber };
