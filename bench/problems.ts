@@ -29,3 +29,39 @@ export function transect100km(over: Partial<ScenarioInput> = {}): ScenarioInput 
     ...over,
   };
 }
+
+/**
+ * Bench (c): the "clearing holds" layout (50 km, mate-limited borer that kills its hosts, 1.2 km cut at
+ * km 8) with ranges on five pest parameters. Self-contained so that edits to the demo files do not change it.
+ */
+export function ensembleProblem(draws: number): ScenarioInput {
+  return {
+    title: 'Bench: ensemble on the Ossenvale east flank',
+    pest: {
+      name: 'Ossenvale bark-borer (illustrative profile)',
+      illustrative: true,
+      diffusionHost: { dist: 'triangular', min: 0.7, mode: 1, max: 1.3 },
+      diffusionOpen: { dist: 'lognormal', median: 1, spread: 1.5 },
+      edgePreferenceOpen: { dist: 'uniform', min: 0.75, max: 0.92 },
+      growth: { form: 'mate-finding', birthRate: 4, deathRate: 0.5, crowding: 2.577, mating: 'saturating', mateScale: { dist: 'triangular', min: 0.15, mode: 0.25, max: 0.35 } },
+      hostKillRate: 0.1,
+      mortalityOpen: { dist: 'uniform', min: 2, max: 6 },
+    },
+    transect: {
+      segments: [
+        { habitat: 'host-forest', name: 'Greyholm stand', lengthKm: 12, stocking: 0.9, stemsPerHa: 420 },
+        { habitat: 'host-forest', name: 'Brackfen woods', lengthKm: 18, stocking: 0.85, stemsPerHa: 380 },
+        { habitat: 'clearing', name: 'Tarrow power-line corridor', lengthKm: 0.06 },
+        { habitat: 'host-forest', name: 'Saltrin slopes', lengthKm: 20, stocking: 0.8, stemsPerHa: 380 },
+      ],
+    },
+    infestation: { fromKm: 0, toKm: 3, density: 1 },
+    sites: [
+      { name: 'Brackfen Mill village', atKm: 22 },
+      { name: 'Saltrin Hollow seed orchard', atKm: 40 },
+    ],
+    barrier: { lengthKm: 6, options: [{ name: 'Wide cut at km 8', fromKm: 8, widthM: 1200, cover: 'clearing' }] },
+    horizonYears: 50,
+    uncertainty: { draws, seed: 1, criticalWidth: true },
+  };
+}

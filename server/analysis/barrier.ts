@@ -58,6 +58,10 @@ export interface BarrierSettings {
   widthCurve?: boolean;
   /** Bracket tolerance [m] (default: the scenario's, else 10 m). */
   toleranceM?: number;
+  /** Seed the bisection with the phase-plane value (default true; ensemble draws switch it off to save its cost). */
+  phasePlane?: boolean;
+  /** Repeat the bracket ends with half the step and on a doubled window (default true; ensemble draws switch it off). */
+  bracketChecks?: boolean;
   /** Widths of the width–delay curve [m] (default: the scenario's, else automatic). */
   curveWidthsM?: number[];
   /** Years a run may go past the horizon to verify pinning or project a crossing (default 3 × horizon). */
@@ -329,7 +333,7 @@ export function criticalWidth(s: PointScenario, option: BarrierOptionSpec | Clea
   checkOption(s, { name: 'option', ...option });
   const toleranceM = settings.toleranceM ?? s.barrier?.toleranceM ?? DEFAULT_TOLERANCE_M;
   const geometry = barrierGeometry(s, option);
-  const pp = phasePlaneWidth(s, option);
+  const pp = settings.phasePlane === false ? { widthM: null, note: 'phase-plane value not computed (switched off)' } : phasePlaneWidth(s, option);
   const base: CriticalWidthOutcome = {
     applicable: false,
     note: '',
@@ -421,7 +425,7 @@ export function criticalWidth(s: PointScenario, option: BarrierOptionSpec | Clea
   // threshold by O(dt²)): repeat it with half the step; if it then pins, continue at the finer step.
   let halfStepCheck: CriticalWidthOutcome['halfStepCheck'] = null;
   let stepFactor = 1;
-  if (lo > 0) {
+  if (lo > 0 && settings.bracketChecks !== false) {
     const r = classify(lo, 0.5);
     halfStepCheck = { widthM: lo, outcome: r.outcome };
     if (r.outcome === 'pinned') {
@@ -433,8 +437,8 @@ export function criticalWidth(s: PointScenario, option: BarrierOptionSpec | Clea
   }
   // The same two widths on a window twice as large.
   const ends = [lo, hi].filter((x) => x > 0);
-  const again = ends.map((x) => classify(x, stepFactor, 2));
-  const windowCheck = {
+  const again = settings.bracketChecks === false ? null : ends.map((x) => classify(x, stepFactor, 2));
+  const windowCheck = again && {
     widthsM: ends,
     agreed: again.every((r, k) => (r.outcome === 'pinned') === (ends[k] === hi)),
   };
@@ -452,7 +456,11 @@ export function criticalWidth(s: PointScenario, option: BarrierOptionSpec | Clea
       `Bisection on full-model runs (window ${c.behindKm.toFixed(1)} km behind and ${c.aheadKm.toFixed(1)} km beyond the clearing, started from the baseline as the front approached): ` +
       `${history.length} runs; pinned means verified (${PINNING_METHODS[pinningMode(s, hBeyond)]}).` +
       (undecided ? ` ${undecided} run(s) ended undecided and were counted as not pinned.` : '') +
-      (windowCheck.agreed ? ' A window twice as large gives the same outcome at both ends.' : ' WARNING: a window twice as large changed an outcome; treat the bracket with caution.'),
+      (windowCheck === null
+        ? ' Bracket checks (half step, doubled window) switched off.'
+        : windowCheck.agreed
+          ? ' A window twice as large gives the same outcome at both ends.'
+          : ' WARNING: a window twice as large changed an outcome; treat the bracket with caution.'),
   };
 }
 

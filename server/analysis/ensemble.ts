@@ -13,9 +13,11 @@ import { pointScenario, type PointScenario, type Scenario } from '../model/scena
 import { formatPath } from '../model/errors.ts';
 import { latinHypercube, makeRng } from '../numerics/rng.ts';
 import { buildLayout } from './layout.ts';
-import { discretise } from './discretise.ts';
+import { chooseResolution, discretise } from './discretise.ts';
 import { runLayout } from './simulate.ts';
-import { DEFAULT_TOLERANCE_M, analyseBaseline, analyseOption } from './barrier.ts';
+import { DEFAULT_TOLERANCE_M, analyseBaseline, analyseOption, criticalWidth, mergedResolution } from './barrier.ts';
+import { CrossingWatch, barrierGeometry as crossingGeometry, crossingProbeKm, establishedLevels, isBeyond } from './barrier-run.ts';
+import { ArrivalTracker } from './trackers.ts';
 import { BypassTracker, bandWidth, barrierGeometry, effectiveRate, makeSurvivalKernel, sourceWeights } from './bypass.ts';
 import { partialRankCorrelation } from './sensitivity.ts';
 import type {
@@ -120,7 +122,26 @@ export function drawScenario(scenario: Scenario, plan: EnsemblePlan, i: number):
   const { values, clipped } = drawValues(plan, i);
   const byPath = new Map(plan.parameters.map((p, j) => [p.pathText, values[j]]));
   const point = resolveQuantities(scenario, (d, path) => byPath.get(formatPath(path)) ?? centralValue(d)) as PointScenario;
-  return { point, values, clipped };
+  return { point: coarsened(point, scenario.uncertainty?.resolutionFactor ?? 1), values, clipped };
+}
+
+/**
+ * The draw's scenario with cells and step `factor` times the automatic choice (the finest over the
+ * baseline and every option layout, as the barrier analysis would pick); values set in `numerics` are kept.
+ */
+export function coarsened(s: PointScenario, factor: number): PointScenario {
+  if (!(factor > 1)) return s;
+  const layouts = [buildLayout(s), ...(s.barrier?.options ?? []).map((o) => buildLayout(s, o))];
+  const res = layouts.map((l) => chooseResolution(s, l));
+  const cellKm = Math.min(...res.map((r) => r.cellKm));
+  const stepYears = Math.min(...res.map((r) => r.stepYears));
+  return {
+    ...s,
+    numerics: {
+      cellM: s.numerics.cellM ?? Math.min(FIELDS.cellM.max, factor * cellKm * 1000),
+      stepYears: s.numerics.stepYears ?? Math.min(FIELDS.stepYears.max, factor * stepYears),
+    },
+  };
 }
 
 /* ------------------------------------------------------------------ one draw */
@@ -169,38 +190,66 @@ export function bypassLambda(s: PointScenario, option: { fromKm: number; widthM:
 }
 
 /**
- * Evaluates one point scenario for the ensemble with the barrier analysis (analyseBaseline / analyseOption,
- * without recorded profiles or width–delay curve): crossing, verified pinning, arrivals and, when asked,
- * the critical width; plus the bypass expectation when the scenario describes transport.
+ * Evaluates one point scenario for the ensemble with the barrier analysis.
+ *
+ * With per-draw critical widths (the default): the baseline (analyseBaseline), one run of each option layout
+ * (crossing within the horizon and arrivals, stopped once both are known) and the critical width
+ * (criticalWidth: bisection on window runs). "Pinned" then follows from the critical width: the option is at
+ * least as wide as a width verified to pin the front (wider clearings are harder to cross); this saves the
+ * option's own pinning run. Without critical widths: analyseOption's own verified pinning.
  */
 export function evaluatePoint(s: PointScenario, settings: { criticalWidth?: boolean; shouldCancel?: () => boolean } = {}): PointOutcome {
   const options = s.barrier?.options ?? [];
   const shouldCancel = settings.shouldCancel;
+  const withWidth = settings.criticalWidth ?? true;
   const base = analyseBaseline(s, options, { record: false, shouldCancel });
   const baselineArrivals = base.summary.arrivals.map((a) => a.arrivalYears);
   const outcomes = options.map((o) => {
-    const a = analyseOption(s, o, {
-      baseline: base,
-      record: false,
-      widthCurve: false,
-      criticalWidth: settings.criticalWidth ?? true,
-      toleranceM: drawToleranceM(s, o.widthM),
-      shouldCancel,
-    });
-    const r = a.result;
-    const c = a.critical;
+    const geometry = crossingGeometry(s, o);
+    const beyond = s.sites.map((site) => isBeyond(geometry, site.atKm));
+    let crossingYears: number | null;
+    let arrivals: (number | null)[];
+    let pinned: boolean;
     let criticalWidthM: number | null = null;
-    if (settings.criticalWidth !== false) {
+    if (withWidth) {
+      // Per draw: no phase-plane seed and no bracket re-checks (their cost is most of a draw's; the checks
+      // verify the method, which the single central-value analysis reports).
+      const c = criticalWidth(s, o, { baseline: base, record: false, toleranceM: drawToleranceM(s, o.widthM), phasePlane: false, bracketChecks: false, shouldCancel });
       if (!c.applicable) criticalWidthM = Infinity;
       else if (c.bracketM) criticalWidthM = c.bracketM[1];
       else if (c.runs > 0) criticalWidthM = Infinity;
       else criticalWidthM = c.phasePlaneM;
+      // Verified to pin at a width no wider than the option: wider clearings are harder to cross.
+      pinned = criticalWidthM !== null && Number.isFinite(criticalWidthM) && o.widthM >= criticalWidthM && c.bracketM !== null;
+      const nearSites = beyond.some((b) => !b);
+      if (pinned && !nearSites) {
+        // Held, and every site lies beyond: the option run could only confirm that nothing arrives.
+        crossingYears = null;
+        arrivals = s.sites.map(() => null);
+      } else {
+        const resolution = mergedResolution(s, [o]);
+        const pieces = buildLayout(s, o);
+        const problem = discretise(s, pieces, resolution);
+        const watch = new CrossingWatch(problem.grid, geometry, establishedLevels(s, problem), false, crossingProbeKm(s), s.detectionLevel);
+        const siteArrivals = new ArrivalTracker(problem.grid, s.sites.map((x) => x.atKm), s.detectionLevel);
+        // Stop once the outcome is known: crossing and all arrivals, or (held) the sites on the near side.
+        const done = () =>
+          pinned ? siteArrivals.arrivalYears.every((a, k) => beyond[k] || a !== null) : watch.crossedYears !== null && siteArrivals.allArrived();
+        const out = runLayout({ scenario: s, pieces, resolution, record: false, shouldCancel, observers: [watch, siteArrivals, { handle: done }] });
+        crossingYears = pinned ? null : watch.crossedYears;
+        arrivals = out.arrivals.arrivalYears.map((a, k) => (pinned && beyond[k] ? null : a));
+        if (crossingYears !== null) pinned = false;
+      }
+    } else {
+      const r = analyseOption(s, o, { baseline: base, record: false, widthCurve: false, criticalWidth: false, shouldCancel }).result;
+      crossingYears = r.crossingYears.option;
+      arrivals = r.sites.map((x) => x.optionArrivalYears);
+      pinned = r.pinned;
     }
-    const crossingYears = r.crossingYears.option;
     return {
       crossingYears,
-      arrivals: r.sites.map((x) => x.optionArrivalYears),
-      pinned: r.pinned,
+      arrivals,
+      pinned,
       criticalWidthM,
       bypassLambda: s.transport ? bypassLambda(s, o, crossingYears ?? s.horizonYears, shouldCancel) : null,
     };

@@ -234,6 +234,7 @@ export const FORM_SECTIONS: readonly { id: string; title: string; intro?: string
       { path: 'uncertainty.draws', kind: 'number', field: 'ensembleDraws', showWhen: ON('_uncertainty'), prefill: '1000' },
       { path: 'uncertainty.seed', kind: 'number', field: 'ensembleSeed', showWhen: ON('_uncertainty'), prefill: '1' },
       { path: 'uncertainty.targetStandardError', kind: 'number', field: 'targetStandardError', showWhen: ON('_uncertainty'), prefill: '0.02' },
+      { path: 'uncertainty.resolutionFactor', kind: 'number', field: 'ensembleResolutionFactor', showWhen: ON('_uncertainty'), prefill: '2' },
       {
         path: 'uncertainty.criticalWidth',
         kind: 'checkbox',
@@ -416,7 +417,7 @@ const KNOWN: Record<string, readonly string[]> = {
   infestation: ['fromKm', 'toKm', 'density'],
   barrier: ['lengthKm', 'costPerStem', 'costUnit', 'options', 'toleranceM', 'curveWidthsM'],
   numerics: ['cellM', 'stepYears'],
-  uncertainty: ['draws', 'seed', 'targetStandardError', 'criticalWidth'],
+  uncertainty: ['draws', 'seed', 'targetStandardError', 'criticalWidth', 'resolutionFactor'],
   transport: ['ratePerKm2Year', 'kernel', 'establishmentProbability', 'forwardShare', 'bandWidthKm'],
   'transport.kernel': ['shape', 'meanKm', 'points'],
 };
