@@ -421,7 +421,17 @@ export function summariseEnsemble(
     const outcomeForRanking = cwKnown
       ? { y: per.map((x) => x.criticalWidthM as number), what: { outcome: 'critical width', outcomeKey: 'criticalWidthM', verb: 'depends' } }
       : { y: per.map((x) => inf(x.crossingYears)), what: { outcome: 'year the front crosses the clearing', outcomeKey: 'crossingYears', verb: 'depends' } };
-    const sensitivity = sensitivityRanking(plan, labels, values, outcomeForRanking.y, outcomeForRanking.what);
+    let sensitivity = sensitivityRanking(plan, labels, values, outcomeForRanking.y, outcomeForRanking.what);
+    if (!sensitivity && s.transport) {
+      // The natural outcome does not vary (e.g. held in every draw): rank what drives the transport risk.
+      sensitivity = sensitivityRanking(
+        plan,
+        labels,
+        values,
+        per.map((x) => x.bypassLambda ?? 0),
+        { outcome: 'expected number of established introductions beyond the clearing', outcomeKey: 'bypassExpected', verb: 'depends' },
+      );
+    }
     const sentences: string[] = [];
     sentences.push(
       `Option "${o.name}" (${o.widthM} m): the front does not get past the clearing within ${horizon} years in ${pct(holds.p)} of ${n} draws` +

@@ -295,7 +295,7 @@ export interface SensitivityEntry {
 export interface SensitivityResult {
   /** What was ranked, e.g. "critical width [m]" or "year the front crosses the clearing". */
   outcome: string;
-  /** Key of the outcome: 'criticalWidthM' | 'crossingYears' | 'arrivalYears'. */
+  /** Key of the outcome: 'criticalWidthM' | 'crossingYears' | 'bypassExpected' (when the natural outcome does not vary). */
   outcomeKey: string;
   method: string;
   /** Sorted by |prcc|, largest first. */

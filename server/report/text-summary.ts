@@ -132,7 +132,8 @@ export function uncertaintySummary(doc: ResultDocument): string[] {
       for (const site of o.sites) {
         const d = site.delayYears;
         if (d.n + d.beyondHorizon === 0) continue;
-        out.push(`    ${site.name}: delay median ${quant(d.median)}, 5–95 % range ${quant(d.p05)} to ${quant(d.p95)}`);
+        if (d.n === 0) out.push(`    ${site.name}: not reached within the horizon with the clearing in any draw where it is reached without it`);
+        else out.push(`    ${site.name}: delay median ${quant(d.median)}, 5–95 % range ${quant(d.p05)} to ${quant(d.p95)}`);
       }
     }
     out.push(`  ${u.convergence.message}`);
