@@ -2,7 +2,7 @@
  * Runs an ensemble on a worker-thread pool (piscina) sized to the machine's cores. Draws are handed out in
  * small batches; results are put back in draw order, so the numbers are identical for any pool size.
  * Cancel: `shouldCancel` is polled every 100 ms; pending and running batches are then aborted and the
- * draws completed so far are summarised (status 'cancelled').
+ * draws completed so far are summarised in draw order (status 'cancelled').
  */
 import { availableParallelism } from 'node:os';
 import { setMaxListeners } from 'node:events';
@@ -85,12 +85,8 @@ export async function runEnsembleParallel(scenario: Scenario, opts: PoolOptions 
     clearInterval(timer);
     await pool.destroy();
   }
-  // After a cancel keep the leading run of completed draws, so the sample is a prefix of the design.
-  const kept: DrawOutcome[] = [];
-  for (const d of outcomes) {
-    if (!d) break;
-    kept.push(d);
-  }
+  // After a cancel keep every completed draw, in draw order (batches may finish out of order).
+  const kept = outcomes.filter((d): d is DrawOutcome => d !== undefined);
   return summariseEnsemble(scenario, plan, kept, {
     status: cancelled && kept.length < plan.draws ? 'cancelled' : 'completed',
     threads,

@@ -119,6 +119,16 @@ describe('ensemble over uncertain parameters', () => {
     expect(seen).toEqual([1 / 20, 2 / 20, 3 / 20]);
   });
 
+  it('on the worker pool, cancel stops the run and keeps the draws done', async () => {
+    const s = parseScenario(smallEnsembleScenario({ uncertainty: { draws: 8, seed: 4, criticalWidth: false } }));
+    let seen = 0;
+    const r = await runEnsembleParallel(s, { threads: 1, batchSize: 1, onProgress: () => seen++, shouldCancel: () => seen >= 2 });
+    expect(r.status).toBe('cancelled');
+    expect(r.completed).toBeGreaterThanOrEqual(2);
+    expect(r.completed).toBeLessThan(8);
+    expect(r.convergence.message).toMatch(/Cancelled after/);
+  });
+
   it('asks for more draws when the standard error is above the target', () => {
     const r = runEnsemble(parseScenario(smallEnsembleScenario({ uncertainty: { draws: 8, seed: 3, targetStandardError: 0.02, criticalWidth: false } })));
     expect(r.convergence.adequate).toBe(false);
