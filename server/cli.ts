@@ -16,7 +16,7 @@ const USAGE = `usage: npm run evaluate -- <scenario.json> [--json] [--out FILE] 
   --pdf FILE    also write the PDF briefing to FILE (alone, without --json/--out, nothing else is printed)
   --quiet       no progress bar
   --threads N   worker threads for an ensemble (default: all cores)
-  Ctrl-C during an ensemble stops it and reports the draws done so far; a second Ctrl-C quits.`;
+  Ctrl-C during an ensemble stops it, reports the draws done so far and exits with 130; a second Ctrl-C quits.`;
 
 export interface CliArgs {
   file: string;
@@ -115,8 +115,15 @@ export async function main(argv: string[]): Promise<number> {
     const scenario = parseScenarioText(text);
     // Ctrl-C stops an ensemble cleanly (the draws done so far are reported); a second Ctrl-C quits.
     let cancelled = false;
+    let firstSigintAt = 0;
     const onSigint = () => {
-      if (cancelled) process.exit(130);
+      // One key press can arrive twice (from the terminal and relayed by a wrapper such as tsx or npm):
+      // a second signal within a second is the same press.
+      if (cancelled) {
+        if (Date.now() - firstSigintAt > 1000) process.exit(130);
+        return;
+      }
+      firstSigintAt = Date.now();
       cancelled = true;
       process.stderr.write('\nstopping after the current draws (Ctrl-C again to quit)…\n');
     };
@@ -142,7 +149,8 @@ export async function main(argv: string[]): Promise<number> {
     const output = args.json ? `${JSON.stringify(doc, null, 1)}\n` : `${textSummary(doc)}\n`;
     if (args.out) writeAtomically(args.out, output);
     else process.stdout.write(output);
-    return 0;
+    // Interrupted: the partial result is written, and the exit code says it is partial.
+    return cancelled ? 130 : 0;
   } catch (e) {
     if (e instanceof InputError) {
       process.stderr.write(`${args.file} is not a valid scenario:\n${formatProblems(e.problems).replace(/^/gm, '  ')}\n`);
