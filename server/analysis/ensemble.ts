@@ -8,6 +8,7 @@
  * thread or on a worker pool of any size (see ensemble-pool.ts).
  */
 import { FIELDS, inRange, type FieldSpec } from '../model/fields.ts';
+import { habitatCoefficients } from '../model/habitat.ts';
 import { centralValue, listUncertain, quantile, resolveQuantities, type Distribution } from '../model/quantity.ts';
 import { pointScenario, type PointScenario, type Scenario } from '../model/scenario.ts';
 import { formatPath } from '../model/errors.ts';
@@ -127,7 +128,8 @@ export function drawScenario(scenario: Scenario, plan: EnsemblePlan, i: number):
 
 /**
  * The draw's scenario with cells and step `factor` times the automatic choice (the finest over the
- * baseline and every option layout, as the barrier analysis would pick); values set in `numerics` are kept.
+ * baseline and every option layout, as the barrier analysis would pick), the step capped at 0.5/m for the
+ * largest off-host mortality m (never below the automatic step); values set in `numerics` are kept.
  */
 export function coarsened(s: PointScenario, factor: number): PointScenario {
   if (!(factor > 1)) return s;
@@ -135,11 +137,16 @@ export function coarsened(s: PointScenario, factor: number): PointScenario {
   const res = layouts.map((l) => chooseResolution(s, l));
   const cellKm = Math.min(...res.map((r) => r.cellKm));
   const stepYears = Math.min(...res.map((r) => r.stepYears));
+  // The step stays within 0.5/m for every off-host mortality m present (the automatic rule's bound for
+  // rates handled exactly): longer steps leave the pinning checks of the barrier analysis undecided.
+  let mortality = 0;
+  for (const l of layouts) for (const p of l) if (p.habitat !== 'host-forest') mortality = Math.max(mortality, habitatCoefficients(s.pest, p.habitat).mortality);
+  const stepCap = mortality > 0 ? 0.5 / mortality : Infinity;
   return {
     ...s,
     numerics: {
       cellM: s.numerics.cellM ?? Math.min(FIELDS.cellM.max, factor * cellKm * 1000),
-      stepYears: s.numerics.stepYears ?? Math.min(FIELDS.stepYears.max, factor * stepYears),
+      stepYears: s.numerics.stepYears ?? Math.min(FIELDS.stepYears.max, Math.max(stepYears, Math.min(factor * stepYears, stepCap))),
     },
   };
 }

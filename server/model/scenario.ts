@@ -117,7 +117,7 @@ export const UncertaintySchema = z.strictObject({
   /** Compute each draw's critical width for every option (needs the barrier analysis; the costly part). */
   criticalWidth: z.boolean().default(true),
   /** Draws use cells and steps this many times the automatic choice (numerics set in the scenario are kept). */
-  resolutionFactor: valueSchema(FIELDS.ensembleResolutionFactor).default(2),
+  resolutionFactor: valueSchema(FIELDS.ensembleResolutionFactor).default(3),
 });
 
 /** Distance kernel of human-carried introductions: exponential by mean, or a user table of distance vs share carried farther. */
