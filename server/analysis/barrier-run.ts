@@ -3,9 +3,8 @@
  * state (a snapshot of the baseline, or the end of an option run), watchers that stop a run when the
  * front is established beyond the clearing, and the judge that verifies a pinned front.
  */
-import { makeDiffusionOperator, makeDiffusionStepper, type DiffusionOperator, type DiffusionStepper } from '../numerics/diffusion.ts';
-import { makeReactionStepper, type ReactionStepper } from '../numerics/reaction.ts';
-import { runSplitTimeLoop, type FieldState, type Observer } from '../numerics/time-loop.ts';
+import type { DiffusionOperator } from '../numerics/diffusion.ts';
+import { runTimeLoop, type FieldState, type FieldStepper, type Observer } from '../numerics/time-loop.ts';
 import { solveSteadyState, linearStability } from '../numerics/steady.ts';
 import { cellIndexAt, type Grid } from '../numerics/grid.ts';
 import { alleeThreshold, equilibria, lowDensityRate, type PointGrowth } from '../model/growth.ts';
@@ -15,6 +14,7 @@ import { discretise, growthRateScale, type Resolution, type TransectProblem } fr
 import type { ClearingSpec, Piece } from './layout.ts';
 import { cellReaction, establishedLevel, potentialThreshold, strongAllee } from './barrier-growth.ts';
 import { ArrivalTracker } from './trackers.ts';
+import { makeEngineStepper } from './simulate.ts';
 
 /** Where a clearing sits relative to the infestation. */
 export interface BarrierGeometry {
@@ -58,8 +58,8 @@ export interface WindowSolver {
   scenario: PointScenario;
   problem: TransectProblem;
   op: DiffusionOperator;
-  diffusion: DiffusionStepper;
-  reaction: ReactionStepper;
+  /** The engine's coupled step (the same as full-transect runs use). */
+  stepper: FieldStepper;
   windowKm: [number, number];
   /** Density at which each cell counts as established (Infinity off host); per cell. */
   establishedAtCells: Float64Array;
@@ -98,17 +98,9 @@ export function makeWindowSolver(
   };
   const sw: PointScenario = { ...s, transect: { ...s.transect, ends }, horizonYears };
   const problem = discretise(sw, sliced, resolution);
-  const op = makeDiffusionOperator(problem.grid, problem.diffusionAtCells, problem.residenceAtCells, problem.ends);
-  const diffusion = makeDiffusionStepper(op);
-  const reaction = makeReactionStepper({
-    hostAtCells: problem.hostAtCells,
-    mortalityAtCells: problem.mortalityAtCells,
-    perCapita: problem.perCapita,
-    hostKillRate: problem.hostKillRate,
-    stiffness: problem.stiffness,
-  });
+  const { op, stepper } = makeEngineStepper(problem);
   const establishedAtCells = establishedLevels(s, problem);
-  return { scenario: s, problem, op, diffusion, reaction, windowKm: [lo, hi], establishedAtCells };
+  return { scenario: s, problem, op, stepper, windowKm: [lo, hi], establishedAtCells };
 }
 
 /**
@@ -495,7 +487,7 @@ export function runWindow(solver: WindowSolver, o: WindowRunOptions): WindowOutc
   let steps = 0;
   let endYears = t0;
   if (span > 1e-12) {
-    const res = runSplitTimeLoop(solver.diffusion, solver.reaction, u, h, {
+    const res = runTimeLoop(solver.stepper, u, h, {
       tEnd: span,
       dt,
       observers: [withOffset(observer, t0)],

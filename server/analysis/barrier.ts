@@ -14,10 +14,8 @@ import type { FieldState, Observer } from '../numerics/time-loop.ts';
 import { criticalGapWidth } from '../numerics/steady-blocking.ts';
 import { chooseResolution, discretise, growthRateScale, type Resolution } from './discretise.ts';
 import { buildLayout, stemsRemoved, type ClearingSpec } from './layout.ts';
-import { runLayout, summariseRun, type RunOutput } from './simulate.ts';
+import { makeEngineStepper, runLayout, summariseRun, type RunOutput } from './simulate.ts';
 import { ArrivalTracker } from './trackers.ts';
-import { makeDiffusionOperator, makeDiffusionStepper } from '../numerics/diffusion.ts';
-import { makeReactionStepper } from '../numerics/reaction.ts';
 import { spreadRate } from './speed.ts';
 import type { CriticalWidth, OptionResult, RunResult, SiteVerdict, VerdictKind, WidthDelayRow } from './result.ts';
 import { potential, potentialThreshold, strongAllee } from './barrier-growth.ts';
@@ -623,13 +621,12 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
   const observers: Observer[] = [watch];
   if (!record) {
     const p = probe.problem;
-    const op = makeDiffusionOperator(p.grid, p.diffusionAtCells, p.residenceAtCells, p.ends);
+    const { op, stepper } = makeEngineStepper(p);
     const judgeSolver = {
       scenario: s,
       problem: p,
       op,
-      diffusion: makeDiffusionStepper(op),
-      reaction: makeReactionStepper({ hostAtCells: p.hostAtCells, mortalityAtCells: p.mortalityAtCells, perCapita: p.perCapita, hostKillRate: p.hostKillRate, stiffness: p.stiffness }),
+      stepper,
       windowKm: [p.grid.facesKm[0], p.grid.facesKm[p.grid.nCells]] as [number, number],
       establishedAtCells: levels,
     };

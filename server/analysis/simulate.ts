@@ -1,6 +1,6 @@
-import { makeDiffusionOperator } from '../numerics/diffusion.ts';
+import { makeDiffusionOperator, type DiffusionOperator } from '../numerics/diffusion.ts';
 import { makeCoupledStepper } from '../numerics/coupled.ts';
-import { runTimeLoop, type Observer, type SolverResult } from '../numerics/time-loop.ts';
+import { runTimeLoop, type FieldStepper, type Observer, type SolverResult } from '../numerics/time-loop.ts';
 import type { PointScenario } from '../model/scenario.ts';
 import { discretise, type Resolution, type TransectProblem } from './discretise.ts';
 import { HA_PER_KM2, type Piece } from './layout.ts';
@@ -52,13 +52,12 @@ function linspace(a: number, b: number, n: number): number[] {
   return Array.from({ length: n }, (_, k) => a + ((b - a) * k) / (n - 1));
 }
 
-/** Runs one layout of a scenario from the current infestation. The engine call shared by every caller. */
-export function runLayout(req: RunRequest): RunOutput {
-  const s = req.scenario;
-  const problem = discretise(s, req.pieces, req.resolution);
-  const tEnd = req.tEnd ?? s.horizonYears;
-  const { grid } = problem;
-  const op = makeDiffusionOperator(grid, problem.diffusionAtCells, problem.residenceAtCells, problem.ends);
+/**
+ * The engine's step for a discretised problem: the coupled TR-BDF2 movement + growth step (numerics/coupled.ts).
+ * Every run of the model — full transect or a window around a clearing — steps through this one factory.
+ */
+export function makeEngineStepper(problem: TransectProblem): { op: DiffusionOperator; stepper: FieldStepper } {
+  const op = makeDiffusionOperator(problem.grid, problem.diffusionAtCells, problem.residenceAtCells, problem.ends);
   const stepper = makeCoupledStepper(op, {
     hostAtCells: problem.hostAtCells,
     mortalityAtCells: problem.mortalityAtCells,
@@ -66,6 +65,16 @@ export function runLayout(req: RunRequest): RunOutput {
     hostKillRate: problem.hostKillRate,
     stiffness: problem.stiffness,
   });
+  return { op, stepper };
+}
+
+/** Runs one layout of a scenario from the current infestation. The engine call shared by every caller. */
+export function runLayout(req: RunRequest): RunOutput {
+  const s = req.scenario;
+  const problem = discretise(s, req.pieces, req.resolution);
+  const tEnd = req.tEnd ?? s.horizonYears;
+  const { grid } = problem;
+  const { stepper } = makeEngineStepper(problem);
   const u = Float64Array.from(req.initialDensity ? req.initialDensity(problem) : problem.u0);
   if (u.length !== grid.nCells) throw new RangeError(`initialDensity gave ${u.length} values for ${grid.nCells} cells`);
   const h = Float64Array.from(problem.stockingAtCells);
