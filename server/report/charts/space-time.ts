@@ -8,6 +8,9 @@ import { interpolateYlOrBr } from 'd3-scale-chromatic';
 import type { RunResult } from '../../analysis/result.ts';
 import { num } from '../format.ts';
 import { isNum, line, rect, svgRoot, text } from './svg.ts';
+
+/** Vertical overlap of neighbouring map rows [SVG units]. */
+const ROW_OVERLAP = 0.4;
 import { fitText } from './text-metrics.ts';
 import { BOTTOM_AXIS_SPACE, DEFAULT_WIDTH, LABEL_SIZE, axisBottom, axisLeft, bottom, emptyPanel, leftAxisSpace, right, type Box, type Chart, type ChartSize } from './frame.ts';
 import { optionInterval, transectExtent, type SitePart } from './parts.ts';
@@ -83,7 +86,8 @@ export function spaceTimeChart(run: Pick<RunResult, 'spaceTime'> & Partial<Pick<
         const k = classOf(row[c] as number, bounds);
         let c2 = c + 1;
         while (c2 < xKm.length && classOf(row[c2] as number, bounds) === k) c2++;
-        if (k >= 0) body += rect(xe[c], y0, xe[c2] - xe[c], y1 - y0, { fill: colour(k), stroke: colour(k), 'stroke-width': 0.3 });
+        // Rows overlap by a fraction of a unit so that anti-aliasing leaves no pale seams between them.
+        if (k >= 0) body += rect(xe[c], y0 - ROW_OVERLAP, xe[c2] - xe[c], y1 - y0 + 2 * ROW_OVERLAP, { fill: colour(k), stroke: colour(k), 'stroke-width': 0.3, 'shape-rendering': 'crispEdges' });
         c = c2;
       }
     }
