@@ -283,7 +283,7 @@ function classifyWidth(c: WidthProbeContext, widthM: number, stepFactor = 1, win
 }
 
 /** Phase-plane (first-integral) critical width for the option's site [m], or null with the reason. */
-export function phasePlaneWidth(s: PointScenario, option: ClearingSpec): { widthM: number | null; note: string } {
+export function phasePlaneWidth(s: PointScenario, option: ClearingSpec): { widthM: number | null; note: string; assumesIntactHosts?: boolean } {
   const g = barrierGeometry(s, option);
   const pieces = buildLayout(s);
   const at = (x: number) => pieces.find((p) => p.fromKm <= x && x < p.toKm) ?? pieces[pieces.length - 1];
@@ -310,7 +310,7 @@ export function phasePlaneWidth(s: PointScenario, option: ClearingSpec): { width
     jump: gap.residence / host.residence,
   });
   const depletion = s.pest.hostKillRate > 0 ? ' Hosts are held at their present stocking in this criterion (it ignores host depletion).' : '';
-  return { widthM: r.criticalKm === null ? null : r.criticalKm * 1000, note: `${r.note}.${depletion}` };
+  return { widthM: r.criticalKm === null ? null : r.criticalKm * 1000, note: `${r.note}.${depletion}`, assumesIntactHosts: s.pest.hostKillRate > 0 };
 }
 
 /** The baseline crossing and snapshot for one option, from a given baseline or a fresh (unrecorded) run. */
@@ -331,7 +331,8 @@ export function criticalWidth(s: PointScenario, option: BarrierOptionSpec | Clea
   checkOption(s, { name: 'option', ...option });
   const toleranceM = settings.toleranceM ?? s.barrier?.toleranceM ?? DEFAULT_TOLERANCE_M;
   const geometry = barrierGeometry(s, option);
-  const pp = settings.phasePlane === false ? { widthM: null, note: 'phase-plane value not computed (switched off)' } : phasePlaneWidth(s, option);
+  const pp: ReturnType<typeof phasePlaneWidth> =
+    settings.phasePlane === false ? { widthM: null, note: 'phase-plane value not computed (switched off)' } : phasePlaneWidth(s, option);
   const base: CriticalWidthOutcome = {
     applicable: false,
     note: '',
@@ -340,6 +341,7 @@ export function criticalWidth(s: PointScenario, option: BarrierOptionSpec | Clea
     runs: 0,
     phasePlaneM: pp.widthM,
     phasePlaneNote: pp.note,
+    phasePlaneAssumesIntactHosts: pp.assumesIntactHosts ?? false,
     marginal: false,
     delayPer100mYears: null,
     history: [],
@@ -852,6 +854,7 @@ function stripInternals(c: CriticalWidthOutcome): CriticalWidth {
     runs: c.runs,
     phasePlaneM: c.phasePlaneM,
     phasePlaneNote: c.phasePlaneNote,
+    phasePlaneAssumesIntactHosts: c.phasePlaneAssumesIntactHosts,
     marginal: c.marginal,
     delayPer100mYears: c.delayPer100mYears,
     halfStepCheck: c.halfStepCheck,

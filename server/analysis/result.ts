@@ -161,6 +161,11 @@ export interface CriticalWidth {
   delayPer100mYears: number | null;
   /** Why the phase-plane value is missing, or what it assumes (e.g. hosts held at their present stocking). */
   phasePlaneNote?: string;
+  /**
+   * True when the pest kills its hosts but the phase-plane value holds them at their present stocking: it is
+   * then a different model from the full runs (usually wider than the bracket) and must be labelled so.
+   */
+  phasePlaneAssumesIntactHosts?: boolean;
   /** The bracket's lower end repeated with half the time step; null when not run. */
   halfStepCheck?: { widthM: number; outcome: string } | null;
   /** Both bracket ends repeated on a computational window twice as large; agreed = same outcomes. */

@@ -105,7 +105,8 @@ export function criticalWidthText(o: OptionResult): string {
   const c = o.criticalWidth;
   if (!c) return 'not computed';
   if (!c.applicable) return 'none: no width holds (no Allee effect)';
-  const pp = c.phasePlaneM !== null && Number.isFinite(c.phasePlaneM) ? ` (phase-plane ${metres(c.phasePlaneM)} m)` : '';
+  const label = c.phasePlaneAssumesIntactHosts ? 'phase-plane with hosts intact' : 'phase-plane';
+  const pp = c.phasePlaneM !== null && Number.isFinite(c.phasePlaneM) ? ` (${label} ${metres(c.phasePlaneM)} m)` : '';
   if (!c.bracketM) return `not found${pp}`;
   return `${metres(c.bracketM[0])}–${metres(c.bracketM[1])} m${pp}`;
 }

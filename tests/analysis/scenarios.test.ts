@@ -32,6 +32,8 @@ describe('demo scenarios', () => {
       for (const o of doc.options) {
         // "holds" only with a verified pinning, never because a run ran out of time.
         if (o.verdict.kind === 'holds') expect(o.pinning.verified).toBe(true);
+        // A phase-plane width that holds hosts intact is flagged whenever the pest kills its hosts.
+        if (o.criticalWidth.phasePlaneM !== null) expect(o.criticalWidth.phasePlaneAssumesIntactHosts).toBe(s.pest.hostKillRate !== 0);
       }
     });
   }

@@ -1,7 +1,7 @@
 import { describe, expect, it, beforeAll } from 'vitest';
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { renderBriefing, PAGE, footerLines, runDateText, type BriefingLayout } from '../../server/report/briefing.ts';
-import { bottomLine, baselineLine, optionRows, parameterRows, questionText, readUncertainty, splitCautions, treesOf, treesText, VERDICT_LABELS } from '../../server/report/briefing-text.ts';
+import { bottomLine, baselineLine, criticalWidthText, optionRows, parameterRows, questionText, readUncertainty, splitCautions, treesOf, treesText, VERDICT_LABELS } from '../../server/report/briefing-text.ts';
 import { CAUTIONS, MODEL_LIMITS } from '../../server/analysis/cautions.ts';
 import { parseScenario } from '../../server/model/scenario.ts';
 import { FIELDS } from '../../server/model/fields.ts';
@@ -78,6 +78,15 @@ describe('briefing for a full result (3 options, 2 sites, uncertainty)', () => {
     expect(r.doc.options[0].trees.stemsRemoved).toBeCloseTo(420 * 0.8 * 6 * 100, 6);
     expect(cover).toContain(squash(integer(201600)));
     expect(cover).toContain(squash('Before acting on this briefing'));
+  });
+
+  it('a phase-plane width computed with hosts held intact is labelled so when the pest kills its hosts', () => {
+    const base = makeResultFixture({}).doc.options[0];
+    const cw = base.criticalWidth;
+    const killing = { ...base, criticalWidth: { ...cw, phasePlaneAssumesIntactHosts: true } };
+    const intact = { ...base, criticalWidth: { ...cw, phasePlaneAssumesIntactHosts: false } };
+    expect(criticalWidthText(killing)).toMatch(/phase-plane with hosts intact 401 m/);
+    expect(criticalWidthText(intact)).toMatch(/\(phase-plane 401 m\)/);
   });
 
   it('options table: width, trees, cost, verdict and critical width of each option; arrival and delay per site', () => {
