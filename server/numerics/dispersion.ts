@@ -13,6 +13,7 @@
  * ρ constant); edge condition: Ovaskainen & Cornell (2003), Maciel & Lutscher (2013); spreading speed in
  * periodic patchy landscapes with interface conditions: Hamel, Lutscher & Zhang.
  */
+import { goldenSectionMin } from './minimise.ts';
 import { EigenvalueDecomposition, Matrix } from 'ml-matrix';
 
 /** One uniform patch of the period. */
@@ -140,30 +141,8 @@ export function spreadingSpeed(patches: readonly Patch[]): SpreadSpeed {
       best = s;
     }
   }
-  let a = best / Math.pow(10, 1 / 20);
-  let b = best * Math.pow(10, 1 / 20);
-  const g = (Math.sqrt(5) - 1) / 2;
-  let c = b - g * (b - a);
-  let d = a + g * (b - a);
-  let fc = ratio(c);
-  let fd = ratio(d);
-  for (let it = 0; it < 100 && b - a > 1e-10 * best; it++) {
-    if (fc < fd) {
-      b = d;
-      d = c;
-      fd = fc;
-      c = b - g * (b - a);
-      fc = ratio(c);
-    } else {
-      a = c;
-      c = d;
-      fc = fd;
-      d = a + g * (b - a);
-      fd = ratio(d);
-    }
-  }
-  const sStar = fc < fd ? c : d;
-  return { speed: Math.min(fc, fd), decayRate: sStar, lambda0 };
+  const m = goldenSectionMin(ratio, best / Math.pow(10, 1 / 20), best * Math.pow(10, 1 / 20), 1e-10 * best);
+  return { speed: m.value, decayRate: m.x, lambda0 };
 }
 
 /**

@@ -17,6 +17,7 @@
  * interface conditions: Hamel, Lutscher & Zhang, "Propagation and blocking in a two-patch
  * reaction-diffusion model". Edge condition: Ovaskainen & Cornell (2003); Maciel & Lutscher (2013).
  */
+import { goldenSectionMin } from './minimise.ts';
 
 export interface BlockingProblem {
   /** D in the forest on both sides [km²/yr]. */
@@ -149,29 +150,7 @@ export function criticalGapWidth(pr: BlockingProblem, nScan = 1200): BlockingRes
   if (bestJ < 0) return { criticalKm: null, pAtCritical: null, qAtCritical: null, note: 'no blocking steady state found' };
   // Golden section on [p_{j−1}, p_{j+1}] (W(p) is smooth near its minimum on one branch).
   const w = (p: number) => minWidth(pr, p)?.widthKm ?? Infinity;
-  let a = (K * Math.max(bestJ - 1, 1e-6)) / nScan;
-  let b = (K * Math.min(bestJ + 1, nScan - 1e-6)) / nScan;
-  const g = (Math.sqrt(5) - 1) / 2;
-  let c = b - g * (b - a);
-  let d = a + g * (b - a);
-  let fc = w(c);
-  let fd = w(d);
-  for (let it = 0; it < 120 && b - a > 1e-14 * K; it++) {
-    if (fc < fd) {
-      b = d;
-      d = c;
-      fd = fc;
-      c = b - g * (b - a);
-      fc = w(c);
-    } else {
-      a = c;
-      c = d;
-      fc = fd;
-      d = a + g * (b - a);
-      fd = w(d);
-    }
-  }
-  const pStar = fc < fd ? c : d;
+  const pStar = goldenSectionMin(w, (K * Math.max(bestJ - 1, 1e-6)) / nScan, (K * Math.min(bestJ + 1, nScan - 1e-6)) / nScan, 1e-14 * K, 120).x;
   const r = minWidth(pr, pStar);
   const wStar = Math.min(bestW, r?.widthKm ?? Infinity);
   return {
