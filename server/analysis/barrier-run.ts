@@ -7,7 +7,7 @@ import type { DiffusionOperator } from '../numerics/diffusion.ts';
 import { runTimeLoop, type FieldState, type FieldStepper, type Observer } from '../numerics/time-loop.ts';
 import { solveSteadyState, linearStability } from '../numerics/steady.ts';
 import { cellIndexAt, type Grid } from '../numerics/grid.ts';
-import { alleeThreshold, equilibria, lowDensityRate, type PointGrowth } from '../model/growth.ts';
+import { alleeThreshold, equilibria, lowDensityRate } from '../model/growth.ts';
 import type { PointScenario } from '../model/scenario.ts';
 import { segmentBreaks } from '../model/scenario.ts';
 import { discretise, growthRateScale, type Resolution, type TransectProblem } from './discretise.ts';

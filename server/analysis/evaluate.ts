@@ -36,6 +36,24 @@ export function modelFacts(s: PointScenario): ResultDocument['model'] {
   };
 }
 
+/** The identifying part of a result document: tool, fingerprint, run date and what the scenario says about itself. */
+export function documentHeader(scenario: Scenario, runAt: string) {
+  const s = pointScenario(scenario);
+  return {
+    resultVersion: RESULT_VERSION,
+    tool: { ...TOOL },
+    scenarioFingerprint: fingerprint(scenario),
+    runAt,
+    title: s.title,
+    description: s.description,
+    region: s.region,
+    pest: { name: s.pest.name, illustrative: s.pest.illustrative },
+    horizonYears: s.horizonYears,
+    detectionLevel: s.detectionLevel,
+    infestation: { fromKm: s.infestation.fromKm, toKm: s.infestation.toKm, density: s.infestation.density },
+  };
+}
+
 /**
  * Evaluates a validated scenario: baseline run and one run per barrier option.
  * The function every front end calls (CLI, web routes, workers, briefing).
@@ -71,17 +89,7 @@ export function evaluateScenario(scenario: Scenario, opts: EvaluateOptions = {})
   const bypass = opts.ensemble === 'skip' && scenario.uncertainty ? undefined : analyseBypass(s, optionResults, uncertainty, opts.shouldCancel);
   opts.onProgress?.(1, 'done');
   return {
-    resultVersion: RESULT_VERSION,
-    tool: { ...TOOL },
-    scenarioFingerprint: fingerprint(scenario),
-    runAt: (opts.now?.() ?? new Date()).toISOString(),
-    title: s.title,
-    description: s.description,
-    region: s.region,
-    pest: { name: s.pest.name, illustrative: s.pest.illustrative },
-    horizonYears: s.horizonYears,
-    detectionLevel: s.detectionLevel,
-    infestation: { fromKm: s.infestation.fromKm, toKm: s.infestation.toKm, density: s.infestation.density },
+    ...documentHeader(scenario, (opts.now?.() ?? new Date()).toISOString()),
     model: modelFacts(s),
     baseline: baseline.summary,
     options: optionResults,

@@ -84,17 +84,6 @@ export function makeCoupledStepper(op: DiffusionOperator, coeffs: CoupledCoeffic
   const cStar = 1 / (GAMMA * (2 - GAMMA));
   const cOld = ((1 - GAMMA) * (1 - GAMMA)) / (GAMMA * (2 - GAMMA));
 
-  /** rate[i] = per-capita rate at (u, h) (negative densities read as 0); returns the largest positive rate. */
-  function rates(u: Float64Array, h: Float64Array): number {
-    let maxPositive = 0;
-    for (let i = 0; i < n; i++) {
-      const g = hostAtCells[i] ? perCapita(Math.max(u[i], 0), Math.max(h[i], 0)) : -mortalityAtCells[i];
-      rate[i] = g;
-      if (g > maxPositive) maxPositive = g;
-    }
-    return maxPositive;
-  }
-
   /** Factorises I − tau (L + diag(rate)), with only the negative rates when `sinksOnly`. */
   function factor(tau: number, sinksOnly: boolean): void {
     for (let i = 0; i < n; i++) {

@@ -8,7 +8,7 @@ import PDFDocument from 'pdfkit';
 import type { ResultDocument } from '../analysis/result.ts';
 import type { Scenario } from '../model/scenario.ts';
 import { TOOL } from '../version.ts';
-import { km, num, years } from './format.ts';
+import { num } from './format.ts';
 import { dispersionCurveChart, frontPositionChart, hostProfileChart, mosaicSpeedChart, spaceTimeChart, transectStrip, uncertaintyCharts, widthDelayChart } from './charts/index.ts';
 import { optionKey } from './charts/styles.ts';
 import {

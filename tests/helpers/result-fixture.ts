@@ -6,12 +6,11 @@
  * know exactly what the charts and tables must show. The scenario behind it is real (validated), so the
  * fingerprint, layout, trees removed and parameters table are consistent with it.
  */
-import { fingerprint } from '../../server/model/canonical.ts';
 import { parseScenario, pointScenario, type Scenario, type ScenarioInput } from '../../server/model/scenario.ts';
 import { buildLayout, stemsRemoved } from '../../server/analysis/layout.ts';
 import { allCautions } from '../../server/analysis/cautions.ts';
-import { RESULT_VERSION, type UncertaintyResult, type MosaicResult, type OptionResult, type ResultDocument, type RunResult, type SiteVerdict, type VerdictKind } from '../../server/analysis/result.ts';
-import { TOOL } from '../../server/version.ts';
+import { documentHeader } from '../../server/analysis/evaluate.ts';
+import { type UncertaintyResult, type MosaicResult, type OptionResult, type ResultDocument, type RunResult, type SiteVerdict, type VerdictKind } from '../../server/analysis/result.ts';
 
 export interface FixtureSpec {
   title?: string;
@@ -265,17 +264,7 @@ export function makeResultFixture(spec: FixtureSpec = {}): { input: ScenarioInpu
     };
   });
   const doc: ResultDocument = {
-    resultVersion: RESULT_VERSION,
-    tool: { ...TOOL },
-    scenarioFingerprint: fingerprint(scenario),
-    runAt: spec.runAt ?? '2031-05-04T09:30:00.000Z',
-    title: s.title,
-    description: s.description,
-    region: s.region,
-    pest: { name: s.pest.name, illustrative: s.pest.illustrative },
-    horizonYears: s.horizonYears,
-    detectionLevel: s.detectionLevel,
-    infestation: { fromKm: s.infestation.fromKm, toKm: s.infestation.toKm, density: s.infestation.density },
+    ...documentHeader(scenario, spec.runAt ?? '2031-05-04T09:30:00.000Z'),
     model: { growthForm: 'allee-cubic', lowDensityRate: -0.2, alleeThreshold: 0.2, linearSpeedKmPerYear: 0, hostDepletion: true },
     baseline,
     options,

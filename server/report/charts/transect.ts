@@ -10,7 +10,7 @@ import { num } from '../format.ts';
 import { el, isNum, line, rect, svgRoot, text } from './svg.ts';
 import { fitText, textWidth } from './text-metrics.ts';
 import { optionKey } from './styles.ts';
-import { DEFAULT_WIDTH, axisBottom, bottom, legend, right, siteNumber, wrapTokens, type Box, type Chart, type ChartSize, type LegendEntry } from './frame.ts';
+import { DEFAULT_WIDTH, axisBottom, bottom, legend, siteNumber, wrapTokens, type Box, type Chart, type ChartSize, type LegendEntry } from './frame.ts';
 import { infestationOf, optionInterval, transectExtent, type Interval, type SitePart } from './parts.ts';
 
 export interface TransectInput {
