@@ -350,7 +350,8 @@ export function criticalWidth(s: PointScenario, option: BarrierOptionSpec | Clea
     windowKm: null,
   };
   const pieces = buildLayout(s);
-  const beyond = pieces.filter((p) => p.habitat === 'host-forest' && p.stocking > 0 && isBeyond(geometry, 0.5 * (p.fromKm + p.toKm)));
+  // Host forest with some stretch beyond the clearing (its far end lies beyond, whatever its midpoint).
+  const beyond = pieces.filter((p) => p.habitat === 'host-forest' && p.stocking > 0 && isBeyond(geometry, geometry.direction > 0 ? p.toKm : p.fromKm));
   const hBeyond = Math.max(0, ...beyond.map((p) => p.stocking));
   if (pinningMode(s, hBeyond) === 'none') {
     return {
