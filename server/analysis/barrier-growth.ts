@@ -102,3 +102,21 @@ export function cellReaction(problem: TransectProblem, h: Float64Array): CellRea
     }
   };
 }
+
+/**
+ * True when a front cannot advance through unbroken host forest at host fraction h: either the pest has
+ * no positive equilibrium there and declines at every density, or it has a strong Allee effect with
+ * F(capacity) ≤ 0 (the travelling front of the bistable equation moves backwards when ∫₀ᴷ u g du ≤ 0;
+ * McKean 1970; Lewis & Kareiva 1993 for the cubic, where this is a ≥ ½).
+ */
+export function frontCannotAdvance(g: PointGrowth, h: number): boolean {
+  if (!(h > 0)) return true;
+  const { capacity } = equilibria(g, h);
+  if (lowDensityRate(g, h) > 0) return false;
+  if (capacity === null) return lowDensityRate(g, h) < 0 && alleeThreshold(g, h) === null;
+  if (!strongAllee(g, h)) return false;
+  const F = potential(g, h);
+  const threshold = alleeThreshold(g, h)!;
+  // A standing front (F(K) = 0, e.g. a = ½) does not advance either; the slack absorbs round-off in F(K).
+  return F(capacity) <= 1e-10 * Math.abs(F(threshold));
+}

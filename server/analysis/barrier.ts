@@ -18,7 +18,7 @@ import { makeEngineStepper, runLayout, summariseRun, type RunOutput } from './si
 import { ArrivalTracker } from './trackers.ts';
 import { spreadRate } from './speed.ts';
 import type { CriticalWidth, OptionResult, RunResult, SiteVerdict, VerdictKind, WidthDelayRow } from './result.ts';
-import { potential, potentialThreshold, strongAllee } from './barrier-growth.ts';
+import { frontCannotAdvance, potential, potentialThreshold, strongAllee } from './barrier-growth.ts';
 import {
   CrossingWatch,
   PINNING_METHODS,
@@ -697,6 +697,13 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
   const firstBeyond = s.sites.map((x, k) => ({ x, k })).filter(({ k }) => beyondSites[k]).sort((a, b) => geometry.direction * (a.x.atKm - b.x.atKm))[0];
   if (!critical.applicable && firstBeyond) critical.delayPer100mYears = delayPer100m(curve, firstBeyond.k);
 
+  // A pest whose front cannot advance through the stand before the clearing never meets it: nothing to hold.
+  const nearX = geometry.nearKm - geometry.direction * 1e-6;
+  const nearPiece = buildLayout(s).find((p) => p.fromKm <= nearX && nearX < p.toKm);
+  const stalls = crossing.crossedYears === null && nearPiece?.habitat === 'host-forest' && frontCannotAdvance(s.pest.growth, nearPiece.stocking);
+  const stallReason =
+    'in this model its front cannot advance even through unbroken host forest here (too few insects find mates, or losses exceed growth), so no clearing is needed to stop it';
+
   // Verdicts per site.
   const cost = s.barrier?.costPerStem !== undefined ? stemsRemoved(s, option, s.barrier?.lengthKm ?? 1) * s.barrier.costPerStem : null;
   const dtc = changeThreshold(resolution.stepYears);
@@ -708,7 +715,10 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
     let kind: VerdictKind;
     let sentence: string;
     let delay: number | null = null;
-    if (pinned && beyond) {
+    if (stalls && b === null && o === null) {
+      kind = 'not-reached';
+      sentence = `Not reached, with or without the clearing: ${stallReason}.`;
+    } else if (pinned && beyond) {
       kind = marginal ? 'marginal' : 'holds';
       const fringe = o !== null ? ` Low-density fringe beyond the clearing: the site sees density at the detection level from year ${o.toFixed(1)}, but no breeding population forms.` : '';
       sentence = marginal
@@ -764,7 +774,10 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
   let kind: VerdictKind;
   let sentence: string;
   const firstSite = firstBeyond ? sites[firstBeyond.k] : null;
-  if (pinned) {
+  if (stalls && optCross === null) {
+    kind = 'not-reached';
+    sentence = `The pest does not reach the clearing, with or without it: ${stallReason}.`;
+  } else if (pinned) {
     kind = marginal ? 'marginal' : 'holds';
     sentence = marginal
       ? `Marginal: the front was held in this run, but ${option.widthM} m is within the critical-width bracket's uncertainty (${bracket![0].toFixed(0)}–${bracket![1].toFixed(0)} m).`

@@ -182,3 +182,16 @@ describe('critical width wherever the clearing lies', () => {
     });
   }
 });
+
+describe('a pest whose front cannot advance is never "held"', () => {
+  it('cubic with a = 0.6 (c = √(2rD)(½ − a) < 0: the front retreats; McKean 1970): not reached, with or without the clearing', () => {
+    const s = synthetic({ growth: { form: 'allee-cubic', rate: 1, alleeThreshold: 0.6 } }, 800, 20);
+    const base = analyseBaseline(s, s.barrier!.options, { record: false });
+    // The baseline shows the retreat: no site is reached and the front never passes the clearing.
+    expect(base.summary.arrivals.every((a) => a.arrivalYears === null)).toBe(true);
+    const { result: r } = analyseOption(s, s.barrier!.options[0], { baseline: base, record: false, widthCurve: false });
+    expect(r.verdict.kind).toBe('not-reached');
+    expect(r.verdict.sentence).toMatch(/cannot advance even through unbroken host forest/);
+    expect(r.sites.map((x) => x.kind)).toEqual(['not-reached', 'not-reached']);
+  });
+});
