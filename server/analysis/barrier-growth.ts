@@ -45,7 +45,18 @@ export function potential(g: PointGrowth, h: number): (u: number) => number {
   };
 }
 
-/** True when small founding groups decline at host fraction h but larger ones grow (strong Allee effect). */
+/**
+ * True when small founding groups decline at host fraction h but larger ones grow (an Allee threshold
+ * exists), whether or not crowding caps the density.
+ */
+export function smallGroupsFail(g: PointGrowth, h = 1): boolean {
+  return lowDensityRate(g, h) < 0 && alleeThreshold(g, h) !== null;
+}
+
+/**
+ * Strong Allee effect with a carrying capacity at host fraction h: small groups fail and the density settles
+ * at a capacity (what the bistable front, its potential F and the phase-plane criterion need).
+ */
 export function strongAllee(g: PointGrowth, h = 1): boolean {
   return lowDensityRate(g, h) < 0 && alleeThreshold(g, h) !== null && equilibria(g, h).capacity !== null;
 }

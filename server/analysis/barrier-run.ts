@@ -12,7 +12,7 @@ import type { PointScenario } from '../model/scenario.ts';
 import { segmentBreaks } from '../model/scenario.ts';
 import { discretise, growthRateScale, type Resolution, type TransectProblem } from './discretise.ts';
 import type { ClearingSpec, Piece } from './layout.ts';
-import { cellReaction, establishedLevel, potentialThreshold, strongAllee } from './barrier-growth.ts';
+import { cellReaction, establishedLevel, potentialThreshold, smallGroupsFail, strongAllee } from './barrier-growth.ts';
 import { ArrivalTracker } from './trackers.ts';
 import { makeEngineStepper } from './simulate.ts';
 
@@ -267,8 +267,11 @@ export interface Judgement {
 
 /** Which verification applies: exact steady state (hosts not depleted), die-out (hosts depleted), or none. */
 export function pinningMode(s: PointScenario, hBeyond: number): PinningMode {
-  if (!strongAllee(s.pest.growth, hBeyond)) return 'none';
-  return s.pest.hostKillRate === 0 ? 'steady-state' : 'dies-out';
+  const g = s.pest.growth;
+  // With host loss the test is die-out, which needs only an Allee threshold (a population without crowding
+  // is still bounded by the hosts it eats); a steady front needs a carrying capacity as well.
+  if (s.pest.hostKillRate > 0) return smallGroupsFail(g, hBeyond) ? 'dies-out' : 'none';
+  return strongAllee(g, hBeyond) ? 'steady-state' : 'none';
 }
 
 /** Shortest guarantee [yr] the cubic die-out bound must give before the pest counts as gone. */

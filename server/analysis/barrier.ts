@@ -18,7 +18,7 @@ import { makeEngineStepper, runLayout, summariseRun, type RunOutput } from './si
 import { ArrivalTracker } from './trackers.ts';
 import { spreadRate } from './speed.ts';
 import type { CriticalWidth, OptionResult, RunResult, SiteVerdict, VerdictKind, WidthDelayRow } from './result.ts';
-import { frontCannotAdvance, potential, potentialThreshold, strongAllee } from './barrier-growth.ts';
+import { frontCannotAdvance, potential, potentialThreshold, smallGroupsFail, strongAllee } from './barrier-growth.ts';
 import {
   CrossingWatch,
   PINNING_METHODS,
@@ -294,7 +294,10 @@ export function phasePlaneWidth(s: PointScenario, option: ClearingSpec): { width
   }
   const gr = s.pest.growth;
   if (!strongAllee(gr, after.stocking) || !strongAllee(gr, before.stocking)) {
-    return { widthM: null, note: 'no strong Allee effect: the phase-plane blocking criterion does not apply' };
+    const why = smallGroupsFail(gr, after.stocking)
+      ? 'the pest has an Allee threshold but no carrying capacity (no crowding), so there is no steady front for the phase-plane criterion'
+      : 'no strong Allee effect: the phase-plane blocking criterion does not apply';
+    return { widthM: null, note: why };
   }
   const host = habitatCoefficients(s.pest, 'host-forest');
   const gap = habitatCoefficients(s.pest, option.cover);
@@ -492,7 +495,7 @@ export function reasonInWords(s: PointScenario, cover: ClearingSpec['cover'], ki
         : `they do not avoid the edge (edge preference ${fmt(alpha)})`;
   const jump = open.residence / host.residence;
   const mort = `mortality in ${ground} is ${fmt(open.mortality)} /yr`;
-  const allee = strongAllee(p.growth, 1);
+  const allee = smallGroupsFail(p.growth, 1);
   const growthWords = allee
     ? 'the pest has a strong Allee effect: the few insects that get across are too sparse to breed unless enough of them arrive together'
     : 'the pest has no Allee effect: even a few insects that get across found a growing population';

@@ -195,3 +195,21 @@ describe('a pest whose front cannot advance is never "held"', () => {
     expect(r.sites.map((x) => x.kind)).toEqual(['not-reached', 'not-reached']);
   });
 });
+
+describe('mate-finding without crowding, hosts eaten: an Allee threshold without a carrying capacity', () => {
+  // P(u) = 1 − e^(−u/θ), b = 3, m = 1, θ = 0.1, γ = 0: threshold −θ ln(1 − m/b) = 0.0405 (SCIENCE.md §5.2, own
+  // algebra) but no capacity; hosts eaten at c = 0.5 bound the population. Regression: this was reported as
+  // "no strong Allee effect", so no width could ever hold.
+  const mf = { growth: { form: 'mate-finding', birthRate: 3, deathRate: 1, crowding: 0, mating: 'exponential', mateScale: 0.1 }, hostKillRate: 0.5, mortalityOpen: 4, edgePreferenceOpen: 0.8 };
+  it('a critical width is bracketed and a wider clearing holds (the pest dies out at it)', () => {
+    const s = synthetic(mf, 1500, 40);
+    const { result: r } = analyseOption(s, s.barrier!.options[0], { record: false, widthCurve: false });
+    expect(r.criticalWidth.applicable).toBe(true);
+    expect(r.criticalWidth.bracketM).not.toBeNull();
+    expect(r.criticalWidth.phasePlaneM).toBeNull();
+    expect(r.criticalWidth.phasePlaneNote).toMatch(/no carrying capacity/);
+    expect(r.verdict.kind).toBe('holds');
+    expect(r.pinning.method).toMatch(/die-out/);
+    expect(r.verdict.why).toMatch(/strong Allee effect/);
+  });
+});
