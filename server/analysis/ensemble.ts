@@ -272,10 +272,36 @@ export function evaluateDraw(scenario: Scenario, plan: EnsemblePlan, i: number, 
 
 /* ------------------------------------------------------------------ summaries */
 
-/** Probability with its Monte Carlo standard error √(p(1−p)/n). */
+/** Standard normal quantile for a two-sided 95 % interval. */
+const Z95 = 1.959963984540054;
+
+/**
+ * Wilson score interval for a binomial proportion (Wilson 1927, J. Am. Stat. Assoc. 22:209–212): unlike
+ * p ± 1.96·√(p(1−p)/n) it does not collapse to a point when every draw agrees (12 of 12 holding gives
+ * 0.758–1, not 1–1).
+ */
+export function wilsonInterval(successes: number, n: number, z = Z95): [number, number] {
+  if (!(n > 0)) return [NaN, NaN];
+  const p = successes / n;
+  const z2n = (z * z) / n;
+  const centre = (p + z2n / 2) / (1 + z2n);
+  const half = (z / (1 + z2n)) * Math.sqrt((p * (1 - p)) / n + (z * z) / (4 * n * n));
+  return [Math.max(0, centre - half), Math.min(1, centre + half)];
+}
+
+/** Probability with its Monte Carlo standard error √(p(1−p)/n) and its 95 % Wilson interval. */
 export function probability(successes: number, n: number): ProbabilityEstimate {
   const p = n > 0 ? successes / n : NaN;
-  return { p, standardError: n > 0 ? Math.sqrt((p * (1 - p)) / n) : NaN, n };
+  return { p, standardError: n > 0 ? Math.sqrt((p * (1 - p)) / n) : NaN, n, interval95: wilsonInterval(successes, n) };
+}
+
+/**
+ * Sampling uncertainty used to decide whether there are enough draws: the standard error, or a quarter of the
+ * Wilson interval's width when that is larger (it is when every draw agrees and the standard error is 0).
+ */
+export function effectiveStandardError(e: ProbabilityEstimate): number {
+  const w = e.interval95 ? (e.interval95[1] - e.interval95[0]) / (2 * Z95) : 0;
+  return Math.max(Number.isFinite(e.standardError) ? e.standardError : 0, Number.isFinite(w) ? w : 0);
 }
 
 /** Mean of per-draw probabilities with the standard error of the mean (sample standard deviation / √n). */
@@ -442,7 +468,11 @@ export function summariseEnsemble(
     const sentences: string[] = [];
     sentences.push(
       `Option "${o.name}" (${o.widthM} m): the front does not get past the clearing within ${horizon} years in ${pct(holds.p)} of ${n} draws` +
-        (n > 1 ? ` (± ${(100 * holds.standardError).toFixed(1)} percentage points, one standard error).` : '.'),
+        (n > 1
+          ? holds.standardError > 0
+            ? ` (± ${(100 * holds.standardError).toFixed(1)} percentage points, one standard error).`
+            : ` (every draw agrees; 95 % interval ${(100 * holds.interval95![0]).toFixed(1)}–${(100 * holds.interval95![1]).toFixed(1)} %).`
+          : '.'),
     );
     if (pinned) sentences.push(`It is verified to hold indefinitely (front pinned) in ${pct(pinned.p)} of draws.`);
     if (criticalWidth.computed && criticalWidth.holds90M !== null) {
@@ -464,7 +494,7 @@ export function summariseEnsemble(
     };
   });
   for (const b of baselineSites) probs.push(b.reachedWithinHorizon);
-  const largest = probs.reduce((a, p) => (Number.isFinite(p.standardError) ? Math.max(a, p.standardError) : a), 0);
+  const largest = probs.reduce((a, p) => Math.max(a, effectiveStandardError(p)), 0);
   const adequate = plan.parameters.length === 0 || largest <= target;
   const drawsSuggested = adequate ? n : Math.ceil(n * (largest / target) ** 2);
   const message =

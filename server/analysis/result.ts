@@ -250,6 +250,8 @@ export interface ProbabilityEstimate {
   standardError: number;
   /** Draws the estimate rests on. */
   n: number;
+  /** 95 % Wilson score interval [low, high] (counts only; absent for averaged probabilities). */
+  interval95?: [number, number];
 }
 
 /**
@@ -366,7 +368,11 @@ export interface UncertaintyResult {
   /** Baseline arrival at each site. */
   baseline: { sites: { name: string; atKm: number; reachedWithinHorizon: ProbabilityEstimate; arrivalYears: QuantileSummary }[] };
   options: OptionUncertainty[];
-  /** Monte Carlo adequacy: largest probability standard error against the target. */
+  /**
+   * Monte Carlo adequacy: largest probability standard error against the target. Where every draw agreed
+   * (standard error 0) a quarter of the 95 % Wilson interval's width stands in for it, so a small ensemble
+   * in which everything held still asks for more draws.
+   */
   convergence: {
     targetStandardError: number;
     largestStandardError: number;

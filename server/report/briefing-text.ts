@@ -10,7 +10,7 @@ import { stemsRemoved } from '../analysis/layout.ts';
 import { FIELDS, type FieldSpec } from '../model/fields.ts';
 import { isDistribution, listUncertain, type Distribution } from '../model/quantity.ts';
 import { pointScenario, segmentBreaks, type Scenario } from '../model/scenario.ts';
-import { fixed, integer, km, num, percent, speed, years } from './format.ts';
+import { fixed, integer, km, num, percent, probabilityEstimate, speed, years } from './format.ts';
 import { optionKey } from './charts/styles.ts';
 
 /** Short verdict labels for tables. */
@@ -366,7 +366,7 @@ const numOr = (x: unknown): number | null => (typeof x === 'number' && Number.is
 /** Reads the uncertainty section; null when absent or in a layout this version does not know. */
 export function readUncertainty(u: unknown): UncertaintyView | null {
   if (!isObj(u) || !Array.isArray(u.options)) return null;
-  const prob = (p: unknown) => (isObj(p) && numOr(p.p) !== null ? `${percent(p.p as number)}${numOr(p.standardError) !== null ? ` ± ${percent(p.standardError as number, 1)}` : ''}` : '—');
+  const prob = (p: unknown) => (isObj(p) && numOr(p.p) !== null ? probabilityEstimate(p as { p: number; standardError: number; interval95?: [number, number] }, 0) : '—');
   const widthText = (x: unknown) => (numOr(x) !== null ? `${num(x as number, 4)} m` : 'beyond the range searched');
   const quant = (q: unknown) => {
     if (!isObj(q)) return '—';

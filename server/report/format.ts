@@ -41,3 +41,20 @@ export function num(x: number, sig = 3): string {
   if (a >= 1e-3 && a < 1e6) return Number(x.toPrecision(sig)).toString().replace('-', '−');
   return x.toExponential(sig - 1).replace('-', '−');
 }
+
+/**
+ * A probability estimated from draws: "62.5 % ± 1.5 %" (one standard error); when every draw agreed (standard
+ * error 0) the 95 % Wilson interval instead, "100 % (95 % interval 75.8–100 %)", since ± 0 would overstate
+ * what a finite ensemble shows.
+ */
+export function probabilityEstimate(
+  e: { p: number; standardError: number; interval95?: [number, number] } | null | undefined,
+  digits = 1,
+): string {
+  if (!e || !Number.isFinite(e.p)) return '—';
+  const [lo, hi] = e.interval95 ?? [NaN, NaN];
+  if (!(e.standardError > 0) && Number.isFinite(lo) && Number.isFinite(hi) && hi - lo > 0) {
+    return `${percent(e.p, digits)} (95 % interval ${fixed(100 * lo, 1)}–${fixed(100 * hi, 1)} %)`;
+  }
+  return Number.isFinite(e.standardError) ? `${percent(e.p, digits)} ± ${percent(e.standardError, 1)}` : percent(e.p, digits);
+}

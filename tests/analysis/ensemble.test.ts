@@ -1,6 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { parseScenario, pointScenario } from '../../server/model/scenario.ts';
-import { drawValues, evaluatePoint, planEnsemble, runEnsemble, summariseEnsemble, type DrawOutcome } from '../../server/analysis/ensemble.ts';
+import { drawValues, effectiveStandardError, evaluatePoint, planEnsemble, probability, runEnsemble, summariseEnsemble, wilsonInterval, type DrawOutcome } from '../../server/analysis/ensemble.ts';
+import { expectAllClose } from '../helpers/close.ts';
+import { probabilityEstimate } from '../../server/report/format.ts';
 import { runEnsembleParallel } from '../../server/analysis/ensemble-pool.ts';
 import { evaluateScenario } from '../../server/analysis/evaluate.ts';
 import { FIELDS } from '../../server/model/fields.ts';
@@ -134,5 +136,31 @@ describe('ensemble over uncertain parameters', () => {
     expect(r.convergence.adequate).toBe(false);
     expect(r.convergence.message).toMatch(/More draws needed/);
     expect(r.convergence.drawsSuggested).toBeGreaterThan(8 * (r.convergence.largestStandardError / 0.02) ** 2 - 1);
+  });
+});
+
+describe('probability estimates from draws', () => {
+  it('95 % Wilson score interval (Wilson 1927) matches scipy.stats.binomtest(k, n).proportion_ci(method="wilson")', () => {
+    // Values computed with scipy 1.17: binomtest(k, n).proportion_ci(confidence_level=0.95, method='wilson').
+    const cases: [number, number, [number, number]][] = [
+      [12, 12, [0.7575059933447592, 1]],
+      [0, 12, [0, 0.24249400665524085]],
+      [6, 12, [0.2537815976337061, 0.7462184023662939]],
+      [884, 1000, [0.8626667265227275, 0.9023943229603661]],
+    ];
+    for (const [k, n, ci] of cases) expectAllClose(wilsonInterval(k, n), ci, { rtol: 1e-9, atol: 1e-12 });
+  });
+  it('when every draw agrees the standard error is 0, but the sampling error used for "enough draws" is not', () => {
+    const all = probability(12, 12);
+    expect(all.standardError).toBe(0);
+    // A quarter of the interval width: (1 − 0.7575) / (2 × 1.96) ≈ 0.062, far above a 0.02 target.
+    expectAllClose(effectiveStandardError(all), (1 - 0.7575059933447592) / (2 * 1.959963984540054), { rtol: 1e-9 });
+    // With many draws the interval and the standard error agree (Wilson → Wald for large n).
+    const many = probability(8840, 10000);
+    expectAllClose(effectiveStandardError(many), many.standardError, { rtol: 2e-3 });
+  });
+  it('is printed with its interval, not "± 0", when every draw agrees', () => {
+    expect(probabilityEstimate(probability(12, 12))).toBe('100.0 % (95 % interval 75.8–100.0 %)');
+    expect(probabilityEstimate(probability(6, 12), 0)).toBe('50 % ± 14.4 %');
   });
 });

@@ -4,14 +4,13 @@
  * uncertainty.ts, ensemble.ts, bypass.ts).
  */
 import type { BypassResult, ProbabilityEstimate, QuantileSummary, ResultDocument, UncertaintyResult } from '../../analysis/result.ts';
-import { fixed, integer, num, percent, years } from '../../report/format.ts';
+import { fixed, integer, num, percent, probabilityEstimate, years } from '../../report/format.ts';
 import { optionKey } from '../../report/charts/index.ts';
 import type { TableView } from './result-view.ts';
 
-/** "62.5 % ± 1.5" (estimate and Monte Carlo standard error, in percentage points). */
+/** "62.5 % ± 1.5 %" (estimate and one Monte Carlo standard error), or the 95 % interval when every draw agreed. */
 export function probabilityText(p: ProbabilityEstimate | null | undefined): string {
-  if (!p) return '—';
-  return `${percent(p.p, 1)} ± ${fixed(100 * p.standardError, 1)}`;
+  return probabilityEstimate(p);
 }
 
 /** "12.3 (5–95 %: 9.1–18.0)", with "beyond the horizon" where the quantile lies past the run. */
