@@ -307,6 +307,10 @@ export class PinningJudge {
   private readonly thetaAtCells: Float64Array;
   private readonly capScale: number;
   private readonly rScale: number;
+  /** Host cells just before the clearing (see {@link approachCells}) and the density that counts as a population there. */
+  private readonly approach: { cells: number[]; level: Float64Array };
+  /** True once a population was seen at the clearing's near side (die-out mode needs it to have arrived); callers may set it from an earlier run. */
+  arrived = false;
   attempts = 0;
   constructor(
     private readonly solver: WindowSolver,
@@ -314,6 +318,7 @@ export class PinningJudge {
   ) {
     const s = solver.scenario;
     const { grid, hostAtCells, stockingAtCells } = solver.problem;
+    this.approach = approachCells(s, solver.problem, geometry);
     let hBeyond = 0;
     this.thetaAtCells = new Float64Array(grid.nCells).fill(Infinity);
     let capMax = 0;
@@ -331,12 +336,26 @@ export class PinningJudge {
     this.rScale = growthRateScale(s.pest.growth);
   }
 
+  /** True when some cell just before the clearing holds a population (density at its level). */
+  private present(u: Float64Array): boolean {
+    return isPresent(this.approach, u);
+  }
+
+  /** Notes whether the pest has reached the clearing (call every step; checks run only every few). */
+  note(u: Float64Array): void {
+    if (!this.arrived && this.present(u)) this.arrived = true;
+  }
+
   /** Returns a verified judgement, or null when pinning is not (yet) shown. */
   check(t: number, u: Float64Array, h: Float64Array): Judgement | null {
+    this.note(u);
     switch (this.mode) {
       case 'none':
         return null;
       case 'dies-out':
+        // Dying out is only "held at the clearing" once the pest has arrived there; before that (a window
+        // ahead of a distant front, or a pest dying out on its own) nothing was held.
+        if (!this.arrived) return null;
         return this.checkDiesOut(t, u, h);
       default:
         return this.checkSteady(t, u, h);
@@ -413,11 +432,63 @@ export class PinningJudge {
     const r = solveSteadyState(this.solver.op, reaction, u, { tolerance: 1e-9 * this.rScale * this.capScale });
     if (!r.converged) return null;
     for (const i of this.beyondHost) if (!(r.u[i] < this.thetaAtCells[i])) return null;
+    // A pinned front has a population standing before the clearing; the empty state (no front in the
+    // window yet, or a pest that died out on its own) is steady and stable too, but holds nothing.
+    if (!this.present(r.u)) return null;
     const d = distance(r.u);
     if (d > closeTol) return null;
     if (!linearStability(this.solver.op, reaction, r.u).stable) return null;
     this.candidate = { t, u: r.u, distance: d };
     return null;
+  }
+}
+
+/**
+ * The host cells just before a clearing, where a front that reached it stands: host forest within three
+ * movement lengths of the near edge, counted along host forest only (an existing clearing or non-host
+ * stand right before the cut is stepped over), with the density that counts as a population in each: the
+ * Allee threshold at the cell's stocking (above it a local group grows; a consumer–resource pulse can
+ * stay below the established level), or the established level where there is no threshold.
+ */
+export function approachCells(s: PointScenario, problem: TransectProblem, g: BarrierGeometry): { cells: number[]; level: Float64Array } {
+  const { grid, hostAtCells, stockingAtCells } = problem;
+  const reach = 3 * movementLengthKm(s);
+  const levels = establishedLevels(s, problem);
+  const cells: number[] = [];
+  const level: number[] = [];
+  let length = 0;
+  const n = grid.nCells;
+  for (let k = 0; k < n; k++) {
+    const i = g.direction > 0 ? n - 1 - k : k;
+    if (g.direction * (g.nearKm - grid.centersKm[i]) <= 0) continue;
+    if (!hostAtCells[i] || !(stockingAtCells[i] > 0)) continue;
+    if (length >= reach) break;
+    length += grid.widthsKm[i];
+    const lv = alleeThreshold(s.pest.growth, stockingAtCells[i]) ?? levels[i];
+    cells.push(i);
+    level.push(lv);
+  }
+  return { cells, level: Float64Array.from(level) };
+}
+
+function isPresent(approach: { cells: number[]; level: Float64Array }, u: Float64Array): boolean {
+  const { cells, level } = approach;
+  for (let k = 0; k < cells.length; k++) if (u[cells[k]] >= level[k]) return true;
+  return false;
+}
+
+/** Watches, every step, whether a population has reached the host forest just before a clearing ({@link approachCells}). */
+export class ApproachWatch implements Observer {
+  arrived = false;
+  private readonly approach: { cells: number[]; level: Float64Array };
+  constructor(s: PointScenario, problem: TransectProblem, geometry: BarrierGeometry) {
+    this.approach = approachCells(s, problem, geometry);
+  }
+  initialize(st: FieldState): void {
+    this.handle(st);
+  }
+  handle(st: FieldState): void {
+    if (!this.arrived && isPresent(this.approach, st.u)) this.arrived = true;
   }
 }
 
@@ -449,6 +520,8 @@ export interface WindowRunOptions {
   /** Positions whose arrival (detection level) to record [km]; the run continues until they are all reached when stopOnArrivals. */
   sitesKm?: number[];
   stopOnArrivals?: boolean;
+  /** The pest had already reached the clearing before the start state (e.g. during the run this one extends). */
+  arrivedBefore?: boolean;
   shouldCancel?: () => boolean;
 }
 
@@ -461,6 +534,7 @@ export function runWindow(solver: WindowSolver, o: WindowRunOptions): WindowOutc
   const h = f.h;
   const watch = new CrossingWatch(grid, o.geometry, solver.establishedAtCells, o.stopOnCross, crossingProbeKm(s), s.detectionLevel);
   const judge = o.judge ? new PinningJudge(solver, o.geometry) : null;
+  if (judge && o.arrivedBefore) judge.arrived = true;
   const dt = solver.problem.resolution.stepYears;
   const checkEvery = Math.max(1, Math.round((o.checkYears ?? Math.max(0.5, 2 / growthRateScale(s.pest.growth))) / dt));
   let judgement: Judgement | null = null;
@@ -470,11 +544,15 @@ export function runWindow(solver: WindowSolver, o: WindowRunOptions): WindowOutc
     initialize: (st) => {
       watch.initialize(st);
       arrivalTracker.initialize(st);
+      judge?.note(st.u);
     },
     handle: (st) => {
       let stop = watch.handle(st);
       arrivalTracker.handle(st);
-      if (o.stopOnArrivals && sites.length && arrivalTracker.allArrived() && (watch.crossedYears !== null || !o.stopOnCross)) stop = true;
+      judge?.note(st.u);
+      // Arrivals alone do not end the run while the crossing is still to be seen (a site can see the
+      // fringe at the detection level long before the front passes the clearing).
+      if (o.stopOnArrivals && sites.length && arrivalTracker.allArrived() && watch.crossedYears !== null) stop = true;
       if (judge && watch.crossedYears === null && st.stepIndex % checkEvery === 0) {
         const j = judge.check(st.t, st.u, st.h);
         if (j) {

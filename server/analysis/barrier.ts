@@ -20,6 +20,7 @@ import { spreadRate } from './speed.ts';
 import type { CriticalWidth, OptionResult, RunResult, SiteVerdict, VerdictKind, WidthDelayRow } from './result.ts';
 import { frontCannotAdvance, potential, potentialThreshold, smallGroupsFail, strongAllee } from './barrier-growth.ts';
 import {
+  ApproachWatch,
   CrossingWatch,
   PINNING_METHODS,
   PinningJudge,
@@ -220,6 +221,11 @@ export interface CriticalWidthOutcome extends CriticalWidth {
   windowCheck: { widthsM: number[]; agreed: boolean } | null;
   /** Computational window used [km from the near edge, behind and ahead]. */
   windowKm: { behind: number; ahead: number } | null;
+  /**
+   * Outcome of the window run without any clearing, when the baseline did not pass the clearing within the
+   * horizon (null when not run): 'pinned' = held before this point anyway, 'open' = did not get there.
+   */
+  withoutClearing?: WidthRun['outcome'] | null;
 }
 
 interface WidthProbeContext {
@@ -253,11 +259,14 @@ function maxUsableWidthM(s: PointScenario, g: BarrierGeometry): number {
   return Math.max(0, (Math.abs(lastHost - g.nearKm) - 2 * movementLengthKm(s)) * 1000);
 }
 
-/** Runs one width in the window from the snapshot until crossing, verified pinning, or the budget. */
+/**
+ * Runs one width in the window from the snapshot until crossing, verified pinning, or the budget. Width 0
+ * is the stand as it stands (no clearing), watched at the option's near edge.
+ */
 function classifyWidth(c: WidthProbeContext, widthM: number, stepFactor = 1, windowFactor = 1): WidthRun {
-  const clearing = clearingOfWidth(c, widthM);
-  const g = barrierGeometry(c.s, clearing);
-  const pieces = buildLayout(c.s, clearing);
+  const clearing = widthM > 0 ? clearingOfWidth(c, widthM) : null;
+  const g: BarrierGeometry = clearing ? barrierGeometry(c.s, clearing) : { ...c.geometry, farKm: c.geometry.nearKm };
+  const pieces = clearing ? buildLayout(c.s, clearing) : buildLayout(c.s);
   const d = g.direction;
   const behind = c.behindKm * windowFactor;
   const ahead = c.aheadKm * windowFactor;
@@ -399,6 +408,27 @@ export function criticalWidth(s: PointScenario, option: BarrierOptionSpec | Clea
     if (r.outcome === 'pinned') hi = hi === null ? r.widthM : Math.min(hi, r.widthM);
     else lo = Math.max(lo, r.widthM);
   };
+  // The bisection takes width 0 (the stand as it stands) to let the front through. When the baseline did
+  // not pass this point within the horizon, that is run first: a front already held before the clearing
+  // (by the existing layout) needs no clearing, and one that never gets there gives nothing to bracket.
+  if (crossing.crossedYears === null) {
+    const r0 = classify(0);
+    if (r0.outcome !== 'crossed') {
+      const held = r0.outcome === 'pinned';
+      return {
+        ...base,
+        applicable: true,
+        bracketM: held ? [0, 0] : null,
+        runs: history.length,
+        history,
+        withoutClearing: r0.outcome,
+        windowKm: { behind: c.behindKm, ahead: c.aheadKm },
+        note: held
+          ? `Even without a clearing the front is held before this point (verified: ${PINNING_METHODS[pinningMode(s, hBeyond)]}): no clearing is needed here under this model.`
+          : `Without any clearing the front did not get past this point within ${Math.round(c.budgetYears)} years of the window run either (it stalls or dies out before it), so there is no critical width to find.`,
+      };
+    }
+  }
   // Seed: the phase-plane value (−10 %, +15 %) when known, else the option's width; then double until pinned.
   const seeds = pp.widthM !== null && pp.widthM > 0 ? [0.9 * pp.widthM, 1.15 * pp.widthM] : [option.widthM];
   for (const w of seeds) if (w < maxW) record(classify(w));
@@ -570,7 +600,9 @@ function widthDelayCurve(
       pinned: r.outcome === 'pinned',
       crossingYears: r.crossedYears,
       delayYearsBySite: s.sites.map((site, k) => {
-        if (!beyondSites[k] || !isBeyond(g, site.atKm)) return null;
+        // Behind a verified pinned front no breeding population arrives (the delay is unbounded); a site in
+        // the fringe may still see the detection level, which is not an arrival of the pest.
+        if (!beyondSites[k] || !isBeyond(g, site.atKm) || r.outcome === 'pinned') return null;
         const a = r.arrivals[k];
         const b = baselineArrivals[k];
         return a !== null && b !== null ? a - b : null;
@@ -624,7 +656,9 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
   // Without recorded profiles the run stops as soon as pinning is verified on the whole transect (nothing
   // changes after that); with profiles it runs to the horizon so that charts cover it.
   let earlyJudgement: Judgement | null = null;
-  const observers: Observer[] = [watch];
+  // Whether the pest reaches the clearing in this run (a die-out past the horizon only counts as held if it did).
+  const approach = new ApproachWatch(s, probe.problem, geometry);
+  const observers: Observer[] = [watch, approach];
   if (!record) {
     const p = probe.problem;
     const { op, stepper } = makeEngineStepper(p);
@@ -644,6 +678,7 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
       handle: (st) => {
         arrived.handle(st);
         if (watch.crossedYears !== null) return arrived.allArrived();
+        judge.note(st.u);
         if (st.stepIndex % every !== 0) return false;
         earlyJudgement = judge.check(st.t, st.u, st.h);
         return earlyJudgement !== null;
@@ -670,8 +705,13 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
   const missing = s.sites.some((_, k) => optArr[k] === null && (baseArr[k] !== null || beyondSites[k]));
   if (!judgement && out.solver.status === 'completed' && (watch.crossedYears === null || missing)) {
     const breaks = segmentBreaks(s.transect);
+    // The window reaches back behind the front wherever it is: a front still far from the clearing at the
+    // horizon must be in the window to be projected (an empty window would look settled).
     const behind = snapshotDistanceKm(s) + 10 * movementLengthKm(s);
-    const window: [number, number] = geometry.direction > 0 ? [geometry.nearKm - behind, breaks[breaks.length - 1]] : [breaks[0], geometry.nearKm + behind];
+    const last = out.front.times.length - 1;
+    const frontKm = geometry.direction > 0 ? out.front.rightKm[last] : out.front.leftKm[last];
+    const back = Number.isFinite(frontKm) ? geometry.direction * Math.min(geometry.direction * geometry.nearKm, geometry.direction * frontKm) : geometry.nearKm;
+    const window: [number, number] = geometry.direction > 0 ? [back - behind, breaks[breaks.length - 1]] : [breaks[0], back + behind];
     const extension = settings.extensionYears ?? 3 * s.horizonYears;
     const solver = makeWindowSolver(s, pieces, window, resolution, extension);
     projected = runWindow(solver, {
@@ -682,6 +722,7 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
       judge: watch.crossedYears === null,
       sitesKm: s.sites.map((x) => x.atKm),
       stopOnArrivals: true,
+      arrivedBefore: approach.arrived,
       shouldCancel: settings.shouldCancel,
     });
     if (projected.outcome === 'pinned') judgement = projected.judgement;
@@ -703,9 +744,13 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
   // A pest whose front cannot advance through the stand before the clearing never meets it: nothing to hold.
   const nearX = geometry.nearKm - geometry.direction * 1e-6;
   const nearPiece = buildLayout(s).find((p) => p.fromKm <= nearX && nearX < p.toKm);
-  const stalls = crossing.crossedYears === null && nearPiece?.habitat === 'host-forest' && frontCannotAdvance(s.pest.growth, nearPiece.stocking);
-  const stallReason =
-    'in this model its front cannot advance even through unbroken host forest here (too few insects find mates, or losses exceed growth), so no clearing is needed to stop it';
+  const cannotAdvance = crossing.crossedYears === null && nearPiece?.habitat === 'host-forest' && frontCannotAdvance(s.pest.growth, nearPiece.stocking);
+  // A front that the layout already holds before this point (verified without the clearing) is not held by it.
+  const heldWithout = crossing.crossedYears === null && critical.withoutClearing === 'pinned';
+  const stalls = cannotAdvance || heldWithout;
+  const stallReason = cannotAdvance
+    ? 'in this model its front cannot advance even through unbroken host forest here (too few insects find mates, or losses exceed growth), so no clearing is needed to stop it'
+    : 'even without this clearing the front is held before it (verified: the layout as it stands already stops it), so this clearing is not what stops it';
 
   // Verdicts per site.
   const cost = s.barrier?.costPerStem !== undefined ? stemsRemoved(s, option, s.barrier?.lengthKm ?? 1) * s.barrier.costPerStem : null;
@@ -721,7 +766,7 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
     if (stalls && b === null && o === null) {
       kind = 'not-reached';
       sentence = `Not reached, with or without the clearing: ${stallReason}.`;
-    } else if (pinned && beyond) {
+    } else if (pinned && beyond && !stalls) {
       kind = marginal ? 'marginal' : 'holds';
       const fringe = o !== null ? ` Low-density fringe beyond the clearing: the site sees density at the detection level from year ${o.toFixed(1)}, but no breeding population forms.` : '';
       sentence = marginal

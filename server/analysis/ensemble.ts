@@ -224,6 +224,8 @@ export function evaluatePoint(s: PointScenario, settings: { criticalWidth?: bool
       const c = criticalWidth(s, o, { baseline: base, record: false, toleranceM: drawToleranceM(s, o.widthM), phasePlane: false, bracketChecks: false, shouldCancel });
       if (!c.applicable) criticalWidthM = Infinity;
       else if (c.bracketM) criticalWidthM = c.bracketM[1];
+      // Without any clearing the front never got past this point (it stalls or dies out first): nothing to bracket.
+      else if (c.withoutClearing === 'open') criticalWidthM = null;
       else if (c.runs > 0) criticalWidthM = Infinity;
       else criticalWidthM = c.phasePlaneM;
       // Verified to pin at a width no wider than the option: wider clearings are harder to cross.

@@ -178,7 +178,7 @@ export interface WidthDelayRow {
   pinned: boolean;
   /** Year the front passed the far edge of the clearing; null if not within the run. */
   crossingYears: number | null;
-  /** Delay at each site (scenario order) [yr]; null where not defined. */
+  /** Delay at each site (scenario order) [yr]; null where not defined (site not beyond, not reached, or the front verified pinned: held). */
   delayYearsBySite: (number | null)[];
 }
 
