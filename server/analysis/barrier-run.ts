@@ -215,19 +215,34 @@ export function smallestStocking(s: PointScenario): number {
 }
 
 /**
- * Distance beyond the far edge [km] at which the detection level means the front has crossed: a pinned
- * front's fringe starts below θ at the edge and decays like exp(−x/ℓ), ℓ = √(D/|g(0)|) at the lowest
- * stocking, so it falls below the detection level within ℓ·ln(θ/detection); two movement lengths are
- * added as a margin.
+ * Distance beyond the far edge [km] at which the detection level (or another `level`) means the front has
+ * crossed: a pinned front's fringe starts below θ at the edge and decays like exp(−x/ℓ), ℓ = √(D/|g(0)|) at
+ * the lowest stocking, so it falls below the level within ℓ·ln(θ/level); two movement lengths are added as
+ * a margin.
  */
-export function crossingProbeKm(s: PointScenario): number {
+export function crossingProbeKm(s: PointScenario, level = s.detectionLevel): number {
   const h = smallestStocking(s);
   const g = s.pest.growth;
   const theta = potentialThreshold(g, 1);
   const g0 = Math.abs(lowDensityRate(g, h));
   const lf = g0 > 0 ? Math.sqrt(s.pest.diffusionHost / g0) : fringeLengthKm(s);
-  const ratio = theta !== null && Number.isFinite(theta) ? Math.max(theta / s.detectionLevel, 1) : 1 / s.detectionLevel;
+  const ratio = theta !== null && Number.isFinite(theta) ? Math.max(theta / level, 1) : 1 / level;
   return lf * Math.log(ratio) + 2 * movementLengthKm(s);
+}
+
+/**
+ * Density [of capacity] by which the computational windows of the barrier analysis are sized, whatever
+ * the scenario's detection level (1 %): window runs start when it arrives a few movement lengths before the
+ * clearing, and the window reaches beyond the clearing past where a pinned front's fringe falls below it.
+ * Tied to the detection level, a low level started the runs while the breeding front was still outside the
+ * window, and a level above θ cut the window a few movement lengths beyond the clearing, where its
+ * reflecting end shifted the critical width by tens of metres.
+ */
+export const WINDOW_LEVEL = 0.01;
+
+/** How far beyond the far edge the windows of the barrier analysis reach [km]: twice the fringe's reach (see {@link WINDOW_LEVEL}) plus two movement lengths. */
+export function windowAheadKm(s: PointScenario): number {
+  return 2 * crossingProbeKm(s, Math.min(s.detectionLevel, WINDOW_LEVEL)) + 2 * movementLengthKm(s);
 }
 
 /** Established levels per cell for a discretised layout (Infinity off host). */

@@ -32,6 +32,8 @@ import {
   movementLengthKm,
   pinningMode,
   runWindow,
+  WINDOW_LEVEL,
+  windowAheadKm,
   type BarrierGeometry,
   type Judgement,
   type StartState,
@@ -127,7 +129,7 @@ class BaselineWatch implements Observer {
   private readonly triggerCell: number;
   private readonly immediate: boolean;
   constructor(
-    private readonly s: PointScenario,
+    s: PointScenario,
     private readonly grid: Grid,
     levels: Float64Array,
     geometry: BarrierGeometry,
@@ -143,11 +145,11 @@ class BaselineWatch implements Observer {
   }
   initialize(st: FieldState): void {
     this.crossing.initialize(st);
-    if (this.immediate || st.u[this.triggerCell] >= this.s.detectionLevel) this.take(st);
+    if (this.immediate || st.u[this.triggerCell] >= WINDOW_LEVEL) this.take(st);
   }
   handle(st: FieldState): void {
     this.crossing.handle(st);
-    if (!this.snapshot && st.u[this.triggerCell] >= this.s.detectionLevel) this.take(st);
+    if (!this.snapshot && st.u[this.triggerCell] >= WINDOW_LEVEL) this.take(st);
   }
 }
 
@@ -390,8 +392,8 @@ export function criticalWidth(s: PointScenario, option: BarrierOptionSpec | Clea
     resolution,
     budgetYears: Math.max(s.horizonYears, 150 / growthRateScale(s.pest.growth)),
     behindKm: snapshotDistanceKm(s) + 8 * ell,
-    // Beyond the probe as much again: a reflecting cut too close behind the fringe lets density pile up.
-    aheadKm: 2 * crossingProbeKm(s) + 2 * ell,
+    // Beyond the fringe's reach as much again: a reflecting cut too close behind the fringe lets density pile up.
+    aheadKm: windowAheadKm(s),
     shouldCancel: settings.shouldCancel,
   };
   const maxW = maxUsableWidthM(s, geometry);
@@ -578,11 +580,13 @@ function widthDelayCurve(
     const g = barrierGeometry(s, clearing);
     // The stretch ahead only needs to reach the farthest site beyond the clearing (plus a few movement lengths).
     const beyondKm = s.sites.filter((_, k) => beyondSites[k]).map((x) => x.atKm);
+    // (and at least as far as the critical-width windows: a reflecting cut close behind the fringe moves the pinning threshold).
     const margin = 5 * movementLengthKm(s);
+    const ahead = windowAheadKm(s);
     const window: [number, number] =
       g.direction > 0
-        ? [g.nearKm - behind, beyondKm.length ? Math.max(...beyondKm) + margin : breaks[breaks.length - 1]]
-        : [beyondKm.length ? Math.min(...beyondKm) - margin : breaks[0], g.nearKm + behind];
+        ? [g.nearKm - behind, beyondKm.length ? Math.max(Math.max(...beyondKm) + margin, g.farKm + ahead) : breaks[breaks.length - 1]]
+        : [beyondKm.length ? Math.min(Math.min(...beyondKm) - margin, g.farKm - ahead) : breaks[0], g.nearKm + behind];
     const solver = makeWindowSolver(s, buildLayout(s, clearing), window, resolution, s.horizonYears);
     const sitesKm = s.sites.map((x) => x.atKm);
     const r = runWindow(solver, {
@@ -750,7 +754,7 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
   const stalls = cannotAdvance || heldWithout;
   const stallReason = cannotAdvance
     ? 'in this model its front cannot advance even through unbroken host forest here (too few insects find mates, or losses exceed growth), so no clearing is needed to stop it'
-    : 'even without this clearing the front is held before it (verified: the layout as it stands already stops it), so this clearing is not what stops it';
+    : 'even without this clearing the front is held before it or dies out here (verified on the layout as it stands), so this clearing is not what stops it';
 
   // Verdicts per site.
   const cost = s.barrier?.costPerStem !== undefined ? stemsRemoved(s, option, s.barrier?.lengthKm ?? 1) * s.barrier.costPerStem : null;
@@ -824,7 +828,9 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
   const firstSite = firstBeyond ? sites[firstBeyond.k] : null;
   if (stalls && optCross === null) {
     kind = 'not-reached';
-    sentence = `The pest does not reach the clearing, with or without it: ${stallReason}.`;
+    sentence = cannotAdvance
+      ? `The pest does not reach the clearing, with or without it: ${stallReason}.`
+      : `The front does not get past this point, with or without the clearing: ${stallReason}.`;
   } else if (pinned) {
     kind = marginal ? 'marginal' : 'holds';
     sentence = marginal

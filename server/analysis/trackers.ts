@@ -67,6 +67,9 @@ export class FrontTracker implements Observer {
  * Interpolation stencil for the density at a point: the two nearest cell centres of the same habitat piece
  * (geometric weights, exact for the exponential leading edge of a front; linear where a value is 0).
  * Within half a cell of a piece end the cell value is used, because density may jump at habitat edges.
+ * A point on the edge between two pieces reads both adjacent cells and takes the larger density: the
+ * site sees the detection level as soon as either side does (which side a face "belongs" to must not
+ * depend on the direction the transect is drawn in).
  */
 export interface PointProbe {
   /** Cell containing the point. */
@@ -75,11 +78,20 @@ export interface PointProbe {
   other: number;
   /** Weight of `other` in [0, 1]. */
   weight: number;
+  /** For a point on a piece edge: the cell on the other side (the larger of the two values is read). */
+  across?: number;
 }
+
+/** Positions within this distance [km] (1 mm) of a piece edge lie on it. */
+const ON_EDGE_KM = 1e-6;
 
 /** Builds the interpolation stencil for position x [km]. */
 export function makeProbe(grid: Grid, xKm: number): PointProbe {
   const cell = cellIndexAt(grid, xKm);
+  const f = grid.facesKm;
+  const seg = grid.segmentAtCells;
+  if (cell > 0 && Math.abs(xKm - f[cell]) <= ON_EDGE_KM && seg[cell - 1] !== seg[cell]) return { cell, other: cell, weight: 0, across: cell - 1 };
+  if (cell < grid.nCells - 1 && Math.abs(xKm - f[cell + 1]) <= ON_EDGE_KM && seg[cell + 1] !== seg[cell]) return { cell, other: cell, weight: 0, across: cell + 1 };
   const c = grid.centersKm;
   const other = xKm >= c[cell] ? cell + 1 : cell - 1;
   if (other < 0 || other >= grid.nCells || grid.segmentAtCells[other] !== grid.segmentAtCells[cell]) {
@@ -91,6 +103,7 @@ export function makeProbe(grid: Grid, xKm: number): PointProbe {
 /** Density at a probe. */
 export function probeValue(p: PointProbe, u: Float64Array): number {
   const a = u[p.cell];
+  if (p.across !== undefined) return Math.max(a, u[p.across]);
   if (p.weight === 0) return a;
   const b = u[p.other];
   if (a > 0 && b > 0) return a * Math.pow(b / a, p.weight);

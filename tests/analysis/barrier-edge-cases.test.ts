@@ -12,6 +12,7 @@ import { describe, expect, it } from 'vitest';
 import { parseScenario, pointScenario } from '../../server/model/scenario.ts';
 import { analyseBaseline, analyseOption } from '../../server/analysis/barrier.ts';
 import { evaluatePoint } from '../../server/analysis/ensemble.ts';
+import { expectAllClose } from '../helpers/close.ts';
 
 const cubicPest = {
   name: 'synthetic pest (invented)',
@@ -81,7 +82,7 @@ describe('the run past the horizon looks for the crossing even when every site a
       { name: 'Far lodge', atKm: 12 },
     ],
     horizonYears: 30,
-    barrier: { lengthKm: 1, curveWidthsM: [300, 800], options: [{ name: 'narrow cut', fromKm: 7, widthM: 400 }] },
+    barrier: { lengthKm: 1, curveWidthsM: [100, 800], options: [{ name: 'narrow cut', fromKm: 7, widthM: 400 }] },
   });
   it('projects the crossing of a cut narrower than the critical width', () => {
     const [{ result: r }] = analyseAll(s, { criticalWidth: false });
@@ -93,7 +94,7 @@ describe('the run past the horizon looks for the crossing even when every site a
   it('the width–delay curve sees the crossing below W* and the pinning above it (no delay behind a pinned front)', () => {
     const [{ result: r }] = analyseAll(s, { criticalWidth: false, widthCurve: true });
     const [narrow, wide] = r.widthDelay;
-    expect(narrow.widthM).toBe(300);
+    expect(narrow.widthM).toBe(100);
     expect(narrow.pinned).toBe(false);
     expect(narrow.crossingYears).not.toBeNull();
     expect(wide.widthM).toBe(800);
@@ -116,7 +117,7 @@ describe('a clearing is not credited with holding a front that is stopped withou
     });
     const [{ result: r }] = analyseAll(s);
     expect(r.verdict.kind).toBe('not-reached');
-    expect(r.verdict.sentence).toMatch(/held before it/);
+    expect(r.verdict.sentence).toMatch(/does not get past this point, with or without the clearing: even without this clearing the front is held before it/);
     expect(r.criticalWidth.bracketM).toEqual([0, 0]);
     expect(r.sites[0].kind).toBe('not-reached');
   });
@@ -142,5 +143,65 @@ describe('a clearing is not credited with holding a front that is stopped withou
     const draw = evaluatePoint(s);
     expect(draw.options[0].criticalWidthM).toBeNull();
     expect(draw.options[0].crossingYears).toBeNull();
+  });
+});
+
+describe('the detection level does not move the critical width', () => {
+  // The detection level says when a place counts as reached; the critical width is a property of the
+  // model. Regression: the window runs started when the detection level arrived a few movement lengths
+  // before the clearing, and the window beyond the clearing ended where the fringe fell below it. At 0.001
+  // (within the typical range) the breeding front was still outside the window when the runs started, and
+  // no width was "verified to pin"; at 0.5 the window ended 6 km beyond the clearing and its reflecting
+  // end moved the bracket to 676–686 m. Reference: W* = 596.1 m (phase plane, SCIENCE.md §5.3, G1).
+  for (const detectionLevel of [0.001, 0.5]) {
+    it(`detection level ${detectionLevel}: the bracket still contains W*`, () => {
+      const s = scenario({
+        pest: cubicPest,
+        detectionLevel,
+        transect: { segments: [host(50)] },
+        infestation: { fromKm: 0, toKm: 3 },
+        horizonYears: 80,
+        barrier: { lengthKm: 1, options: [{ name: 'cut', fromKm: 25, widthM: 700 }] },
+      });
+      const [{ result: r }] = analyseAll(s, { bracketChecks: false });
+      const [lo, hi] = r.criticalWidth.bracketM!;
+      expect(lo).toBeLessThanOrEqual(596.1);
+      expect(hi).toBeGreaterThanOrEqual(596.1);
+      expect(r.verdict.kind).toBe('holds');
+    });
+  }
+});
+
+describe('a site exactly on a habitat edge', () => {
+  // Regression: a position on the face between two pieces read the cell to its right, so a site at the
+  // clearing's near edge read the open ground in one drawing of the transect and the forest in its mirror
+  // image; with edge avoidance (α = 0.8: the density in the open is a quarter of the forest's) the verdict
+  // flipped between "delays" and "speeds up". It now reads the larger density of the two sides.
+  const pest = { ...cubicPest, growth: { form: 'logistic', rate: 1 }, edgePreferenceOpen: 0.8, mortalityOpen: 2 };
+  const input = (mirrored: boolean) => {
+    const at = (x: number) => (mirrored ? 20.3 - x : x);
+    const segs = [host(10), { habitat: 'clearing', lengthKm: 0.3 }, host(10)];
+    return scenario({
+      pest,
+      transect: { segments: mirrored ? [...segs].reverse() : segs },
+      infestation: mirrored ? { fromKm: 18.3, toKm: 20.3 } : { fromKm: 0, toKm: 2 },
+      sites: [
+        { name: 'At the corridor', atKm: at(10) },
+        { name: 'At the cut', atKm: at(14) },
+      ],
+      horizonYears: 20,
+      numerics: { cellM: 50 },
+      barrier: { lengthKm: 1, options: [{ name: 'cut', fromKm: mirrored ? at(14.4) : 14, widthM: 400 }] },
+    });
+  };
+  it('gets the same arrivals and verdicts in the transect and its mirror image', () => {
+    const [{ result: a }] = analyseAll(input(false));
+    const [{ result: b }] = analyseAll(input(true));
+    expect(b.sites.map((x) => x.kind)).toEqual(a.sites.map((x) => x.kind));
+    // Same cells in mirror image: equal to round-off.
+    for (let k = 0; k < a.sites.length; k++) {
+      expectAllClose(b.sites[k].baselineArrivalYears!, a.sites[k].baselineArrivalYears!, { rtol: 1e-9 });
+      expectAllClose(b.sites[k].optionArrivalYears!, a.sites[k].optionArrivalYears!, { rtol: 1e-9 });
+    }
   });
 });
