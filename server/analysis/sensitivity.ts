@@ -9,6 +9,7 @@
  * Ray & Kirschner (2008), J. Theor. Biol. 254:178–196 [both from memory].
  */
 import { normalQuantile } from '../model/quantity.ts';
+import { centredMoments } from './speed.ts';
 
 /** Average ranks (1-based) with ties sharing their mean rank; +Infinity sorts last (censored outcomes). */
 export function rankTransform(x: ArrayLike<number>): Float64Array {
@@ -51,25 +52,7 @@ export function invert(a: number[][]): number[][] | null {
 }
 
 function correlation(a: Float64Array, b: Float64Array): number {
-  const n = a.length;
-  let ma = 0;
-  let mb = 0;
-  for (let i = 0; i < n; i++) {
-    ma += a[i];
-    mb += b[i];
-  }
-  ma /= n;
-  mb /= n;
-  let sab = 0;
-  let saa = 0;
-  let sbb = 0;
-  for (let i = 0; i < n; i++) {
-    const da = a[i] - ma;
-    const db = b[i] - mb;
-    sab += da * db;
-    saa += da * da;
-    sbb += db * db;
-  }
+  const { saa, sab, sbb } = centredMoments(a, b);
   return saa > 0 && sbb > 0 ? sab / Math.sqrt(saa * sbb) : 0;
 }
 

@@ -1,24 +1,30 @@
+/** Means and centred sums of squares and products of two equally long series. */
+export function centredMoments(a: ArrayLike<number>, b: ArrayLike<number>): { meanA: number; meanB: number; saa: number; sab: number; sbb: number } {
+  const n = a.length;
+  let sa = 0;
+  let sb = 0;
+  for (let i = 0; i < n; i++) {
+    sa += a[i];
+    sb += b[i];
+  }
+  const meanA = sa / n;
+  const meanB = sb / n;
+  let saa = 0;
+  let sab = 0;
+  let sbb = 0;
+  for (let i = 0; i < n; i++) {
+    const da = a[i] - meanA;
+    const db = b[i] - meanB;
+    saa += da * da;
+    sab += da * db;
+    sbb += db * db;
+  }
+  return { meanA, meanB, saa, sab, sbb };
+}
+
 /** Least-squares line x = slope·t + intercept with its coefficient of determination. */
 export function fitLine(t: ArrayLike<number>, x: ArrayLike<number>): { slope: number; intercept: number; rSquared: number } {
-  const n = t.length;
-  let st = 0;
-  let sx = 0;
-  for (let i = 0; i < n; i++) {
-    st += t[i];
-    sx += x[i];
-  }
-  const mt = st / n;
-  const mx = sx / n;
-  let stt = 0;
-  let stx = 0;
-  let sxx = 0;
-  for (let i = 0; i < n; i++) {
-    const dt = t[i] - mt;
-    const dx = x[i] - mx;
-    stt += dt * dt;
-    stx += dt * dx;
-    sxx += dx * dx;
-  }
+  const { meanA: mt, meanB: mx, saa: stt, sab: stx, sbb: sxx } = centredMoments(t, x);
   const slope = stt > 0 ? stx / stt : NaN;
   const rSquared = sxx > 0 ? (stx * stx) / (stt * sxx) : 1;
   return { slope, intercept: mx - slope * mt, rSquared };

@@ -1,5 +1,7 @@
 /** Number formatting shared by the CLI summary, the web pages and the briefing (presentation only). */
 
+import type { Distribution } from '../model/quantity.ts';
+
 /** Fixed decimals, with a true minus sign and no "-0". */
 export function fixed(x: number, digits: number): string {
   const s = x.toFixed(digits);
@@ -40,6 +42,19 @@ export function num(x: number, sig = 3): string {
   const a = Math.abs(x);
   if (a >= 1e-3 && a < 1e6) return Number(x.toPrecision(sig)).toString().replace('-', '−');
   return x.toExponential(sig - 1).replace('-', '−');
+}
+
+/** A distribution in words with its unit, e.g. "triangular 0.2–0.9, most likely 0.5 km²/yr". */
+export function distributionText(d: Distribution, unit = ''): string {
+  const u = unit ? ` ${unit}` : '';
+  switch (d.dist) {
+    case 'uniform':
+      return `uniform ${num(d.min, 4)}–${num(d.max, 4)}${u}`;
+    case 'triangular':
+      return `triangular ${num(d.min, 4)}–${num(d.max, 4)}, most likely ${num(d.mode, 4)}${u}`;
+    case 'lognormal':
+      return `log-normal, median ${num(d.median, 4)}${u}, spread ×${num(d.spread, 3)}`;
+  }
 }
 
 /**

@@ -1,5 +1,5 @@
 import type { OptionResult, ResultDocument, RunResult } from '../analysis/result.ts';
-import { fixed, integer, km, num, percent, speed, years } from './format.ts';
+import { distributionText, fixed, integer, km, num, percent, speed, years } from './format.ts';
 
 /** Front positions at about `n` evenly spaced years, for a compact table. */
 function frontTable(run: RunResult, horizon: number, n = 7): string[] {
@@ -126,7 +126,7 @@ export function uncertaintySummary(doc: ResultDocument): string[] {
   const u = doc.uncertainty;
   if (u) {
     out.push('', `Uncertainty: ${u.completed} of ${u.draws} Latin hypercube draws (seed ${u.seed}) over ${u.parameters.length} uncertain parameter(s)`);
-    for (const p of u.parameters) out.push(`  ${p.label}: ${describeDistribution(p.distribution)}${p.unit ? ` ${p.unit}` : ''}${p.clippedDraws ? ` (${p.clippedDraws} draws clipped to the allowed range)` : ''}`);
+    for (const p of u.parameters) out.push(`  ${p.label}: ${distributionText(p.distribution, p.unit)}${p.clippedDraws ? ` (${p.clippedDraws} draws clipped to the allowed range)` : ''}`);
     for (const o of u.options) {
       for (const line of o.sentences) out.push(`  ${line}`);
       for (const site of o.sites) {
@@ -151,13 +151,3 @@ function quant(x: number | null): string {
   return x === null ? 'beyond the horizon' : `${fixed(x, 1)} yr`;
 }
 
-function describeDistribution(d: NonNullable<ResultDocument['uncertainty']>['parameters'][number]['distribution']): string {
-  switch (d.dist) {
-    case 'uniform':
-      return `uniform ${num(d.min)}–${num(d.max)}`;
-    case 'triangular':
-      return `triangular ${num(d.min)}–${num(d.max)}, most likely ${num(d.mode)}`;
-    case 'lognormal':
-      return `log-normal, median ${num(d.median)}, spread ×${num(d.spread)}`;
-  }
-}

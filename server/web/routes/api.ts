@@ -12,7 +12,7 @@ import { checkLimits } from '../limits.ts';
 import { savedId } from '../catalogue.ts';
 import { conflict, notFound } from '../plugins/errors.ts';
 import { jobEvents, jobPayload, unknownJob } from './run-pages.ts';
-import { briefingName } from './result-pages.ts';
+import { briefingName, download } from './result-pages.ts';
 import type { WebDeps } from '../deps.ts';
 
 const ProblemSchema = z.object({ path: z.string(), value: z.unknown(), message: z.string() });
@@ -237,7 +237,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
       const r = store.getResult(req.params.id);
       if (!r) throw notFound('This result');
       const pdf = await deps.briefings.render(r.document, r.scenario);
-      return reply.type('application/pdf').header('content-disposition', `attachment; filename="${briefingName(r.id)}"`).send(pdf);
+      return download(reply, 'application/pdf', briefingName(r.id), pdf);
     },
   );
 

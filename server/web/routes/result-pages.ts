@@ -2,7 +2,7 @@
  * Result pages: past results, one result (verdicts, tables, charts, cautions), options side by side,
  * downloads (result JSON, series CSV, the exact scenario), delete.
  */
-import type { FastifyInstance } from 'fastify';
+import type { FastifyInstance, FastifyReply } from 'fastify';
 import { notFound } from '../plugins/errors.ts';
 import { comparePageView, resultListItem, resultPageView } from '../view-models/result-view.ts';
 import { seriesCsv } from '../view-models/csv.ts';
@@ -14,6 +14,10 @@ type IdParams = { Params: { id: string } };
 const stem = (id: string) => `result-${id.slice(0, 8)}`;
 /** Download name of a result's PDF briefing. */
 export const briefingName = (id: string) => `briefing-${id.slice(0, 8)}.pdf`;
+
+/** Sends a body as a file download of the given type and name. */
+export const download = (reply: FastifyReply, type: string, filename: string, body: string | Buffer) =>
+  reply.type(type).header('content-disposition', `attachment; filename="${filename}"`).send(body);
 
 export default async function resultPages(app: FastifyInstance, deps: WebDeps) {
   const { store } = deps;
@@ -44,35 +48,23 @@ export default async function resultPages(app: FastifyInstance, deps: WebDeps) {
 
   app.get<IdParams>('/results/:id/result.json', async (req, reply) => {
     const stored = resultOr404(req.params.id);
-    return reply
-      .type('application/json; charset=utf-8')
-      .header('content-disposition', `attachment; filename="${stem(stored.id)}.json"`)
-      .send(`${JSON.stringify(stored.document, null, 1)}\n`);
+    return download(reply, 'application/json; charset=utf-8', `${stem(stored.id)}.json`, `${JSON.stringify(stored.document, null, 1)}\n`);
   });
 
   app.get<IdParams>('/results/:id/series.csv', async (req, reply) => {
     const stored = resultOr404(req.params.id);
-    return reply
-      .type('text/csv; charset=utf-8')
-      .header('content-disposition', `attachment; filename="${stem(stored.id)}-series.csv"`)
-      .send(seriesCsv(stored.document));
+    return download(reply, 'text/csv; charset=utf-8', `${stem(stored.id)}-series.csv`, seriesCsv(stored.document));
   });
 
   app.get<IdParams>('/results/:id/scenario.json', async (req, reply) => {
     const stored = resultOr404(req.params.id);
-    return reply
-      .type('application/json; charset=utf-8')
-      .header('content-disposition', `attachment; filename="${stem(stored.id)}-scenario.json"`)
-      .send(`${JSON.stringify(stored.scenario, null, 2)}\n`);
+    return download(reply, 'application/json; charset=utf-8', `${stem(stored.id)}-scenario.json`, `${JSON.stringify(stored.scenario, null, 2)}\n`);
   });
 
   app.get<IdParams>('/results/:id/briefing.pdf', { config: { rateLimit: deps.computeRateLimit } }, async (req, reply) => {
     const stored = resultOr404(req.params.id);
     const pdf = await deps.briefings.render(stored.document, stored.scenario);
-    return reply
-      .type('application/pdf')
-      .header('content-disposition', `attachment; filename="${briefingName(stored.id)}"`)
-      .send(pdf);
+    return download(reply, 'application/pdf', briefingName(stored.id), pdf);
   });
 
   app.get<IdParams>('/results/:id/delete', async (req, reply) => {

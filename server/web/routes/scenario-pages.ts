@@ -14,6 +14,7 @@ import { checkLimits } from '../limits.ts';
 import { savedId, type CatalogueEntry } from '../catalogue.ts';
 import { conflict, notFound } from '../plugins/errors.ts';
 import type { WebDeps } from '../deps.ts';
+import { download } from './result-pages.ts';
 
 type RefParams = { Params: { ref: string } };
 
@@ -158,10 +159,7 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
   app.get<RefParams>('/scenarios/:ref/scenario.json', async (req, reply) => {
     const entry = entryOr404(req.params.ref);
     const name = entry.kind === 'demo' ? entry.file! : `scenario-${entry.ref}.json`;
-    return reply
-      .type('application/json; charset=utf-8')
-      .header('content-disposition', `attachment; filename="${name}"`)
-      .send(`${JSON.stringify(entry.scenario, null, 2)}\n`);
+    return download(reply, 'application/json; charset=utf-8', name, `${JSON.stringify(entry.scenario, null, 2)}\n`);
   });
 
   // ---- JSON editor ----------------------------------------------------------------------------

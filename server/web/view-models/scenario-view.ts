@@ -4,7 +4,7 @@
 import { FIELDS, type FieldSpec } from '../../model/fields.ts';
 import { isDistribution, type Quantity } from '../../model/quantity.ts';
 import type { Scenario } from '../../model/scenario.ts';
-import { integer, km, num } from '../../report/format.ts';
+import { distributionText, integer, km, num } from '../../report/format.ts';
 import type { CatalogueEntry, CatalogueSummary } from '../catalogue.ts';
 import { COVER_CHOICES, GROWTH_CHOICES, HABITAT_CHOICES, MATING_CHOICES } from '../form-state.ts';
 import { stripFromScenario } from './strip.ts';
@@ -14,16 +14,8 @@ const label = (choices: readonly { value: string; label: string }[], v: string) 
 /** A number or distribution with its unit, e.g. "0.4 km²/yr" or "triangular 0.2–0.9, most likely 0.5 km²/yr". */
 export function quantityText(q: Quantity | undefined, spec: FieldSpec): string {
   if (q === undefined) return '—';
-  const u = spec.unit ? ` ${spec.unit}` : '';
-  if (!isDistribution(q)) return `${num(q, 4)}${u}`;
-  switch (q.dist) {
-    case 'uniform':
-      return `uniform ${num(q.min, 4)}–${num(q.max, 4)}${u}`;
-    case 'triangular':
-      return `triangular ${num(q.min, 4)}–${num(q.max, 4)}, most likely ${num(q.mode, 4)}${u}`;
-    case 'lognormal':
-      return `lognormal, median ${num(q.median, 4)}${u}, spread ×${num(q.spread, 3)}`;
-  }
+  if (!isDistribution(q)) return `${num(q, 4)}${spec.unit ? ` ${spec.unit}` : ''}`;
+  return distributionText(q, spec.unit);
 }
 
 export function scenarioView(entry: CatalogueEntry) {

@@ -3,8 +3,8 @@
  * Formatting only: every probability, quantile and correlation comes from the analysis (server/analysis/
  * uncertainty.ts, ensemble.ts, bypass.ts).
  */
-import type { BypassResult, ProbabilityEstimate, QuantileSummary, ResultDocument, UncertaintyResult } from '../../analysis/result.ts';
-import { fixed, integer, num, percent, probabilityEstimate, years } from '../../report/format.ts';
+import type { BypassResult, ProbabilityEstimate, QuantileSummary, ResultDocument } from '../../analysis/result.ts';
+import { distributionText, fixed, integer, num, percent, probabilityEstimate, years } from '../../report/format.ts';
 import { optionKey } from '../../report/charts/index.ts';
 import type { TableView } from './result-view.ts';
 
@@ -21,18 +21,6 @@ export function quantileText(q: QuantileSummary | null | undefined, unit = 'yr',
   return `${v(q.median)} ${unit} (5–95 %: ${v(q.p05)}–${v(q.p95)})`;
 }
 
-const distText = (d: UncertaintyResult['parameters'][number]['distribution'], unit: string) => {
-  const u = unit ? ` ${unit}` : '';
-  switch (d.dist) {
-    case 'uniform':
-      return `uniform ${num(d.min, 4)}–${num(d.max, 4)}${u}`;
-    case 'triangular':
-      return `triangular ${num(d.min, 4)}–${num(d.max, 4)}, most likely ${num(d.mode, 4)}${u}`;
-    case 'lognormal':
-      return `lognormal, median ${num(d.median, 4)}${u}, spread ×${num(d.spread, 3)}`;
-  }
-};
-
 export function uncertaintyView(doc: ResultDocument) {
   const u = doc.uncertainty;
   if (!u) return null;
@@ -41,7 +29,7 @@ export function uncertaintyView(doc: ResultDocument) {
     head: ['Parameter', 'Range drawn', 'Single-run value', 'Draws moved into the allowed range'],
     rows: u.parameters.map((p) => ({
       label: p.label,
-      cells: [distText(p.distribution, p.unit), `${num(p.centralValue, 4)}${p.unit ? ` ${p.unit}` : ''}`, integer(p.clippedDraws)],
+      cells: [distributionText(p.distribution, p.unit), `${num(p.centralValue, 4)}${p.unit ? ` ${p.unit}` : ''}`, integer(p.clippedDraws)],
     })),
   };
   const options: TableView = {
