@@ -2,7 +2,7 @@
  * Command line: `npm run evaluate -- <scenario.json> [--json] [--out FILE] [--pdf FILE]`.
  * Calls the same analysis as the web routes; writes output files atomically (temporary file, then rename).
  */
-import { readFileSync, renameSync, writeFileSync, rmSync } from 'node:fs';
+import { accessSync, constants, readFileSync, renameSync, statSync, writeFileSync, rmSync } from 'node:fs';
 import { dirname, basename, join } from 'node:path';
 import { parseScenarioText } from './model/scenario.ts';
 import { InputError, formatProblems } from './model/errors.ts';
@@ -70,6 +70,42 @@ export function writeAtomically(path: string, data: string | Uint8Array): void {
   }
 }
 
+/**
+ * Why `path` cannot be written as an output file, or undefined when it can (its folder exists and is writable,
+ * and it is not itself a folder). Checked before evaluating, so a long run never ends in a failed write.
+ */
+export function unwritableReason(path: string): string | undefined {
+  const folder = dirname(path);
+  try {
+    if (!statSync(folder).isDirectory()) return `${folder} is not a folder`;
+  } catch (e) {
+    return `the folder ${folder} does not exist (${(e as NodeJS.ErrnoException).code ?? 'not found'})`;
+  }
+  try {
+    accessSync(folder, constants.W_OK);
+  } catch {
+    return `the folder ${folder} is not writable`;
+  }
+  try {
+    if (statSync(path).isDirectory()) return 'is a folder; give a file name';
+  } catch {
+    // Does not exist yet: fine.
+  }
+  return undefined;
+}
+
+/** A write of an output file failed (after the evaluation); the message names the option and the file. */
+class OutputError extends Error {}
+
+function writeOutput(option: string, path: string, data: string | Uint8Array): void {
+  try {
+    writeAtomically(path, data);
+  } catch (e) {
+    const err = e as NodeJS.ErrnoException;
+    throw new OutputError(`cannot write ${option} ${path}: ${err.code ?? err.message}; nothing was written there`);
+  }
+}
+
 /** Progress bar on standard error (TTY only), with the stage and, for long runs, the time left. */
 export function progressBar(enabled: boolean, write: (s: string) => void = (s) => process.stderr.write(s), clock: () => number = () => performance.now()) {
   let last = '';
@@ -103,6 +139,13 @@ export async function main(argv: string[]): Promise<number> {
   } catch (e) {
     process.stderr.write(`${(e as Error).message}\n${USAGE}\n`);
     return 2;
+  }
+  for (const [option, path] of [['--out', args.out], ['--pdf', args.pdf]] as const) {
+    const reason = path === undefined ? undefined : unwritableReason(path);
+    if (reason) {
+      process.stderr.write(`cannot write ${option} ${path}: ${reason}; nothing was written\n`);
+      return 1;
+    }
   }
   let text: string;
   try {
@@ -140,20 +183,24 @@ export async function main(argv: string[]): Promise<number> {
     }
     if (args.pdf) {
       const pdf = await renderBriefing(doc, { scenario, rawInput: JSON.parse(text) as unknown });
-      writeAtomically(args.pdf, pdf);
+      writeOutput('--pdf', args.pdf, pdf);
       if (!args.json && !args.out) {
         process.stderr.write(`briefing written to ${args.pdf}\n`);
         return 0;
       }
     }
     const output = args.json ? `${JSON.stringify(doc, null, 1)}\n` : `${textSummary(doc)}\n`;
-    if (args.out) writeAtomically(args.out, output);
+    if (args.out) writeOutput('--out', args.out, output);
     else process.stdout.write(output);
     // Interrupted: the partial result is written, and the exit code says it is partial.
     return cancelled ? 130 : 0;
   } catch (e) {
     if (e instanceof InputError) {
       process.stderr.write(`${args.file} is not a valid scenario:\n${formatProblems(e.problems).replace(/^/gm, '  ')}\n`);
+      return 1;
+    }
+    if (e instanceof OutputError) {
+      process.stderr.write(`${e.message}\n`);
       return 1;
     }
     process.stderr.write(`evaluation failed: ${(e as Error).message}\n`);

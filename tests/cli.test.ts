@@ -114,6 +114,32 @@ describe('evaluate command (in process)', () => {
     expect(io.stderr()).toMatch(/evaluation failed|ENOENT/);
   });
 
+  it('an output path that cannot be written is refused before evaluating: the option and folder are named, nothing is written', async () => {
+    // Regression: `--pdf /nonexistent/dir/b.pdf` ran the whole evaluation, then said "evaluation failed: ENOENT ...
+    // '/nonexistent/dir/.b.pdf.<pid>.tmp'" (an internal temporary name); with `--pdf ok.pdf --out missing/x.json`
+    // the briefing was written and the run still failed.
+    const missing = join(dir, 'missing-folder');
+    expect(await main([quick, '--pdf', join(missing, 'b.pdf'), '--quiet', '--threads', '1'])).toBe(1);
+    expect(io.stderr()).toContain(`--pdf ${join(missing, 'b.pdf')}`);
+    expect(io.stderr()).toContain(`folder ${missing} does not exist`);
+    expect(io.stderr()).not.toMatch(/\.tmp|evaluation failed/);
+    expect(await main([quick, '--pdf', join(dir, 'ok.pdf'), '--out', join(missing, 'x.json'), '--quiet', '--threads', '1'])).toBe(1);
+    expect(io.stderr()).toContain(`--out ${join(missing, 'x.json')}`);
+    expect(readdirSync(dir)).toEqual([]);
+    // A folder given as the output file.
+    expect(await main([quick, '--json', '--out', dir, '--quiet', '--threads', '1'])).toBe(1);
+    expect(io.stderr()).toContain(`--out ${dir}: is a folder`);
+    expect(readdirSync(dir)).toEqual([]);
+    // A folder that refuses new files although it looks writable (/proc as root): the late write failure
+    // names the option and file, not a temporary file.
+    if (existsSync('/proc/self')) {
+      expect(await main([quick, '--out', '/proc/self/x.json', '--quiet', '--threads', '1'])).toBe(1);
+      expect(io.stderr()).toContain('cannot write --out /proc/self/x.json');
+      expect(io.stderr()).not.toMatch(/\.tmp|evaluation failed/);
+    }
+    expect(io.stdout()).toBe('');
+  });
+
   it('the readable summary shows fronts, measured spread rate, arrivals and host remaining', async () => {
     expect(await main([quick, '--quiet', '--threads', '1'])).toBe(0);
     const text = io.stdout();
