@@ -60,8 +60,27 @@ export function valueAt(root: unknown, path: readonly PropertyKey[]): unknown {
 
 function describeValue(v: unknown): string {
   if (v === undefined) return 'missing';
-  const s = JSON.stringify(v);
+  let s: string;
+  try {
+    s = JSON.stringify(v) ?? String(v);
+  } catch {
+    s = String(v);
+  }
   return s.length > 60 ? `${s.slice(0, 57)}...` : s;
+}
+
+/** Deepest nesting of a value kept in a problem; deeper parts become "...". */
+const MAX_VALUE_DEPTH = 12;
+
+/**
+ * The value found, cut to a readable depth, so a problem can always be printed and sent back as JSON
+ * (a value nested thousands of levels deep overflowed the stack when printed).
+ */
+export function boundedValue(v: unknown, depth = 0): unknown {
+  if (v === null || typeof v !== 'object') return v;
+  if (depth >= MAX_VALUE_DEPTH) return '...';
+  if (Array.isArray(v)) return v.map((x) => boundedValue(x, depth + 1));
+  return Object.fromEntries(Object.entries(v).map(([k, x]) => [k, boundedValue(x, depth + 1)]));
 }
 
 /** One line per problem: `path = value: message`. */
@@ -81,7 +100,7 @@ export function problemsFromZod(issues: readonly z.core.$ZodIssue[], input: unkn
     const path = [...prefix, ...issue.path];
     if (issue.code === 'unrecognized_keys') {
       for (const key of issue.keys) {
-        out.push({ path: formatPath([...path, key]), value: valueAt(input, [...issue.path, key]), message: 'is not a known field (check the spelling)' });
+        out.push({ path: formatPath([...path, key]), value: boundedValue(valueAt(input, [...issue.path, key])), message: 'is not a known field (check the spelling)' });
       }
       continue;
     }
@@ -89,7 +108,7 @@ export function problemsFromZod(issues: readonly z.core.$ZodIssue[], input: unkn
       const branches = issue.errors;
       if (branches.length === 0) {
         // A discriminated union whose tag (e.g. growth form, habitat) matched no branch: zod puts the tag in the path.
-        const value = valueAt(input, issue.path);
+        const value = boundedValue(valueAt(input, issue.path));
         const options = 'options' in issue && Array.isArray(issue.options) ? (issue.options as unknown[]) : [];
         out.push({
           path: formatPath(path),
@@ -105,7 +124,7 @@ export function problemsFromZod(issues: readonly z.core.$ZodIssue[], input: unkn
       }
       const typeOnly = branches.every((b) => b.length === 1 && b[0].code === 'invalid_type' && b[0].path.length === 0);
       if (typeOnly) {
-        const value = valueAt(input, issue.path);
+        const value = boundedValue(valueAt(input, issue.path));
         out.push({
           path: formatPath(path),
           value,
@@ -121,7 +140,7 @@ export function problemsFromZod(issues: readonly z.core.$ZodIssue[], input: unkn
       out.push(...problemsFromZod(best, valueAt(input, issue.path), path));
       continue;
     }
-    const value = valueAt(input, issue.path);
+    const value = boundedValue(valueAt(input, issue.path));
     let message = issue.message;
     if (issue.code === 'invalid_type' && value === undefined) message = 'is required';
     if (issue.code === 'invalid_value' && 'values' in issue) {

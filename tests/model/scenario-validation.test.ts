@@ -101,6 +101,24 @@ describe('scenario validation: bad files name the field, the value and the allow
     });
   }
 
+  it('a deeply nested value is reported by path without overflowing the stack (regression: 5000 nested arrays gave a 500)', () => {
+    const deep = `${'['.repeat(5000)}1${']'.repeat(5000)}`;
+    const text = readFileSync(new URL('../fixtures/quick-scenario.json', import.meta.url), 'utf8').replace(/^\{/, `{"extra": ${deep},`);
+    let error: unknown;
+    try {
+      parseScenarioText(text);
+    } catch (e) {
+      error = e;
+    }
+    expect(error).toBeInstanceOf(ScenarioError);
+    const problems = (error as ScenarioError).problems;
+    expect(problems.map((p) => p.path)).toEqual(['extra']);
+    expect(problems[0].message).toBe('is not a known field (check the spelling)');
+    // The value is kept to a readable depth, so it can be printed and sent back as JSON.
+    expect(() => JSON.stringify(problems)).not.toThrow();
+    expect((error as ScenarioError).message).toContain('extra = [[[');
+  });
+
   it('the small valid fixture used by the CLI tests passes', () => {
     const s = parseScenarioText(readFileSync(new URL('../fixtures/quick-scenario.json', import.meta.url), 'utf8'));
     expect(s.pest.illustrative).toBe(true);

@@ -86,6 +86,16 @@ describe('scenarios', () => {
     expect(x.json().error).toBeDefined();
   });
 
+  it('a deeply nested body answers 400 naming the field, never 500 (regression)', async () => {
+    const payload = `{"title": "x", "deep": ${'['.repeat(5000)}1${']'.repeat(5000)}}`;
+    const r = await t.app.inject({ method: 'POST', url: '/api/scenarios', headers: { 'content-type': 'application/json' }, payload });
+    expect(r.statusCode).toBe(400);
+    expect(r.json().problems).toEqual(expect.arrayContaining([expect.objectContaining({ path: 'deep', message: 'is not a known field (check the spelling)' })]));
+    const e = await t.app.inject({ method: 'POST', url: '/api/evaluations', headers: { 'content-type': 'application/json' }, payload: `{"scenarioRef": ${'['.repeat(5000)}${']'.repeat(5000)}}` });
+    expect(e.statusCode).toBe(400);
+    expect(e.json().problems[0].path).toBe('scenarioRef');
+  });
+
   it('demo scenarios are read-only (409)', async () => {
     expect((await json('PUT', `/api/scenarios/${QUICK_REF}`, quickRaw())).statusCode).toBe(409);
     expect((await json('DELETE', `/api/scenarios/${QUICK_REF}`)).statusCode).toBe(409);
