@@ -15,7 +15,7 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import views from './web/plugins/views.ts';
 import security from './web/plugins/security.ts';
-import errors from './web/plugins/errors.ts';
+import errors, { frameworkErrors } from './web/plugins/errors.ts';
 import openapi from './web/plugins/openapi.ts';
 import { openStore } from './web/store.ts';
 import { loadDemos, makeCatalogue } from './web/catalogue.ts';
@@ -55,7 +55,13 @@ export const DEFAULT_COMPUTE_PER_MINUTE = 30;
 
 export async function buildApp(options: AppOptions = {}): Promise<FastifyInstance> {
   const bodyLimit = options.bodyLimit ?? DEFAULT_BODY_LIMIT;
-  const app = Fastify({ logger: options.logger ?? false, bodyLimit, return503OnClosing: true });
+  const app: FastifyInstance = Fastify({
+    logger: options.logger ?? false,
+    bodyLimit,
+    return503OnClosing: true,
+    // A malformed or over-long address, answered by the router: same error body or page as other errors.
+    frameworkErrors: (err, req, reply) => frameworkErrors(err, req, reply, (name, data) => app.view(name, data)),
+  });
   const limits: WebLimits = { ...DEFAULT_LIMITS, ...options.limits };
   const store = openStore(options.dataDir ?? join(process.cwd(), 'data'));
   const demos = loadDemos(options.scenariosDir ?? DEFAULT_SCENARIOS_DIR, (msg) => app.log.warn(msg));

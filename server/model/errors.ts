@@ -58,7 +58,8 @@ export function valueAt(root: unknown, path: readonly PropertyKey[]): unknown {
   return cur;
 }
 
-function describeValue(v: unknown): string {
+/** The value found, as short JSON text ("missing" when absent). */
+export function describeValue(v: unknown): string {
   if (v === undefined) return 'missing';
   let s: string;
   try {

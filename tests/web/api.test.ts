@@ -96,6 +96,14 @@ describe('scenarios', () => {
     expect(e.json().problems[0].path).toBe('scenarioRef');
   });
 
+  it('a bad result-list limit names the value and the allowed range (regression)', async () => {
+    for (const limit of ['abc', '0', '2.5', '1e9']) {
+      const r = await t.app.inject(`/api/results?limit=${limit}`);
+      expect(r.statusCode, limit).toBe(400);
+      expect(r.json().problems, limit).toEqual([{ path: 'query.limit', value: limit, message: 'must be a whole number from 1 to 500' }]);
+    }
+  });
+
   it('demo scenarios are read-only (409)', async () => {
     expect((await json('PUT', `/api/scenarios/${QUICK_REF}`, quickRaw())).statusCode).toBe(409);
     expect((await json('DELETE', `/api/scenarios/${QUICK_REF}`)).statusCode).toBe(409);

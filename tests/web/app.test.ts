@@ -105,6 +105,24 @@ describe('limits and errors', () => {
     expect(api.body).not.toContain('stack');
   });
 
+  it('a malformed or over-long address answers through the app\'s own error pages (regression)', async () => {
+    // Both were answered by the router itself: a bare JSON body without `problems`, even for a page.
+    const badPage = await app.inject('/scenarios/%');
+    expect(badPage.statusCode).toBe(400);
+    expect(badPage.headers['content-type']).toMatch(/text\/html/);
+    expect(badPage.body).toContain('not a valid address');
+    const badApi = await app.inject('/api/scenarios/%zz');
+    expect(badApi.statusCode).toBe(400);
+    expect(badApi.json()).toMatchObject({ error: 'BAD_URL', problems: [{ path: 'url' }] });
+    const long = `/api/results/${'a'.repeat(200)}`;
+    const longApi = await app.inject(long);
+    expect(longApi.statusCode).toBe(414);
+    expect(longApi.json()).toMatchObject({ error: 'URL_TOO_LONG', problems: [{ path: 'url', message: expect.stringMatching(/at most 80 characters/) }] });
+    const longPage = await app.inject(`/scenarios/${'a'.repeat(200)}/edit`);
+    expect(longPage.statusCode).toBe(414);
+    expect(longPage.headers['content-type']).toMatch(/text\/html/);
+  });
+
   it('the event stream of a job refuses clients that do not accept events', async () => {
     const r = await app.inject({ method: 'GET', url: '/runs/none/events', headers: { accept: 'application/json' } });
     expect(r.statusCode).toBe(406);

@@ -173,6 +173,33 @@ describe('JSON editor, upload and download', () => {
     expect(none.body).toContain('choose a scenario file');
   });
 
+  it('upload and JSON editor problems name the value found, not only the path and range (regression)', async () => {
+    // The form keeps the typed text beside each field; an uploaded file's content is not shown anywhere, so
+    // the problem itself must say what was found.
+    const boundary = '----barrier-test';
+    const headers = { 'content-type': `multipart/form-data; boundary=${boundary}` };
+    const content = quickText.replace('"lengthKm": 3,', '"lengthKm": "three",');
+    const payload = `--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="s.json"\r\nContent-Type: application/json\r\n\r\n${content}\r\n--${boundary}--\r\n`;
+    const bad = await t.app.inject({ method: 'POST', url: '/scenarios/upload', headers, payload });
+    expect(bad.statusCode).toBe(400);
+    expect(bad.body).toMatch(/<code>transect\.segments\[0\]\.lengthKm<\/code>[^<]*found &quot;three&quot;/);
+    const json = await postForm(`/scenarios/${QUICK_REF}/json`, { text: quickText.replace('"horizonYears": 6', '"horizonYears": 900'), _action: 'check' });
+    expect(json.statusCode).toBe(400);
+    expect(json.body).toMatch(/<code>horizonYears<\/code>[^<]*found 900[^<]*must be &gt; 0 and ≤ 500 yr/);
+  });
+
+  it('a file over the upload limit answers 413 on the scenario list, naming the file and the limit (regression)', async () => {
+    const boundary = '----barrier-test';
+    const headers = { 'content-type': `multipart/form-data; boundary=${boundary}` };
+    const big = quickText.replace('"horizonYears": 6', `"horizonYears": 6, "notes": "${'x'.repeat(1_010_000)}"`);
+    const payload = `--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="big.json"\r\nContent-Type: application/json\r\n\r\n${big}\r\n--${boundary}--\r\n`;
+    const r = await t.app.inject({ method: 'POST', url: '/scenarios/upload', headers, payload });
+    expect(r.statusCode).toBe(413);
+    expect(r.body).toContain('The file could not be loaded');
+    expect(r.body).toMatch(/<code>file<\/code>[^<]*found &quot;big\.json&quot;[^<]*larger than 1 MB/);
+    expect(r.body).toContain('action="/scenarios/upload"');
+  });
+
   it('downloads a scenario as a file', async () => {
     const r = await get(`/scenarios/${QUICK_REF}/scenario.json`);
     expect(r.statusCode).toBe(200);

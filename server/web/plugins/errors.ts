@@ -8,6 +8,7 @@ import fp from 'fastify-plugin';
 import { randomUUID } from 'node:crypto';
 import type { FastifyReply, FastifyRequest } from 'fastify';
 import { InputError, type Problem } from '../../model/errors.ts';
+import { problemItems } from '../view-models/problems.ts';
 
 export interface ErrorBody {
   error: string;
@@ -17,7 +18,10 @@ export interface ErrorBody {
   reference?: string;
 }
 
-export const isApiRequest = (req: FastifyRequest) => req.url.startsWith('/api/') || req.url === '/api';
+export const isApiRequest = (req: FastifyRequest) => {
+  const url = req.url ?? req.raw.url ?? '';
+  return url.startsWith('/api/') || url === '/api';
+};
 
 const HTTP_TITLES: Record<number, string> = {
   400: 'The input needs correcting',
@@ -25,7 +29,9 @@ const HTTP_TITLES: Record<number, string> = {
   404: 'Not found',
   405: 'Not allowed',
   406: 'Not acceptable',
+  409: 'Not possible',
   413: 'Too large',
+  414: 'Address too long',
   415: 'Unsupported content',
   429: 'Too many requests',
   500: 'Something went wrong on our side',
@@ -35,7 +41,7 @@ const HTTP_TITLES: Record<number, string> = {
 async function send(req: FastifyRequest, reply: FastifyReply, status: number, body: ErrorBody) {
   if (isApiRequest(req) || reply.sent) return reply.code(status).type('application/json; charset=utf-8').send(body);
   try {
-    return await reply.page('error', { title: HTTP_TITLES[status] ?? 'Error', status, ...body }, status);
+    return await reply.page('error', { title: HTTP_TITLES[status] ?? 'Error', status, ...body, problems: problemItems(body.problems) }, status);
   } catch (err) {
     req.log.error({ err }, 'error page could not be rendered');
     return reply.code(status).type('text/plain; charset=utf-8').send(`${HTTP_TITLES[status] ?? 'Error'}: ${body.message}`);
@@ -73,6 +79,40 @@ export default fp(
   },
   { name: 'errors', dependencies: ['views'] },
 );
+
+/**
+ * Errors the router answers before any route or hook runs (a malformed %-escape, a reference longer than the
+ * router allows): passed to Fastify as `frameworkErrors`, so they get the same JSON body or error page as
+ * every other error.
+ */
+export async function frameworkErrors(
+  err: { code?: string },
+  req: FastifyRequest,
+  reply: FastifyReply,
+  /** Renders a page template in the layout (the router's reply has no `page`). */
+  render?: (name: string, data: Record<string, unknown>) => Promise<string>,
+) {
+  const tooLong = err.code === 'FST_ERR_MAX_PARAM_LENGTH';
+  const status = tooLong ? 414 : 400;
+  const message = tooLong
+    ? 'The address is too long: a scenario, result or run reference has at most 80 characters.'
+    : 'This is not a valid address: it has a "%" that does not start a valid %-escape.';
+  const url = req.raw.url ?? '';
+  const body: ErrorBody = {
+    error: tooLong ? 'URL_TOO_LONG' : 'BAD_URL',
+    message,
+    problems: [{ path: 'url', value: url.length > 120 ? `${url.slice(0, 117)}...` : url, message: tooLong ? 'must have references of at most 80 characters' : 'must be a valid address' }],
+  };
+  if (!isApiRequest(req) && render) {
+    try {
+      const html = await render('pages/error', { title: HTTP_TITLES[status], status, ...body, problems: problemItems(body.problems) });
+      return reply.code(status).type('text/html; charset=utf-8').send(html);
+    } catch (e) {
+      req.log.error({ err: e }, 'error page could not be rendered');
+    }
+  }
+  return send(req, reply, status, body);
+}
 
 /** A 404 for a missing scenario, result or job, thrown from route handlers. */
 export function notFound(what: string): Error {

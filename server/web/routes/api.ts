@@ -65,6 +65,8 @@ const EvaluationRequest = z
     }
   });
 
+/** Allowed range of the result-list limit, in the words of every other problem message. */
+const LIMIT_RANGE = 'must be a whole number from 1 to 500';
 const errors = { 400: ErrorSchema, 404: ErrorSchema };
 
 export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
@@ -204,7 +206,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
       schema: {
         tags: ['results'],
         summary: 'List stored results (newest first)',
-        querystring: z.object({ scenarioRef: z.string().max(80).optional(), limit: z.coerce.number().int().min(1).max(500).default(100) }),
+        querystring: z.object({ scenarioRef: z.string().max(80).optional(), limit: z.coerce.number({ error: LIMIT_RANGE }).int({ error: LIMIT_RANGE }).min(1, { error: LIMIT_RANGE }).max(500, { error: LIMIT_RANGE }).default(100) }),
         response: { 200: z.object({ results: z.array(ResultSummary) }), 400: ErrorSchema },
       },
     },

@@ -10,6 +10,7 @@ import { applyRowAction, formStateFromBody, formToScenario, parseRowAction, ROW_
 import { formView, inputId, newScenarioTemplate } from '../view-models/scenario-form.ts';
 import { scenarioListItem, scenarioView } from '../view-models/scenario-view.ts';
 import { resultListItem } from '../view-models/result-view.ts';
+import { problemItems } from '../view-models/problems.ts';
 import { checkLimits } from '../limits.ts';
 import { savedId, type CatalogueEntry } from '../catalogue.ts';
 import { conflict, notFound } from '../plugins/errors.ts';
@@ -39,7 +40,7 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
         demos: all.filter((s) => s.demo).map((s) => ({ ...s, description: catalogue.get(s.ref)?.description ?? '' })),
         saved: all.filter((s) => !s.demo),
         results: store.listResults({ limit: 10 }).map(resultListItem),
-        uploadProblems: extra.uploadProblems ?? [],
+        uploadProblems: problemItems(extra.uploadProblems ?? []),
         notice: extra.notice ?? '',
       },
       status,
@@ -170,7 +171,7 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
         title: `JSON: ${entry.title}`,
         s: scenarioView(entry),
         text,
-        problems,
+        problems: problemItems(problems),
         notice,
         readOnly: entry.readOnly,
       },
@@ -204,10 +205,16 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
     }
     const file = await req.file({ limits: { fileSize: UPLOAD_LIMIT_BYTES, files: 1 } });
     if (!file) return listPage(reply, { uploadProblems: [{ path: 'file', value: undefined, message: 'choose a scenario file (.json) to upload' }] }, 400);
-    const buffer = await file.toBuffer();
-    if (file.file.truncated) {
-      return listPage(reply, { uploadProblems: [{ path: 'file', value: file.filename, message: `is larger than ${UPLOAD_LIMIT_BYTES / 1e6} MB` }] }, 400);
+    const tooLarge = () => listPage(reply, { uploadProblems: [{ path: 'file', value: file.filename, message: `is larger than ${UPLOAD_LIMIT_BYTES / 1e6} MB, the most this server accepts` }] }, 413);
+    let buffer: Buffer;
+    try {
+      buffer = await file.toBuffer();
+    } catch (e) {
+      // The multipart reader throws once the file passes the size limit.
+      if ((e as { code?: string }).code === 'FST_REQ_FILE_TOO_LARGE') return tooLarge();
+      throw e;
     }
+    if (file.file.truncated) return tooLarge();
     let scenario: Scenario;
     try {
       scenario = parseScenarioText(buffer.toString('utf8'));
