@@ -175,9 +175,13 @@ export function makeJobRunner(opts: JobRunnerOptions): JobRunner {
     submit({ scenario, scenarioRef }) {
       const waiting = [...jobs.values()].filter((j) => j.view.status === 'queued').length;
       if (waiting >= opts.maxQueued) {
-        throw new LimitError([
-          { path: 'evaluations', value: `${waiting} waiting`, message: `this server queues at most ${opts.maxQueued} evaluations; try again in a few minutes` },
-        ]);
+        // 503: the server is busy; the request itself is fine (the error handler keeps this status).
+        throw Object.assign(
+          new LimitError([
+            { path: 'evaluations', value: `${waiting} waiting`, message: `this server queues at most ${opts.maxQueued} evaluations; try again in a few minutes` },
+          ]),
+          { statusCode: 503 },
+        );
       }
       const job: Job = {
         view: {

@@ -168,6 +168,34 @@ describe('evaluations and results', () => {
   });
 });
 
+describe('a full queue', () => {
+  it('answers 503 with a Retry-After (the server is busy; the request itself is fine), JSON for the API and a page for forms (regression: was 400)', async () => {
+    const s = await buildTestApp({ limits: { maxQueued: 1, wallSeconds: 20 } });
+    try {
+      const ids: string[] = [];
+      for (let i = 0; i < 2; i++) {
+        const r = await s.app.inject({ method: 'POST', url: '/api/evaluations', payload: { scenario: slowScenario() } });
+        expect(r.statusCode).toBe(202);
+        ids.push(r.json().id);
+        // The first one leaves the queue for the only worker before the second is queued.
+        for (let k = 0; i === 0 && k < 100 && (await s.app.inject(`/api/evaluations/${ids[0]}`)).json().status === 'queued'; k++) await new Promise((res) => setTimeout(res, 50));
+      }
+      const full = await s.app.inject({ method: 'POST', url: '/api/evaluations', payload: { scenario: slowScenario() } });
+      expect(full.statusCode).toBe(503);
+      expect(full.headers['retry-after']).toBeDefined();
+      expect(full.json().problems[0]).toMatchObject({ path: 'evaluations', message: expect.stringMatching(/queues at most 1 evaluations/) });
+      const page = await s.app.inject({ method: 'POST', url: `/scenarios/${QUICK_REF}/run` });
+      expect(page.statusCode).toBe(503);
+      expect(page.headers['content-type']).toMatch(/text\/html/);
+      expect(page.body).toContain('queues at most 1 evaluations');
+      for (const id of ids) await s.app.inject({ method: 'POST', url: `/api/evaluations/${id}/cancel` });
+      for (const id of ids) await waitForJob(s.app, id);
+    } finally {
+      await s.close();
+    }
+  });
+});
+
 describe('cancel and wall-time limit', () => {
   let s: TestApp;
   beforeAll(async () => {

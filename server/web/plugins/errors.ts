@@ -53,7 +53,10 @@ export default fp(
     app.setErrorHandler(async (err: unknown, req, reply) => {
       if (err instanceof InputError) {
         const n = err.problems.length;
-        return send(req, reply, 400, {
+        // An input error may carry 503 (a full queue: retry later); anything else is the input's fault.
+        const status = (err as { statusCode?: number }).statusCode === 503 ? 503 : 400;
+        if (status === 503) reply.header('retry-after', '60');
+        return send(req, reply, status, {
           error: err.code,
           message: `${n} problem${n === 1 ? '' : 's'} found: ${err.problems.map((p) => `${p.path || '(input)'}: ${p.message}`).join('; ')}`,
           problems: err.problems,

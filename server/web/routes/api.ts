@@ -152,7 +152,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
           'Answers 202 with the job; poll GET /api/evaluations/{id} (or listen to /api/evaluations/{id}/events) until `finished`, ' +
           'then fetch /api/results/{resultId}. Limits on cells, horizon, options and wall time answer 400 with the field concerned.',
         body: EvaluationRequest,
-        response: { 202: JobSchema, 429: ErrorSchema, ...errors },
+        response: { 202: JobSchema, 429: ErrorSchema, 503: ErrorSchema.describe('The queue is full; retry after the Retry-After seconds'), ...errors },
       },
     },
     async (req, reply) => {
