@@ -131,6 +131,14 @@ function formatSeconds(s: number): string {
   return s < 90 ? `${Math.ceil(s)} s` : `${Math.ceil(s / 60)} min`;
 }
 
+/** Why a scenario file could not be read, in words. */
+const READ_ERRORS: Record<string, string> = {
+  ENOENT: 'no such file',
+  EISDIR: 'a folder, not a file',
+  EACCES: 'permission denied',
+  EPERM: 'permission denied',
+};
+
 /** Runs the CLI; resolves to the exit code (0 ok, 1 invalid scenario or failed run, 2 usage). */
 export async function main(argv: string[]): Promise<number> {
   let args: CliArgs;
@@ -151,7 +159,9 @@ export async function main(argv: string[]): Promise<number> {
   try {
     text = readFileSync(args.file, 'utf8');
   } catch (e) {
-    process.stderr.write(`cannot read scenario file ${args.file}: ${(e as NodeJS.ErrnoException).code ?? (e as Error).message}\n`);
+    const code = (e as NodeJS.ErrnoException).code;
+    const why = code && READ_ERRORS[code] ? `${code} (${READ_ERRORS[code]})` : (code ?? (e as Error).message);
+    process.stderr.write(`cannot read scenario file ${args.file}: ${why}\n`);
     return 1;
   }
   try {

@@ -140,6 +140,13 @@ describe('evaluate command (in process)', () => {
     expect(io.stdout()).toBe('');
   });
 
+  it('a scenario file that cannot be read says why in words, not only by error code (regression)', async () => {
+    expect(await main([join(dir, 'nope.json'), '--quiet'])).toBe(1);
+    expect(io.stderr()).toContain('nope.json: ENOENT (no such file)');
+    expect(await main([dir, '--quiet'])).toBe(1);
+    expect(io.stderr()).toContain(`${dir}: EISDIR (a folder, not a file)`);
+  });
+
   it('the readable summary shows fronts, measured spread rate, arrivals and host remaining', async () => {
     expect(await main([quick, '--quiet', '--threads', '1'])).toBe(0);
     const text = io.stdout();

@@ -186,6 +186,8 @@ describe('JSON editor, upload and download', () => {
     const json = await postForm(`/scenarios/${QUICK_REF}/json`, { text: quickText.replace('"horizonYears": 6', '"horizonYears": 900'), _action: 'check' });
     expect(json.statusCode).toBe(400);
     expect(json.body).toMatch(/<code>horizonYears<\/code>[^<]*found 900[^<]*must be &gt; 0 and ≤ 500 yr/);
+    // The path is printed once (it was printed twice when a problem had no label: "horizonYears horizonYears").
+    expect(json.body).not.toContain('<strong>horizonYears</strong>');
   });
 
   it('a file over the upload limit answers 413 on the scenario list, naming the file and the limit (regression)', async () => {
