@@ -61,6 +61,7 @@ export function valueAt(root: unknown, path: readonly PropertyKey[]): unknown {
 /** The value found, as short JSON text ("missing" when absent). */
 export function describeValue(v: unknown): string {
   if (v === undefined) return 'missing';
+  if (typeof v === 'number' && !Number.isFinite(v)) return String(v);
   let s: string;
   try {
     s = JSON.stringify(v) ?? String(v);
@@ -150,6 +151,17 @@ export function problemsFromZod(issues: readonly z.core.$ZodIssue[], input: unkn
     out.push({ path: formatPath(path), value, message });
   }
   return out;
+}
+
+/**
+ * A problem's value as JSON can carry it: JSON has no Infinity or NaN (a number such as 1e309 parses to
+ * Infinity and would otherwise be sent back as null), so those become the text "Infinity", "NaN".
+ */
+export function jsonSafeValue(v: unknown): unknown {
+  if (typeof v === 'number' && !Number.isFinite(v)) return String(v);
+  if (v === null || typeof v !== 'object') return v;
+  if (Array.isArray(v)) return v.map(jsonSafeValue);
+  return Object.fromEntries(Object.entries(v).map(([k, x]) => [k, jsonSafeValue(x)]));
 }
 
 function score(branch: readonly z.core.$ZodIssue[]): number {

@@ -119,6 +119,19 @@ describe('scenario validation: bad files name the field, the value and the allow
     expect((error as ScenarioError).message).toContain('extra = [[[');
   });
 
+  it('a number too large for a double is reported as Infinity, not null (regression)', () => {
+    const text = readFileSync(new URL('../fixtures/quick-scenario.json', import.meta.url), 'utf8').replace(/"horizonYears": [0-9.]+/, '"horizonYears": 1e309');
+    let error: unknown;
+    try {
+      parseScenarioText(text);
+    } catch (e) {
+      error = e;
+    }
+    expect(error).toBeInstanceOf(ScenarioError);
+    expect((error as ScenarioError).problems).toEqual([expect.objectContaining({ path: 'horizonYears', value: Infinity })]);
+    expect((error as ScenarioError).message).toContain('horizonYears = Infinity: must be > 0 and ≤ 500 yr');
+  });
+
   it('the small valid fixture used by the CLI tests passes', () => {
     const s = parseScenarioText(readFileSync(new URL('../fixtures/quick-scenario.json', import.meta.url), 'utf8'));
     expect(s.pest.illustrative).toBe(true);

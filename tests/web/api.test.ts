@@ -104,6 +104,13 @@ describe('scenarios', () => {
     }
   });
 
+  it('a number too large for a double is sent back as "Infinity", not null (regression)', async () => {
+    const payload = JSON.stringify(quickRaw()).replace(/"horizonYears":\s*[0-9.]+/, '"horizonYears": 1e309');
+    const r = await t.app.inject({ method: 'POST', url: '/api/scenarios', headers: { 'content-type': 'application/json' }, payload });
+    expect(r.statusCode).toBe(400);
+    expect(r.json().problems).toEqual([{ path: 'horizonYears', value: 'Infinity', message: expect.stringMatching(/^must be > 0 and ≤ 500 yr/) }]);
+  });
+
   it('demo scenarios are read-only (409)', async () => {
     expect((await json('PUT', `/api/scenarios/${QUICK_REF}`, quickRaw())).statusCode).toBe(409);
     expect((await json('DELETE', `/api/scenarios/${QUICK_REF}`)).statusCode).toBe(409);

@@ -7,7 +7,7 @@
 import fp from 'fastify-plugin';
 import { randomUUID } from 'node:crypto';
 import type { FastifyReply, FastifyRequest } from 'fastify';
-import { InputError, type Problem } from '../../model/errors.ts';
+import { InputError, jsonSafeValue, type Problem } from '../../model/errors.ts';
 import { problemItems } from '../view-models/problems.ts';
 
 export interface ErrorBody {
@@ -39,7 +39,10 @@ const HTTP_TITLES: Record<number, string> = {
 };
 
 async function send(req: FastifyRequest, reply: FastifyReply, status: number, body: ErrorBody) {
-  if (isApiRequest(req) || reply.sent) return reply.code(status).type('application/json; charset=utf-8').send(body);
+  if (isApiRequest(req) || reply.sent) {
+    const problems = body.problems.map((p) => ({ ...p, value: jsonSafeValue(p.value) }));
+    return reply.code(status).type('application/json; charset=utf-8').send({ ...body, problems });
+  }
   try {
     return await reply.page('error', { title: HTTP_TITLES[status] ?? 'Error', status, ...body, problems: problemItems(body.problems) }, status);
   } catch (err) {
