@@ -157,6 +157,12 @@ describe('evaluations and results', () => {
     const r = await json('POST', '/api/evaluations', { scenario: bad });
     expect(r.statusCode).toBe(400);
     expect(r.json().problems).toContainEqual({ path: 'scenario.horizonYears', value: 'soon', message: 'must be > 0 and ≤ 500 yr (a number)' });
+    // A server limit (horizon above this server's 200 years) names the path from the body's root too.
+    const long = quickRaw();
+    long.horizonYears = 400;
+    const limited = await json('POST', '/api/evaluations', { scenario: long });
+    expect(limited.statusCode).toBe(400);
+    expect(limited.json().problems[0]).toMatchObject({ path: 'scenario.horizonYears', value: 400 });
     const unknown = await json('POST', '/api/evaluations', { scenarioRef: 'demo-none' });
     expect(unknown.statusCode).toBe(404);
     const q = await json('GET', '/api/results?limit=0');

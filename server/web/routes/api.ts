@@ -8,6 +8,7 @@ import type { ZodTypeProvider } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { ScenarioSchema, type Scenario } from '../../model/scenario.ts';
 import { FIELDS, describeRange } from '../../model/fields.ts';
+import { LimitError } from '../../model/errors.ts';
 import { checkLimits } from '../limits.ts';
 import { savedId } from '../catalogue.ts';
 import { conflict, notFound } from '../plugins/errors.ts';
@@ -159,7 +160,13 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
       const body = req.body as { scenarioRef?: string; scenario?: Scenario };
       const entry = body.scenarioRef !== undefined ? entryOr404(body.scenarioRef) : undefined;
       const scenario = entry ? entry.scenario : body.scenario!;
-      checkLimits(scenario, limits);
+      try {
+        checkLimits(scenario, limits);
+      } catch (e) {
+        // A scenario sent inline sits under "scenario" in the body: name paths from there, as schema errors do.
+        if (entry || !(e instanceof LimitError)) throw e;
+        throw new LimitError(e.problems.map((p) => ({ ...p, path: `scenario.${p.path}` })));
+      }
       const job = jobs.submit({ scenario, scenarioRef: entry?.ref ?? null });
       reply.code(202).header('location', `/api/evaluations/${job.id}`);
       return withResultId(job.id);
