@@ -101,35 +101,33 @@ describe('scenario validation: bad files name the field, the value and the allow
     });
   }
 
-  it('a deeply nested value is reported by path without overflowing the stack (regression: 5000 nested arrays gave a 500)', () => {
-    const deep = `${'['.repeat(5000)}1${']'.repeat(5000)}`;
-    const text = readFileSync(new URL('../fixtures/quick-scenario.json', import.meta.url), 'utf8').replace(/^\{/, `{"extra": ${deep},`);
-    let error: unknown;
+  /** The error thrown when parsing the CLI fixture with one textual replacement applied. */
+  const fixtureError = (edit: (text: string) => string): ScenarioError => {
+    const text = edit(readFileSync(new URL('../fixtures/quick-scenario.json', import.meta.url), 'utf8'));
     try {
       parseScenarioText(text);
     } catch (e) {
-      error = e;
+      if (e instanceof ScenarioError) return e;
+      throw e;
     }
-    expect(error).toBeInstanceOf(ScenarioError);
-    const problems = (error as ScenarioError).problems;
+    throw new Error('the edited fixture parsed without an error');
+  };
+
+  it('a deeply nested value is reported by path without overflowing the stack (regression: 5000 nested arrays gave a 500)', () => {
+    const deep = `${'['.repeat(5000)}1${']'.repeat(5000)}`;
+    const error = fixtureError((text) => text.replace(/^\{/, `{"extra": ${deep},`));
+    const problems = error.problems;
     expect(problems.map((p) => p.path)).toEqual(['extra']);
     expect(problems[0].message).toBe('is not a known field (check the spelling)');
     // The value is kept to a readable depth, so it can be printed and sent back as JSON.
     expect(() => JSON.stringify(problems)).not.toThrow();
-    expect((error as ScenarioError).message).toContain('extra = [[[');
+    expect(error.message).toContain('extra = [[[');
   });
 
   it('a number too large for a double is reported as Infinity, not null (regression)', () => {
-    const text = readFileSync(new URL('../fixtures/quick-scenario.json', import.meta.url), 'utf8').replace(/"horizonYears": [0-9.]+/, '"horizonYears": 1e309');
-    let error: unknown;
-    try {
-      parseScenarioText(text);
-    } catch (e) {
-      error = e;
-    }
-    expect(error).toBeInstanceOf(ScenarioError);
-    expect((error as ScenarioError).problems).toEqual([expect.objectContaining({ path: 'horizonYears', value: Infinity })]);
-    expect((error as ScenarioError).message).toContain('horizonYears = Infinity: must be > 0 and ≤ 500 yr');
+    const error = fixtureError((text) => text.replace(/"horizonYears": [0-9.]+/, '"horizonYears": 1e309'));
+    expect(error.problems).toEqual([expect.objectContaining({ path: 'horizonYears', value: Infinity })]);
+    expect(error.message).toContain('horizonYears = Infinity: must be > 0 and ≤ 500 yr');
   });
 
   it('the small valid fixture used by the CLI tests passes', () => {
