@@ -21,6 +21,7 @@ import { openStore } from './web/store.ts';
 import { loadDemos, makeCatalogue } from './web/catalogue.ts';
 import { makeJobRunner } from './web/jobs.ts';
 import { makeBriefingRenderer } from './web/briefings.ts';
+import { defaultThreads } from './analysis/ensemble-pool.ts';
 import { DEFAULT_LIMITS, type WebLimits } from './web/limits.ts';
 import scenarioPages from './web/routes/scenario-pages.ts';
 import runPages from './web/routes/run-pages.ts';
@@ -39,6 +40,8 @@ export interface AppOptions {
   limits?: Partial<WebLimits>;
   /** Worker threads for evaluations. Default: one less than the CPU count, at least 1. */
   workerThreads?: number;
+  /** Worker threads for the draws of one ensemble. Default: the CPU count. */
+  ensembleThreads?: number;
   /** Compute requests (evaluations) per client per minute. */
   computePerMinute?: number;
   /** Largest request body [bytes]. */
@@ -68,6 +71,7 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
   const jobs = makeJobRunner({
     store,
     threads: options.workerThreads ?? Math.max(1, cpus().length - 1),
+    ensembleThreads: options.ensembleThreads ?? defaultThreads(),
     wallSeconds: limits.wallSeconds,
     maxQueued: limits.maxQueued,
     onError: (err) => app.log.error({ err }, 'evaluation failed'),

@@ -1,7 +1,7 @@
 /**
  * Process entry: build the app, listen, close gracefully on SIGINT/SIGTERM.
  * Environment: HOST (default 127.0.0.1), PORT (3000), DATA_DIR (./data), WORKERS (evaluation threads),
- * WALL_SECONDS (longest evaluation).
+ * ENSEMBLE_THREADS (threads for the draws of one ensemble), WALL_SECONDS (longest evaluation).
  */
 import { buildApp } from './app.ts';
 
@@ -17,6 +17,7 @@ const app = await buildApp({
   logger: true,
   dataDir: process.env.DATA_DIR ?? 'data',
   workerThreads: positive(process.env.WORKERS),
+  ensembleThreads: positive(process.env.ENSEMBLE_THREADS),
   limits: { ...(positive(process.env.WALL_SECONDS) ? { wallSeconds: positive(process.env.WALL_SECONDS) } : {}) },
 });
 try {

@@ -1,10 +1,11 @@
 /**
- * Worker-thread entry (piscina): runs one evaluation with evaluateScenario, posting progress through a
+ * Worker-thread entry (piscina): runs one evaluation with evaluateScenarioParallel (an ensemble goes to its
+ * own pool of `ensembleThreads` threads, the same numbers as on one thread), posting progress through a
  * MessagePort and polling a shared cancel flag and the wall-time limit. Returns a plain outcome object;
  * errors never cross the thread boundary as exceptions, so the main thread always knows what happened.
  */
 import type { MessagePort } from 'node:worker_threads';
-import { evaluateScenario } from '../analysis/evaluate.ts';
+import { evaluateScenarioParallel } from '../analysis/evaluate-parallel.ts';
 import { InputError, type Problem } from '../model/errors.ts';
 import type { Scenario } from '../model/scenario.ts';
 import type { ResultDocument } from '../analysis/result.ts';
@@ -17,6 +18,8 @@ export interface EvaluateTask {
   cancelBuffer: SharedArrayBuffer;
   /** Longest compute time [ms] counted from the start of this task. */
   wallMs: number;
+  /** Worker threads for the draws of an ensemble. */
+  ensembleThreads: number;
 }
 
 export type EvaluateOutcome =
@@ -29,7 +32,7 @@ export type EvaluateOutcome =
 /** Shortest interval between two progress messages [ms] (keeps the port quiet on fast runs). */
 const PROGRESS_INTERVAL_MS = 150;
 
-export default function evaluateTask(task: EvaluateTask): EvaluateOutcome {
+export default async function evaluateTask(task: EvaluateTask): Promise<EvaluateOutcome> {
   const flag = new Int32Array(task.cancelBuffer);
   const started = Date.now();
   const deadline = started + task.wallMs;
@@ -48,7 +51,7 @@ export default function evaluateTask(task: EvaluateTask): EvaluateOutcome {
   };
   task.port.postMessage({ type: 'started' });
   try {
-    const document = evaluateScenario(task.scenario, { onProgress, shouldCancel });
+    const document = await evaluateScenarioParallel(task.scenario, { onProgress, shouldCancel, threads: task.ensembleThreads });
     if (timedOut) return { kind: 'timeout', seconds: Number((task.wallMs / 1000).toFixed(1)) };
     if (Atomics.load(flag, 0) !== 0) return { kind: 'cancelled' };
     return { kind: 'done', document };

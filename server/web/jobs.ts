@@ -38,6 +38,8 @@ export interface JobRunnerOptions {
   store: Store;
   /** Worker threads (evaluations computed at the same time). */
   threads: number;
+  /** Worker threads for the draws of one ensemble (each evaluation with ranges starts its own pool). */
+  ensembleThreads: number;
   wallSeconds: number;
   maxQueued: number;
   /** Called with unexpected worker errors (logged; never shown to users). */
@@ -115,7 +117,7 @@ export function makeJobRunner(opts: JobRunnerOptions): JobRunner {
         update(job, { fraction: Math.min(1, Math.max(0, m.fraction)), stage: m.stage });
       }
     });
-    const task: EvaluateTask = { scenario, port: port2, cancelBuffer: job.cancelBuffer, wallMs: opts.wallSeconds * 1000 };
+    const task: EvaluateTask = { scenario, port: port2, cancelBuffer: job.cancelBuffer, wallMs: opts.wallSeconds * 1000, ensembleThreads: opts.ensembleThreads };
     pool
       .run(task, { transferList: [port2], signal: job.abort.signal })
       .then((outcome) => finish(job, scenario, outcome))

@@ -204,6 +204,28 @@ describe('ensemble and transport', () => {
     expect(html).toContain('People carrying the pest past the clearing');
     expect(html).toContain(doc.bypass!.regulatorNote.replace(/'/g, '&#x27;'));
   });
+
+  it('a web evaluation runs the draws on its own pool of threads, with the numbers of a single-thread run', async () => {
+    const raw = JSON.parse(quickText);
+    raw.pest.diffusionOpen = { dist: 'uniform', min: 0.1, max: 0.5 };
+    raw.pest.edgePreferenceOpen = { dist: 'uniform', min: 0.5, max: 0.9 };
+    raw.uncertainty = { draws: 12, seed: 5, criticalWidth: false };
+    const two = await buildTestApp({ ensembleThreads: 2 });
+    try {
+      const r = await two.app.inject({ method: 'POST', url: '/api/evaluations', payload: { scenario: raw } });
+      const job = await waitForJob(two.app, r.json().id);
+      expect(job.status).toBe('done');
+      const web = (await two.app.inject(`/api/results/${job.resultId}`)).json().document as ResultDocument;
+      expect(web.uncertainty!.threads).toBe(2);
+      // Reference: the same scenario evaluated on this thread (runEnsemble, one draw after the other).
+      const single = evaluateScenario(parseScenarioText(JSON.stringify(raw)));
+      expect(single.uncertainty!.threads).toBe(1);
+      expect(web.uncertainty!.options).toEqual(single.uncertainty!.options);
+      expect(web.uncertainty!.completed).toBe(12);
+    } finally {
+      await two.close();
+    }
+  });
 });
 
 describe('strip patterns', () => {
