@@ -122,6 +122,17 @@ describe('the result page', () => {
     expect(html).not.toContain('Chart not available');
   });
 
+  it('the width–delay table says "not within the horizon" for a crossing after it, not a bare dash', async () => {
+    const doc = (await t.app.inject(`${resultUrl}/result.json`)).json() as ResultDocument;
+    const rows = doc.options[0].widthDelay;
+    expect(rows.length).toBeGreaterThan(0);
+    const html = (await t.app.inject(resultUrl)).body;
+    for (const r of rows) {
+      const cell = r.pinned ? 'never (held)' : r.crossingYears === null ? `not within ${doc.horizonYears.toFixed(1)} yr` : r.crossingYears.toFixed(1);
+      expect(html, `${r.widthM} m`).toMatch(new RegExp(`<th[^>]*>${r.widthM} m</th>\\s*<td[^>]*>(yes|no)</td>\\s*<td[^>]*>${cell.replace(/[()]/g, '\\$&')}</td>`));
+    }
+  });
+
   it('shows the same arrival year as an independent evaluation of the same scenario', async () => {
     const stored = (await t.app.inject(`${resultUrl}/result.json`)).json() as ResultDocument;
     const direct = evaluateScenario(quick());

@@ -182,7 +182,7 @@ function widthDelayTables(doc: ResultDocument): { name: string; table: TableView
           label: `${integer(r.widthM)} m`,
           cells: [
             r.pinned ? 'yes' : 'no',
-            r.crossingYears === null ? '—' : years(r.crossingYears),
+            r.pinned ? 'never (held)' : r.crossingYears === null ? `not within ${years(doc.horizonYears)} yr` : years(r.crossingYears),
             ...doc.baseline.arrivals.map((_, k) => {
               const d = r.delayYearsBySite[k];
               return d === null || d === undefined ? '—' : `${years(d)} yr`;
