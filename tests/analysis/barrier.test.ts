@@ -157,20 +157,16 @@ describe('critical width wherever the clearing lies', () => {
   // middle of a long single stand, or a front moving left, was told "no strong Allee effect".
   // Reference: the phase-plane criterion (SCIENCE.md §5.3) for cubic growth, D = r = 1, a = 0.25, gap D = 1,
   // m = 1, α = ½ gives W* = 596.1 m (G1); the bisection bracket must contain it on either side.
-  const s = pointScenario(
-    parseScenario({
-      title: 'outbreak in the middle',
-      pest: { name: 'synthetic pest', diffusionHost: 1, diffusionOpen: 1, edgePreferenceOpen: 0.5, hostKillRate: 0, mortalityOpen: 1, ...cubic },
-      transect: { segments: [{ habitat: 'host-forest', lengthKm: 40, stocking: 1, stemsPerHa: 400 }] },
-      infestation: { fromKm: 18, toKm: 22 },
-      sites: [
-        { name: 'West hamlet', atKm: 4 },
-        { name: 'East hamlet', atKm: 36 },
-      ],
-      horizonYears: 40,
-      barrier: { lengthKm: 2, options: [{ name: 'west cut', fromKm: 12, widthM: 800 }, { name: 'east cut', fromKm: 27, widthM: 800 }] },
-    }),
-  );
+  const s = synthetic(cubic, 800, 40, {
+    title: 'outbreak in the middle',
+    transect: { segments: [{ habitat: 'host-forest', lengthKm: 40, stocking: 1, stemsPerHa: 400 }] },
+    infestation: { fromKm: 18, toKm: 22 },
+    sites: [
+      { name: 'West hamlet', atKm: 4 },
+      { name: 'East hamlet', atKm: 36 },
+    ],
+    barrier: { lengthKm: 2, options: [{ name: 'west cut', fromKm: 12, widthM: 800 }, { name: 'east cut', fromKm: 27, widthM: 800 }] },
+  });
   for (const k of [0, 1]) {
     it(`${k === 0 ? 'front moving left' : 'cut beyond the middle of the stand'}: bracket contains the phase-plane width`, () => {
       const { result: r } = analyseOption(s, s.barrier!.options[k], { record: false, widthCurve: false });

@@ -197,17 +197,23 @@ describe('the result page', () => {
   });
 });
 
+/** Runs a scenario through the API on `app`, expects it to finish, and returns the result id and document. */
+async function evaluateViaApi(app: TestApp['app'], raw: unknown): Promise<{ resultId: string; doc: ResultDocument }> {
+  const r = await app.inject({ method: 'POST', url: '/api/evaluations', payload: { scenario: raw } });
+  const job = await waitForJob(app, r.json().id);
+  expect(job.status).toBe('done');
+  const resultId = job.resultId as string;
+  return { resultId, doc: (await app.inject(`/api/results/${resultId}`)).json().document as ResultDocument };
+}
+
 describe('ensemble and transport', () => {
   it('an evaluation with an uncertainty and a transport block shows both sections with the regulator note', async () => {
     const raw = JSON.parse(quickText);
     raw.pest.diffusionOpen = { dist: 'uniform', min: 0.1, max: 0.5 };
     raw.uncertainty = { draws: 8, criticalWidth: false };
     raw.transport = { ratePerKm2Year: 0.01, kernel: { shape: 'exponential', meanKm: 5 }, establishmentProbability: 0.2 };
-    const r = await t.app.inject({ method: 'POST', url: '/api/evaluations', payload: { scenario: raw } });
-    const job = await waitForJob(t.app, r.json().id);
-    expect(job.status).toBe('done');
-    const doc = (await t.app.inject(`/api/results/${job.resultId}`)).json().document as ResultDocument;
-    const html = (await t.app.inject(`/results/${job.resultId}`)).body;
+    const { resultId, doc } = await evaluateViaApi(t.app, raw);
+    const html = (await t.app.inject(`/results/${resultId}`)).body;
     expect(html).toContain('Uncertainty: the ensemble over the ranges');
     expect(html).toContain(`${doc.uncertainty!.completed} of 8 draws (Latin hypercube, seed 1)`);
     const holds = doc.uncertainty!.options[0].holdsWithinHorizon;
@@ -223,10 +229,7 @@ describe('ensemble and transport', () => {
     raw.uncertainty = { draws: 12, seed: 5, criticalWidth: false };
     const two = await buildTestApp({ ensembleThreads: 2 });
     try {
-      const r = await two.app.inject({ method: 'POST', url: '/api/evaluations', payload: { scenario: raw } });
-      const job = await waitForJob(two.app, r.json().id);
-      expect(job.status).toBe('done');
-      const web = (await two.app.inject(`/api/results/${job.resultId}`)).json().document as ResultDocument;
+      const { doc: web } = await evaluateViaApi(two.app, raw);
       expect(web.uncertainty!.threads).toBe(2);
       // Reference: the same scenario evaluated on this thread (runEnsemble, one draw after the other).
       const single = evaluateScenario(parseScenarioText(JSON.stringify(raw)));
@@ -243,11 +246,8 @@ describe('strip patterns', () => {
   it('a scenario with mosaics shows their table and charts', async () => {
     const raw = JSON.parse(quickText);
     raw.mosaics = [{ name: 'Narrow strips', forestM: 300, gapM: 100, measure: false }];
-    const r = await t.app.inject({ method: 'POST', url: '/api/evaluations', payload: { scenario: raw } });
-    const job = await waitForJob(t.app, r.json().id);
-    expect(job.status).toBe('done');
-    const doc = (await t.app.inject(`/api/results/${job.resultId}`)).json().document as ResultDocument;
-    const html = (await t.app.inject(`/results/${job.resultId}`)).body;
+    const { resultId, doc } = await evaluateViaApi(t.app, raw);
+    const html = (await t.app.inject(`/results/${resultId}`)).body;
     expect(html).toContain('Strip patterns (thinning mosaics)');
     expect(html).toContain('Narrow strips: 300 m forest / 100 m open clearing');
     expect(html).toContain(doc.mosaics![0].sentence);
