@@ -4,7 +4,7 @@
  * uncertainty analysis): {@link analyseBaseline}, {@link analyseOption}, {@link criticalWidth}.
  */
 import type { PointScenario } from '../model/scenario.ts';
-import { segmentBreaks } from '../model/scenario.ts';
+import { optionPlacementProblems, segmentBreaks } from '../model/scenario.ts';
 import { ScenarioError, type Problem } from '../model/errors.ts';
 import { habitatCoefficients } from '../model/habitat.ts';
 import { equilibria } from '../model/growth.ts';
@@ -80,19 +80,11 @@ export interface BarrierSettings {
  * @throws ScenarioError naming the field, the value and the allowed range
  */
 export function checkOption(s: PointScenario, o: BarrierOptionSpec, path = 'barrier.options[?]'): void {
-  const problems: Problem[] = [];
   const breaks = segmentBreaks(s.transect);
-  const start = breaks[0];
-  const end = breaks[breaks.length - 1];
-  if (!(o.widthM > 0) || !Number.isFinite(o.widthM)) problems.push({ path: `${path}.widthM`, value: o.widthM, message: 'must be > 0 m' });
-  else {
-    const to = o.fromKm + o.widthM / 1000;
-    if (o.fromKm < start - 1e-6 || to > end + 1e-6) {
-      problems.push({ path: `${path}.fromKm`, value: o.fromKm, message: `the clearing [${o.fromKm}, ${to}] km must lie within the transect [${start}, ${end}] km` });
-    } else if (o.fromKm < s.infestation.toKm && to > s.infestation.fromKm) {
-      problems.push({ path: `${path}.fromKm`, value: o.fromKm, message: `the clearing [${o.fromKm}, ${to}] km overlaps the current infestation [${s.infestation.fromKm}, ${s.infestation.toKm}] km` });
-    }
-  }
+  const problems: Problem[] =
+    !(o.widthM > 0) || !Number.isFinite(o.widthM)
+      ? [{ path: `${path}.widthM`, value: o.widthM, message: 'must be > 0 m' }]
+      : optionPlacementProblems(o, path, [breaks[0], breaks[breaks.length - 1]], s.infestation);
   if (problems.length) throw new ScenarioError(problems);
 }
 

@@ -265,24 +265,31 @@ function crossChecks(s: z.infer<typeof ScenarioObjectSchema>): Problem[] {
   }
   const optionNames = new Set<string>();
   (s.barrier?.options ?? []).forEach((o, i) => {
-    const to = o.fromKm + o.widthM / 1000;
-    if (o.fromKm < start - POSITION_SLACK_KM || to > end + POSITION_SLACK_KM) {
-      problems.push({
-        path: `barrier.options[${i}].fromKm`,
-        value: o.fromKm,
-        message: `the clearing [${round(o.fromKm)}, ${round(to)}] km must lie ${within}`,
-      });
-    } else if (o.fromKm < inf.toKm && to > inf.fromKm) {
-      problems.push({
-        path: `barrier.options[${i}].fromKm`,
-        value: o.fromKm,
-        message: `the clearing [${round(o.fromKm)}, ${round(to)}] km overlaps the current infestation [${inf.fromKm}, ${inf.toKm}] km`,
-      });
-    }
+    problems.push(...optionPlacementProblems(o, `barrier.options[${i}]`, [start, end], inf));
     if (optionNames.has(o.name)) problems.push({ path: `barrier.options[${i}].name`, value: o.name, message: 'is used by another option; names must be unique' });
     optionNames.add(o.name);
   });
   return problems;
+}
+
+/**
+ * Where a clearing may go: within the transect [start, end] km and clear of the current infestation. Shared
+ * by the scenario schema and by callers that build options in code (widths are checked by the schema).
+ */
+export function optionPlacementProblems(
+  o: { fromKm: number; widthM: number },
+  path: string,
+  [start, end]: readonly [number, number],
+  inf: { fromKm: number; toKm: number },
+): Problem[] {
+  const to = o.fromKm + o.widthM / 1000;
+  if (o.fromKm < start - POSITION_SLACK_KM || to > end + POSITION_SLACK_KM) {
+    return [{ path: `${path}.fromKm`, value: o.fromKm, message: `the clearing [${round(o.fromKm)}, ${round(to)}] km must lie within the transect [${round(start)}, ${round(end)}] km` }];
+  }
+  if (o.fromKm < inf.toKm && to > inf.fromKm) {
+    return [{ path: `${path}.fromKm`, value: o.fromKm, message: `the clearing [${round(o.fromKm)}, ${round(to)}] km overlaps the current infestation [${inf.fromKm}, ${inf.toKm}] km` }];
+  }
+  return [];
 }
 
 function round(x: number): number {
