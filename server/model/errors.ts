@@ -85,6 +85,11 @@ export function boundedValue(v: unknown, depth = 0): unknown {
   return Object.fromEntries(Object.entries(v).map(([k, x]) => [k, boundedValue(x, depth + 1)]));
 }
 
+/** The value found at `path`, as a problem keeps it (cut to a readable depth). */
+function foundAt(root: unknown, path: readonly PropertyKey[]): unknown {
+  return boundedValue(valueAt(root, path));
+}
+
 /** One line per problem: `path = value: message`. */
 export function formatProblems(problems: Problem[]): string {
   return problems
@@ -102,7 +107,7 @@ export function problemsFromZod(issues: readonly z.core.$ZodIssue[], input: unkn
     const path = [...prefix, ...issue.path];
     if (issue.code === 'unrecognized_keys') {
       for (const key of issue.keys) {
-        out.push({ path: formatPath([...path, key]), value: boundedValue(valueAt(input, [...issue.path, key])), message: 'is not a known field (check the spelling)' });
+        out.push({ path: formatPath([...path, key]), value: foundAt(input, [...issue.path, key]), message: 'is not a known field (check the spelling)' });
       }
       continue;
     }
@@ -110,7 +115,7 @@ export function problemsFromZod(issues: readonly z.core.$ZodIssue[], input: unkn
       const branches = issue.errors;
       if (branches.length === 0) {
         // A discriminated union whose tag (e.g. growth form, habitat) matched no branch: zod puts the tag in the path.
-        const value = boundedValue(valueAt(input, issue.path));
+        const value = foundAt(input, issue.path);
         const options = 'options' in issue && Array.isArray(issue.options) ? (issue.options as unknown[]) : [];
         out.push({
           path: formatPath(path),
@@ -126,7 +131,7 @@ export function problemsFromZod(issues: readonly z.core.$ZodIssue[], input: unkn
       }
       const typeOnly = branches.every((b) => b.length === 1 && b[0].code === 'invalid_type' && b[0].path.length === 0);
       if (typeOnly) {
-        const value = boundedValue(valueAt(input, issue.path));
+        const value = foundAt(input, issue.path);
         out.push({
           path: formatPath(path),
           value,
@@ -142,7 +147,7 @@ export function problemsFromZod(issues: readonly z.core.$ZodIssue[], input: unkn
       out.push(...problemsFromZod(best, valueAt(input, issue.path), path));
       continue;
     }
-    const value = boundedValue(valueAt(input, issue.path));
+    const value = foundAt(input, issue.path);
     let message = issue.message;
     if (issue.code === 'invalid_type' && value === undefined) message = 'is required';
     if (issue.code === 'invalid_value' && 'values' in issue) {

@@ -7,10 +7,11 @@
 import type { OptionResult, ResultDocument, RunResult, VerdictKind } from '../analysis/result.ts';
 import { CAUTIONS, MODEL_LIMITS, allCautions } from '../analysis/cautions.ts';
 import { stemsRemoved } from '../analysis/layout.ts';
+import { valueAt } from '../model/errors.ts';
 import { FIELDS, type FieldSpec } from '../model/fields.ts';
-import { isDistribution, listUncertain, type Distribution } from '../model/quantity.ts';
+import { centralValue, isDistribution, listUncertain } from '../model/quantity.ts';
 import { pointScenario, segmentBreaks, type Scenario } from '../model/scenario.ts';
-import { fixed, integer, km, num, percent, probabilityEstimate, speed, years } from './format.ts';
+import { distributionText, fixed, integer, km, num, percent, probabilityEstimate, speed, years } from './format.ts';
 import { optionKey } from './charts/styles.ts';
 
 /** Short verdict labels for tables. */
@@ -161,31 +162,15 @@ export interface ParameterRow {
   source: string;
 }
 
-/** A value or distribution as text: "0.8", "uniform 0.5–1.5 (1 used)". */
+/** A value or distribution as text: "0.8", "uniform 0.5–1.5 (midpoint 1 used)". */
 export function quantityText(q: unknown): string {
   if (typeof q === 'number') return num(q, 4);
   if (isDistribution(q)) {
-    const d = q as Distribution;
-    switch (d.dist) {
-      case 'uniform':
-        return `uniform ${num(d.min, 4)}–${num(d.max, 4)} (midpoint ${num((d.min + d.max) / 2, 4)} used)`;
-      case 'triangular':
-        return `triangular ${num(d.min, 4)} / ${num(d.mode, 4)} / ${num(d.max, 4)} (mode used)`;
-      case 'lognormal':
-        return `log-normal, median ${num(d.median, 4)}, spread ×${num(d.spread, 3)} (median used)`;
-    }
+    const used = q.dist === 'uniform' ? `midpoint ${num(centralValue(q), 4)}` : q.dist === 'triangular' ? 'most likely value' : 'median';
+    return `${distributionText(q)} (${used} used)`;
   }
   if (typeof q === 'string') return q;
   return '—';
-}
-
-function getPath(root: unknown, path: (string | number)[]): unknown {
-  let cur: unknown = root;
-  for (const p of path) {
-    if (cur === null || typeof cur !== 'object') return undefined;
-    cur = (cur as Record<string | number, unknown>)[p];
-  }
-  return cur;
 }
 
 /**
@@ -197,7 +182,7 @@ export function sourceText(spec: FieldSpec | null, path: (string | number)[], va
   const typical = spec && spec.typical && !/^within|^programme/.test(spec.typical) ? `; typical ${spec.typical}` : '';
   if (ctx.illustrativePest && path[0] === 'pest') return 'illustrative (invented profile, not field data)';
   if (ctx.raw !== undefined) {
-    if (getPath(ctx.raw, path) !== undefined) return `entered${typical}`;
+    if (valueAt(ctx.raw, path) !== undefined) return `entered${typical}`;
     if (spec?.defaultValue !== undefined) return `default — ${spec.source}`;
     return 'default';
   }
@@ -210,7 +195,7 @@ export function parameterRows(scenario: Scenario, raw?: unknown, used?: RunResul
   const rows: ParameterRow[] = [];
   const ctx = { raw, illustrativePest: scenario.pest.illustrative };
   const add = (group: string, path: (string | number)[], spec: FieldSpec | null, label?: string, unit?: string) => {
-    const v = getPath(scenario, path);
+    const v = valueAt(scenario, path);
     if (v === undefined) return;
     rows.push({ group, label: label ?? spec?.label ?? String(path[path.length - 1]), value: quantityText(v), unit: unit ?? (spec?.unit || '–'), source: sourceText(spec, path, v, ctx) });
   };
@@ -275,7 +260,7 @@ export function parameterRows(scenario: Scenario, raw?: unknown, used?: RunResul
   const stepUsed = used ? ` (${num(used.stepYears)} used)` : '';
   if (numerics.stepYears === undefined) rows.push({ group: run, label: FIELDS.stepYears.label, value: `automatic${stepUsed}`, unit: FIELDS.stepYears.unit, source: auto });
   else add(run, ['numerics', 'stepYears'], FIELDS.stepYears);
-  rows.push({ group: run, label: 'Transect ends', value: `left ${scenario.transect.ends.left}, right ${scenario.transect.ends.right}`, unit: '–', source: getPath(raw, ['transect', 'ends']) !== undefined || raw === undefined ? 'entered or default (reflecting)' : 'default (reflecting: no insect leaves)' });
+  rows.push({ group: run, label: 'Transect ends', value: `left ${scenario.transect.ends.left}, right ${scenario.transect.ends.right}`, unit: '–', source: valueAt(raw, ['transect', 'ends']) !== undefined || raw === undefined ? 'entered or default (reflecting)' : 'default (reflecting: no insect leaves)' });
   return rows;
 }
 

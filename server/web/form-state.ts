@@ -10,7 +10,7 @@
  */
 import { FIELDS } from '../model/fields.ts';
 import { DISTRIBUTION_KINDS, isDistribution } from '../model/quantity.ts';
-import type { Problem } from '../model/errors.ts';
+import { valueAt, type Problem } from '../model/errors.ts';
 
 /** Input name → text as typed. */
 export type FormState = Record<string, string>;
@@ -360,15 +360,6 @@ export const EXTRA_INPUT = '_extra';
 
 type Obj = Record<string, unknown>;
 
-function getPath(root: unknown, path: string): unknown {
-  let cur = root;
-  for (const key of path.split('.')) {
-    if (cur === null || typeof cur !== 'object') return undefined;
-    cur = (cur as Obj)[key];
-  }
-  return cur;
-}
-
 function toText(v: unknown): string {
   if (v === undefined || v === null) return '';
   if (typeof v === 'number') return Number.isFinite(v) ? String(v) : '';
@@ -446,9 +437,9 @@ export function scenarioToForm(scenario: unknown): FormState {
   const state: FormState = {};
   for (const section of FORM_SECTIONS) {
     for (const def of section.fields) {
-      if (def.switchFor) state[def.path] = getPath(scenario, def.switchFor) === undefined ? '' : 'on';
+      if (def.switchFor) state[def.path] = valueAt(scenario, def.switchFor.split('.')) === undefined ? '' : 'on';
       else {
-        const v = getPath(scenario, def.path);
+        const v = valueAt(scenario, def.path.split('.'));
         if (v === undefined && def.prefill !== undefined) state[def.path] = def.prefill;
         else writeField(state, def.path, def, v);
       }
@@ -457,7 +448,7 @@ export function scenarioToForm(scenario: unknown): FormState {
   if (!state['pest.growth.mating']) state['pest.growth.mating'] = 'none';
   for (const key of ['transect.ends.left', 'transect.ends.right']) if (!state[key]) state[key] = 'reflecting';
   for (const group of Object.values(ROW_GROUPS)) {
-    const rows = getPath(scenario, group.prefix);
+    const rows = valueAt(scenario, group.prefix.split('.'));
     if (!Array.isArray(rows)) continue;
     rows.forEach((row, i) => {
       const defaults = group.newRow(i);
