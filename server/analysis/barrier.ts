@@ -154,13 +154,13 @@ export function analyseBaseline(s: PointScenario, options: ClearingSpec[], setti
   const res = chooseResolution(s, pieces);
   // Resolve with the option layouts too, so baseline and option runs share cells and step where possible.
   const resolution = options.length ? mergedResolution(s, options) : res;
-  const probe = { problem: discretise(s, pieces, resolution) };
-  const levels = establishedLevels(s, probe.problem);
-  const watches = options.map((o) => new BaselineWatch(s, probe.problem.grid, levels, barrierGeometry(s, o)));
+  const problem = discretise(s, pieces, resolution);
+  const levels = establishedLevels(s, problem);
+  const watches = options.map((o) => new BaselineWatch(s, problem.grid, levels, barrierGeometry(s, o)));
   const record = settings.record ?? true;
   // Without recorded profiles nothing after the last event matters: stop once every site is reached and
   // every clearing's far edge is passed (the summary then covers the run up to that year).
-  const arrived = new ArrivalTracker(probe.problem.grid, s.sites.map((x) => x.atKm), s.detectionLevel);
+  const arrived = new ArrivalTracker(problem.grid, s.sites.map((x) => x.atKm), s.detectionLevel);
   const stopper: Observer = {
     initialize: (st) => arrived.initialize(st),
     handle: (st) => {
@@ -172,6 +172,7 @@ export function analyseBaseline(s: PointScenario, options: ClearingSpec[], setti
     scenario: s,
     pieces,
     resolution,
+    problem,
     record,
     observers: [...watches, stopper],
     shouldCancel: settings.shouldCancel,
@@ -646,17 +647,17 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
   const crossing = baseline.crossings.get(optionKey(option))!;
   const resolution = mergedResolution(s, [option]);
   const pieces = buildLayout(s, option);
-  const probe = { problem: discretise(s, pieces, resolution) };
-  const levels = establishedLevels(s, probe.problem);
-  const watch = new CrossingWatch(probe.problem.grid, geometry, levels, false, crossingProbeKm(s), s.detectionLevel);
+  const problem = discretise(s, pieces, resolution);
+  const levels = establishedLevels(s, problem);
+  const watch = new CrossingWatch(problem.grid, geometry, levels, false, crossingProbeKm(s), s.detectionLevel);
   // Without recorded profiles the run stops as soon as pinning is verified on the whole transect (nothing
   // changes after that); with profiles it runs to the horizon so that charts cover it.
   let earlyJudgement: Judgement | null = null;
   // Whether the pest reaches the clearing in this run (a die-out past the horizon only counts as held if it did).
-  const approach = new ApproachWatch(s, probe.problem, geometry);
+  const approach = new ApproachWatch(s, problem, geometry);
   const observers: Observer[] = [watch, approach];
   if (!record) {
-    const p = probe.problem;
+    const p = problem;
     const { op, stepper } = makeEngineStepper(p);
     const judgeSolver = {
       scenario: s,
@@ -685,6 +686,7 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
     scenario: s,
     pieces,
     resolution,
+    problem,
     record,
     observers,
     shouldCancel: settings.shouldCancel,

@@ -244,7 +244,7 @@ export function evaluatePoint(s: PointScenario, settings: { criticalWidth?: bool
         // Stop once the outcome is known: crossing and all arrivals, or (held) the sites on the near side.
         const done = () =>
           pinned ? siteArrivals.arrivalYears.every((a, k) => beyond[k] || a !== null) : watch.crossedYears !== null && siteArrivals.allArrived();
-        const out = runLayout({ scenario: s, pieces, resolution, record: false, shouldCancel, observers: [watch, siteArrivals, { handle: done }] });
+        const out = runLayout({ scenario: s, pieces, resolution, problem, record: false, shouldCancel, observers: [watch, siteArrivals, { handle: done }] });
         crossingYears = pinned ? null : watch.crossedYears;
         arrivals = out.arrivals.arrivalYears.map((a, k) => (pinned && beyond[k] ? null : a));
         if (crossingYears !== null) pinned = false;

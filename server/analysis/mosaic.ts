@@ -125,11 +125,12 @@ export function measureMosaicSpeed(s: PointScenario, m: MosaicSpec, opts: { leve
   const probesKm = Array.from({ length: periods }, (_, k) => k * L + 0.5 * lf);
   const resolution = chooseResolution(sm, pieces);
   // Probes read cell values (mid-forest cells); the recorder stops the run once the last probe is passed.
-  const grid = discretise(sm, pieces, resolution).grid;
+  const problem = discretise(sm, pieces, resolution);
+  const grid = problem.grid;
   const cells = probesKm.map((x) => cellIndexAt(grid, x));
   const lastProbe = Math.max(0, periods - 3);
   const recorder = new PassageRecorder(cells.slice(0, lastProbe + 1), opts.level ?? PASSAGE_LEVEL);
-  runLayout({ scenario: sm, pieces, resolution, record: false, observers: [recorder], shouldCancel: opts.shouldCancel });
+  runLayout({ scenario: sm, pieces, resolution, problem, record: false, observers: [recorder], shouldCancel: opts.shouldCancel });
   const times = recorder.times;
   const pulled = !strongAllee(s.pest.growth, h) && opts.decayRate != null && opts.decayRate > 0;
   const t: number[] = [];

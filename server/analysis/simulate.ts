@@ -15,6 +15,8 @@ export interface RunRequest {
   tEnd?: number;
   /** Override of the automatic resolution. */
   resolution?: Resolution;
+  /** The layout already discretised with these pieces and resolution (callers that built observers on its grid); discretised here otherwise. */
+  problem?: TransectProblem;
   /** Extra observers (e.g. stop conditions of the barrier analysis). */
   observers?: Observer[];
   /** Record profiles and the space–time map (default true; ensembles switch it off). */
@@ -71,7 +73,7 @@ export function makeEngineStepper(problem: TransectProblem): { op: DiffusionOper
 /** Runs one layout of a scenario from the current infestation. The engine call shared by every caller. */
 export function runLayout(req: RunRequest): RunOutput {
   const s = req.scenario;
-  const problem = discretise(s, req.pieces, req.resolution);
+  const problem = req.problem ?? discretise(s, req.pieces, req.resolution);
   const tEnd = req.tEnd ?? s.horizonYears;
   const { grid } = problem;
   const { stepper } = makeEngineStepper(problem);
