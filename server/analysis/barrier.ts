@@ -114,6 +114,11 @@ export function snapshotDistanceKm(s: PointScenario): number {
   return 3 * movementLengthKm(s);
 }
 
+/** How far behind the clearing (or the front) the windows of the width–delay runs and the run past the horizon reach [km]. */
+function windowBehindKm(s: PointScenario): number {
+  return snapshotDistanceKm(s) + 10 * movementLengthKm(s);
+}
+
 /** Records the baseline crossing time and the start snapshot for one clearing. */
 class BaselineWatch implements Observer {
   readonly crossing: CrossingWatch;
@@ -563,7 +568,7 @@ function widthDelayCurve(
   if (!crossing.snapshot) return [];
   const geometry = barrierGeometry(s, option);
   const breaks = segmentBreaks(s.transect);
-  const behind = snapshotDistanceKm(s) + 10 * movementLengthKm(s);
+  const behind = windowBehindKm(s);
   const beyondSites = s.sites.map((site) => isBeyond(geometry, site.atKm));
   const rows: WidthDelayRow[] = [];
   for (const widthM of widthsM) {
@@ -705,7 +710,7 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
     const breaks = segmentBreaks(s.transect);
     // The window reaches back behind the front wherever it is: a front still far from the clearing at the
     // horizon must be in the window to be projected (an empty window would look settled).
-    const behind = snapshotDistanceKm(s) + 10 * movementLengthKm(s);
+    const behind = windowBehindKm(s);
     const last = out.front.times.length - 1;
     const frontKm = geometry.direction > 0 ? out.front.rightKm[last] : out.front.leftKm[last];
     const back = Number.isFinite(frontKm) ? geometry.direction * Math.min(geometry.direction * geometry.nearKm, geometry.direction * frontKm) : geometry.nearKm;
