@@ -11,14 +11,25 @@ if (!Number.isInteger(port) || port < 0 || port > 65535) {
   console.error(`PORT must be a whole number from 0 to 65535 (found ${JSON.stringify(process.env.PORT)})`);
   process.exit(1);
 }
-const positive = (v: string | undefined) => (v !== undefined && Number(v) > 0 ? Number(v) : undefined);
+/** A setting from the environment: undefined when unset; a clear message and exit 1 when out of range. */
+function setting(name: string, wholeNumber: boolean): number | undefined {
+  const v = process.env[name];
+  if (v === undefined || v === '') return undefined;
+  const x = Number(v);
+  if (!(x > 0) || !Number.isFinite(x) || (wholeNumber && !Number.isInteger(x))) {
+    console.error(`${name} must be ${wholeNumber ? 'a whole number ≥ 1' : 'a number > 0'} (found ${JSON.stringify(v)})`);
+    process.exit(1);
+  }
+  return x;
+}
+const wallSeconds = setting('WALL_SECONDS', false);
 
 const app = await buildApp({
   logger: true,
   dataDir: process.env.DATA_DIR ?? 'data',
-  workerThreads: positive(process.env.WORKERS),
-  ensembleThreads: positive(process.env.ENSEMBLE_THREADS),
-  limits: { ...(positive(process.env.WALL_SECONDS) ? { wallSeconds: positive(process.env.WALL_SECONDS) } : {}) },
+  workerThreads: setting('WORKERS', true),
+  ensembleThreads: setting('ENSEMBLE_THREADS', true),
+  limits: wallSeconds !== undefined ? { wallSeconds } : {},
 });
 try {
   await app.listen({ host, port });

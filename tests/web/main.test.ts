@@ -51,4 +51,24 @@ describe('server/main.ts', () => {
     child.kill('SIGTERM');
     expect(await exit).toBe(0);
   });
+
+  it('a thread or time setting out of range stops the start with a message naming it (regression: ignored silently)', async () => {
+    for (const [name, value, rule] of [
+      ['ENSEMBLE_THREADS', 'abc', 'a whole number ≥ 1'],
+      ['WORKERS', '0', 'a whole number ≥ 1'],
+      ['WALL_SECONDS', '-5', 'a number > 0'],
+    ] as const) {
+      const p = spawn(process.execPath, ['--import', 'tsx', 'server/main.ts'], {
+        cwd: repo,
+        env: { ...process.env, HOST: '127.0.0.1', PORT: '0', DATA_DIR: join(root, 'data-bad'), [name]: value },
+        stdio: ['ignore', 'pipe', 'pipe'],
+      });
+      let err = '';
+      p.stderr!.on('data', (c: Buffer) => (err += c.toString()));
+      const code = await new Promise<number | null>((resolve) => p.on('exit', resolve));
+      expect(code, name).toBe(1);
+      expect(err).toContain(`${name} must be ${rule} (found "${value}")`);
+    }
+    expect(existsSync(join(root, 'data-bad'))).toBe(false);
+  });
 });
