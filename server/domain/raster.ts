@@ -36,5 +36,5 @@ export interface RasterLandscape extends RasterGeometry {
   /** Protected sites: name and the cells they cover (a point is one cell). */
   sites: { name: string; cells: Int32Array }[];
   /** Barrier options: id, label and the share of each cell inside the band (0–1). */
-  bands: { id: string; label: string; cover: Float32Array; cover_kind: 'clearing' | 'nonhost-planting'; areaM2: number }[];
+  bands: { id: string; label: string; cover: Float32Array; treatment: 'clearing' | 'nonhost-planting'; areaM2: number }[];
 }
