@@ -41,7 +41,7 @@ export function mosaicPatches(s: PointScenario, m: MosaicSpec): Patch[] {
   ];
 }
 
-/** Density whose passage at mid-forest probes times the front (5 % of capacity; SCIENCE.md §9.3). */
+/** Density whose passage at mid-forest probes times the front (5 % of capacity; methods note (server/numerics/README.md) §9.3). */
 export const PASSAGE_LEVEL = 0.05;
 
 /** Passage times of a density level at chosen positions. */
@@ -91,7 +91,7 @@ export interface MeasuredMosaicSpeed {
  * Speed measured in a simulated pattern of `periods` periods, starting from the first forest strip fully
  * infested: passage times of the detection level at mid-forest probes, straight-line fit over the later
  * half. For growth without an Allee effect (pulled fronts) the fit includes the Bramson term −(3/(2s*)) ln t
- * (Bramson 1983; periodic media: Hamel, Nolen, Roquejoffre & Ryzhik 2013), SCIENCE.md §9.3.
+ * (Bramson 1983; periodic media: Hamel, Nolen, Roquejoffre & Ryzhik 2013), methods note §9.3.
  */
 export function measureMosaicSpeed(s: PointScenario, m: MosaicSpec, opts: { level?: number; periods?: number; decayRate?: number | null; guessKmPerYear?: number | null; shouldCancel?: () => boolean } = {}): MeasuredMosaicSpeed {
   const periods = opts.periods ?? 100;
