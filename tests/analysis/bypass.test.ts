@@ -31,11 +31,11 @@ function trackSynthetic(
     for (let i = 0; i < grid.nCells; i++) u[i] = infested(t, grid.centersKm[i]) ? 1 : 0;
   };
   fill(0);
-  tracker.initialize({ t: 0, u, h: u, stepIndex: 0 });
+  tracker.initialize({ t: 0, tPrevious: 0, u, h: u });
   const n = Math.round(tEnd / dt);
   for (let k = 1; k <= n; k++) {
     fill(k * dt);
-    tracker.handle({ t: k * dt, u, h: u, stepIndex: k });
+    tracker.handle({ t: k * dt, tPrevious: (k - 1) * dt, u, h: u });
   }
   return tracker.total();
 }
