@@ -5,7 +5,7 @@
  */
 import { parseScenario, pointScenario } from '../server/model/scenario.ts';
 import { runLayout } from '../server/analysis/simulate.ts';
-import { buildLayout } from '../server/analysis/layout.ts';
+import { buildLayout } from '../server/problem/layout.ts';
 import { evaluateScenario } from '../server/analysis/evaluate.ts';
 import { transect100km } from './problems.ts';
 

@@ -5,7 +5,7 @@
 import { alleeThreshold, equilibria, lowDensityRate, perCapitaRate, type PointGrowth } from '../model/growth.ts';
 import type { CellReaction } from '../numerics/steady.ts';
 import { potentialZero } from '../numerics/steady-blocking.ts';
-import type { TransectProblem } from './discretise.ts';
+import type { TransectProblem } from '../problem/discretise.ts';
 
 /** 10-point Gauss–Legendre nodes and weights on [−1, 1] (Abramowitz & Stegun 1964, Table 25.4). */
 const GL_X = [

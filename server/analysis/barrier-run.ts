@@ -9,9 +9,9 @@ import { solveSteadyState, linearStability } from '../numerics/steady.ts';
 import { cellIndexAt, type Grid } from '../numerics/grid.ts';
 import { alleeThreshold, equilibria, lowDensityRate } from '../model/growth.ts';
 import type { PointScenario } from '../model/scenario.ts';
-import { segmentBreaks } from '../model/scenario.ts';
-import { discretise, growthRateScale, type Resolution, type TransectProblem } from './discretise.ts';
-import type { ClearingSpec, Piece } from './layout.ts';
+import { asProblem, deriveProblem, type Problem } from '../problem/problem.ts';
+import { discretise, growthRateScale, type Resolution, type TransectProblem } from '../problem/discretise.ts';
+import type { ClearingSpec, Piece } from '../problem/layout.ts';
 import { cellReaction, establishedLevel, potentialThreshold, smallGroupsFail, strongAllee } from './barrier-growth.ts';
 import { ArrivalTracker } from './trackers.ts';
 import { makeEngineStepper } from './simulate.ts';
@@ -82,25 +82,27 @@ export function slicePieces(pieces: Piece[], lo: number, hi: number): Piece[] {
  * and full runs use the same cells and step; `horizonYears` is only used for the step-count limit.
  */
 export function makeWindowSolver(
-  s: PointScenario,
+  base: PointScenario | Problem,
   pieces: Piece[],
   windowKm: [number, number],
   resolution: Resolution,
   horizonYears: number,
 ): WindowSolver {
-  const breaks = segmentBreaks(s.transect);
-  const lo = Math.max(windowKm[0], breaks[0]);
-  const hi = Math.min(windowKm[1], breaks[breaks.length - 1]);
+  const p = asProblem(base);
+  const [start, end] = p.extentKm;
+  const lo = Math.max(windowKm[0], start);
+  const hi = Math.min(windowKm[1], end);
   const sliced = slicePieces(pieces, lo, hi);
   const ends = {
-    left: lo <= breaks[0] + SAME_KM ? s.transect.ends.left : ('reflecting' as const),
-    right: hi >= breaks[breaks.length - 1] - SAME_KM ? s.transect.ends.right : ('reflecting' as const),
+    left: lo <= start + SAME_KM ? p.ends.left : ('reflecting' as const),
+    right: hi >= end - SAME_KM ? p.ends.right : ('reflecting' as const),
   };
-  const sw: PointScenario = { ...s, transect: { ...s.transect, ends }, horizonYears };
-  const problem = discretise(sw, sliced, resolution);
+  // The window is a variant of the problem: its own ends and run length, the same everything else.
+  const windowProblem = deriveProblem(p, { extentKm: [lo, hi], ends, horizonYears });
+  const problem = discretise(windowProblem, sliced, resolution);
   const { op, stepper } = makeEngineStepper(problem);
-  const establishedAtCells = establishedLevels(s, problem);
-  return { scenario: s, problem, op, stepper, windowKm: [lo, hi], establishedAtCells };
+  const establishedAtCells = establishedLevels(p.scenario, problem);
+  return { scenario: p.scenario, problem, op, stepper, windowKm: [lo, hi], establishedAtCells };
 }
 
 /**

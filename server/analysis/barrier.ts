@@ -5,15 +5,17 @@
  */
 import type { PointScenario } from '../model/scenario.ts';
 import { optionPlacementProblems, segmentBreaks } from '../model/scenario.ts';
-import { ScenarioError, type Problem } from '../model/errors.ts';
+import { ScenarioError, type Problem as FieldProblem } from '../model/errors.ts';
 import { habitatCoefficients } from '../model/habitat.ts';
 import { equilibria } from '../model/growth.ts';
 import type { Grid } from '../numerics/grid.ts';
 import { cellIndexAt } from '../numerics/grid.ts';
 import { Schedule, type FieldState, type Observer } from '../numerics/time-loop.ts';
 import { criticalGapWidth } from '../numerics/steady-blocking.ts';
-import { chooseResolution, discretise, growthRateScale, type Resolution } from './discretise.ts';
-import { buildLayout, stemsRemoved, type ClearingSpec } from './layout.ts';
+import { chooseResolution, discretise, growthRateScale, type Resolution } from '../problem/discretise.ts';
+import { stemsRemoved, type ClearingSpec } from '../problem/layout.ts';
+import { asProblem, layoutOf, type Problem } from '../problem/problem.ts';
+import { mergedResolution as mergedResolutionOf } from '../problem/resolution.ts';
 import { makeEngineStepper, runLayout, summariseRun, type RunOutput } from './simulate.ts';
 import { ArrivalTracker } from './trackers.ts';
 import { spreadRate } from './speed.ts';
@@ -81,7 +83,7 @@ export interface BarrierSettings {
  */
 export function checkOption(s: PointScenario, o: BarrierOptionSpec, path = 'barrier.options[?]'): void {
   const breaks = segmentBreaks(s.transect);
-  const problems: Problem[] =
+  const problems: FieldProblem[] =
     !(o.widthM > 0) || !Number.isFinite(o.widthM)
       ? [{ path: `${path}.widthM`, value: o.widthM, message: 'must be > 0 m' }]
       : optionPlacementProblems(o, path, [breaks[0], breaks[breaks.length - 1]], s.infestation);
@@ -154,12 +156,13 @@ class BaselineWatch implements Observer {
  * The baseline run (the stand as it stands), watching each given clearing for the crossing time and the
  * start snapshot used by window runs.
  */
-export function analyseBaseline(s: PointScenario, options: ClearingSpec[], settings: Pick<BarrierSettings, 'record' | 'shouldCancel' | 'onProgress'> = {}): BaselineAnalysis {
-  const pieces = buildLayout(s);
-  const res = chooseResolution(s, pieces);
+export function analyseBaseline(sp: PointScenario | Problem, options: ClearingSpec[], settings: Pick<BarrierSettings, 'record' | 'shouldCancel' | 'onProgress'> = {}): BaselineAnalysis {
+  const p = asProblem(sp);
+  const s = p.scenario;
+  const pieces = layoutOf(p);
   // Resolve with the option layouts too, so baseline and option runs share cells and step where possible.
-  const resolution = options.length ? mergedResolution(s, options) : res;
-  const problem = discretise(s, pieces, resolution);
+  const resolution = options.length ? mergedResolutionOf(p, options) : chooseResolution(p, pieces);
+  const problem = discretise(p, pieces, resolution);
   const levels = establishedLevels(s, problem);
   const watches = options.map((o) => new BaselineWatch(s, problem.grid, levels, barrierGeometry(s, o)));
   const record = settings.record ?? true;
@@ -174,7 +177,7 @@ export function analyseBaseline(s: PointScenario, options: ClearingSpec[], setti
     },
   };
   const out = runLayout({
-    scenario: s,
+    scenario: p,
     pieces,
     resolution,
     problem,
@@ -185,17 +188,12 @@ export function analyseBaseline(s: PointScenario, options: ClearingSpec[], setti
   });
   const crossings = new Map<string, BaselineCrossing>();
   options.forEach((o, k) => crossings.set(optionKey(o), { crossedYears: watches[k].crossing.crossedYears, snapshot: watches[k].snapshot }));
-  return { out, summary: summariseRun(out, s), crossings };
+  return { out, summary: summariseRun(out, p), crossings };
 }
 
 /** Cell size and step that suit the baseline and every option layout (the finest of their automatic choices). */
-export function mergedResolution(s: PointScenario, options: ClearingSpec[]): Resolution {
-  let r = chooseResolution(s, buildLayout(s));
-  for (const o of options) {
-    const q = chooseResolution(s, buildLayout(s, o));
-    r = { ...r, cellKm: Math.min(r.cellKm, q.cellKm), stepYears: Math.min(r.stepYears, q.stepYears) };
-  }
-  return r;
+export function mergedResolution(s: PointScenario | Problem, options: ClearingSpec[]): Resolution {
+  return mergedResolutionOf(asProblem(s), options);
 }
 
 // ---------------------------------------------------------------------------------------------------
@@ -229,6 +227,7 @@ export interface CriticalWidthOutcome extends CriticalWidth {
 }
 
 interface WidthProbeContext {
+  p: Problem;
   s: PointScenario;
   option: ClearingSpec;
   geometry: BarrierGeometry;
@@ -247,8 +246,9 @@ function clearingOfWidth(c: WidthProbeContext, widthM: number): ClearingSpec {
 }
 
 /** Largest width whose clearing still leaves host forest beyond it inside the transect [m]. */
-function maxUsableWidthM(s: PointScenario, g: BarrierGeometry): number {
-  const pieces = buildLayout(s);
+function maxUsableWidthM(p: Problem, g: BarrierGeometry): number {
+  const s = p.scenario;
+  const pieces = layoutOf(p);
   let lastHost = g.nearKm;
   for (const p of pieces) {
     if (p.habitat !== 'host-forest' || !(p.stocking > 0)) continue;
@@ -266,13 +266,13 @@ function maxUsableWidthM(s: PointScenario, g: BarrierGeometry): number {
 function classifyWidth(c: WidthProbeContext, widthM: number, stepFactor = 1, windowFactor = 1): WidthRun {
   const clearing = widthM > 0 ? clearingOfWidth(c, widthM) : null;
   const g: BarrierGeometry = clearing ? barrierGeometry(c.s, clearing) : { ...c.geometry, farKm: c.geometry.nearKm };
-  const pieces = clearing ? buildLayout(c.s, clearing) : buildLayout(c.s);
+  const pieces = layoutOf(c.p, clearing ?? undefined);
   const d = g.direction;
   const behind = c.behindKm * windowFactor;
   const ahead = c.aheadKm * windowFactor;
   const ends = [g.nearKm - d * behind, g.farKm + d * ahead];
   const resolution = { ...c.resolution, stepYears: c.resolution.stepYears * stepFactor };
-  const solver = makeWindowSolver(c.s, pieces, [Math.min(...ends), Math.max(...ends)], resolution, c.budgetYears);
+  const solver = makeWindowSolver(c.p, pieces, [Math.min(...ends), Math.max(...ends)], resolution, c.budgetYears);
   const r = runWindow(solver, {
     start: c.snapshot,
     tEnd: c.snapshot.t + c.budgetYears,
@@ -292,9 +292,11 @@ function classifyWidth(c: WidthProbeContext, widthM: number, stepFactor = 1, win
 }
 
 /** Phase-plane (first-integral) critical width for the option's site [m], or null with the reason. */
-export function phasePlaneWidth(s: PointScenario, option: ClearingSpec): { widthM: number | null; note: string; assumesIntactHosts?: boolean } {
+export function phasePlaneWidth(sp: PointScenario | Problem, option: ClearingSpec): { widthM: number | null; note: string; assumesIntactHosts?: boolean } {
+  const p = asProblem(sp);
+  const s = p.scenario;
   const g = barrierGeometry(s, option);
-  const pieces = buildLayout(s);
+  const pieces = layoutOf(p);
   const at = (x: number) => pieces.find((p) => p.fromKm <= x && x < p.toKm) ?? pieces[pieces.length - 1];
   const before = at(g.nearKm - g.direction * 1e-6);
   const after = at(g.farKm + g.direction * 1e-6);
@@ -326,10 +328,10 @@ export function phasePlaneWidth(s: PointScenario, option: ClearingSpec): { width
 }
 
 /** The baseline crossing and snapshot for one option, from a given baseline or a fresh (unrecorded) run. */
-function baselineFor(s: PointScenario, option: ClearingSpec, settings: BarrierSettings): BaselineCrossing {
+function baselineFor(p: Problem, option: ClearingSpec, settings: BarrierSettings): BaselineCrossing {
   const known = settings.baseline?.crossings.get(optionKey(option));
   if (known) return known;
-  return analyseBaseline(s, [option], { record: false, shouldCancel: settings.shouldCancel }).crossings.get(optionKey(option))!;
+  return analyseBaseline(p, [option], { record: false, shouldCancel: settings.shouldCancel }).crossings.get(optionKey(option))!;
 }
 
 /**
@@ -339,12 +341,14 @@ function baselineFor(s: PointScenario, option: ClearingSpec, settings: BarrierSe
  * lingers counts as not pinned. The lower end is repeated with the step halved, and both ends on a
  * window twice as large. For growth without a strong Allee effect no width pins a front.
  */
-export function criticalWidth(s: PointScenario, option: BarrierOptionSpec | ClearingSpec, settings: BarrierSettings = {}): CriticalWidthOutcome {
+export function criticalWidth(sp: PointScenario | Problem, option: BarrierOptionSpec | ClearingSpec, settings: BarrierSettings = {}): CriticalWidthOutcome {
+  const p = asProblem(sp);
+  const s = p.scenario;
   checkOption(s, { name: 'option', ...option });
   const toleranceM = settings.toleranceM ?? s.barrier?.toleranceM ?? DEFAULT_TOLERANCE_M;
   const geometry = barrierGeometry(s, option);
   const pp: ReturnType<typeof phasePlaneWidth> =
-    settings.phasePlane === false ? { widthM: null, note: 'phase-plane value not computed (switched off)' } : phasePlaneWidth(s, option);
+    settings.phasePlane === false ? { widthM: null, note: 'phase-plane value not computed (switched off)' } : phasePlaneWidth(p, option);
   const base: CriticalWidthOutcome = {
     applicable: false,
     note: '',
@@ -361,7 +365,7 @@ export function criticalWidth(s: PointScenario, option: BarrierOptionSpec | Clea
     windowCheck: null,
     windowKm: null,
   };
-  const pieces = buildLayout(s);
+  const pieces = layoutOf(p);
   // Host forest with some stretch beyond the clearing (its far end lies beyond, whatever its midpoint).
   const beyond = pieces.filter((p) => p.habitat === 'host-forest' && p.stocking > 0 && isBeyond(geometry, geometry.direction > 0 ? p.toKm : p.fromKm));
   const hBeyond = Math.max(0, ...beyond.map((p) => p.stocking));
@@ -372,7 +376,7 @@ export function criticalWidth(s: PointScenario, option: BarrierOptionSpec | Clea
     };
   }
   if (settings.criticalWidth === false) return { ...base, applicable: true, note: 'critical width not computed (switched off)' };
-  const crossing = baselineFor(s, option, settings);
+  const crossing = baselineFor(p, option, settings);
   if (!crossing.snapshot) {
     return {
       ...base,
@@ -380,9 +384,10 @@ export function criticalWidth(s: PointScenario, option: BarrierOptionSpec | Clea
       note: 'The front does not come near the clearing within the horizon in the baseline run, so the bisection has no arriving front to test; see the phase-plane value.',
     };
   }
-  const resolution = mergedResolution(s, [option]);
+  const resolution = mergedResolutionOf(p, [option]);
   const ell = movementLengthKm(s);
   const c: WidthProbeContext = {
+    p,
     s,
     option,
     geometry,
@@ -394,7 +399,7 @@ export function criticalWidth(s: PointScenario, option: BarrierOptionSpec | Clea
     aheadKm: windowAheadKm(s),
     shouldCancel: settings.shouldCancel,
   };
-  const maxW = maxUsableWidthM(s, geometry);
+  const maxW = maxUsableWidthM(p, geometry);
   const history: WidthRun[] = [];
   const classify = (w: number, stepFactor = 1, windowFactor = 1) => {
     const r = classifyWidth(c, w, stepFactor, windowFactor);
@@ -557,7 +562,7 @@ function changeThreshold(stepYears: number): number {
 
 /** Width–delay curve: runs from the baseline snapshot on the stretch from behind the clearing to the transect end. */
 function widthDelayCurve(
-  s: PointScenario,
+  p: Problem,
   option: ClearingSpec,
   crossing: BaselineCrossing,
   baselineArrivals: (number | null)[],
@@ -566,6 +571,7 @@ function widthDelayCurve(
   shouldCancel?: () => boolean,
 ): WidthDelayRow[] {
   if (!crossing.snapshot) return [];
+  const s = p.scenario;
   const geometry = barrierGeometry(s, option);
   const breaks = segmentBreaks(s.transect);
   const behind = windowBehindKm(s);
@@ -585,7 +591,7 @@ function widthDelayCurve(
       g.direction > 0
         ? [g.nearKm - behind, beyondKm.length ? Math.max(Math.max(...beyondKm) + margin, g.farKm + ahead) : breaks[breaks.length - 1]]
         : [beyondKm.length ? Math.min(Math.min(...beyondKm) - margin, g.farKm - ahead) : breaks[0], g.nearKm + behind];
-    const solver = makeWindowSolver(s, buildLayout(s, clearing), window, resolution, s.horizonYears);
+    const solver = makeWindowSolver(p, layoutOf(p, clearing), window, resolution, s.horizonYears);
     const sitesKm = s.sites.map((x) => x.atKm);
     const r = runWindow(solver, {
       start: crossing.snapshot,
@@ -644,15 +650,17 @@ function delayPer100m(rows: WidthDelayRow[], siteIndex: number): number | null {
  * @param option - the clearing (position, width, cover) and its name
  * @throws ScenarioError when the option lies outside the transect, has width ≤ 0 or overlaps the infestation
  */
-export function analyseOption(s: PointScenario, option: BarrierOptionSpec, settings: BarrierSettings = {}): OptionAnalysis {
+export function analyseOption(sp: PointScenario | Problem, option: BarrierOptionSpec, settings: BarrierSettings = {}): OptionAnalysis {
+  const p = asProblem(sp);
+  const s = p.scenario;
   checkOption(s, option);
   const record = settings.record ?? true;
   const geometry = barrierGeometry(s, option);
-  const baseline = settings.baseline?.crossings.has(optionKey(option)) ? settings.baseline : analyseBaseline(s, [option], { record, shouldCancel: settings.shouldCancel });
+  const baseline = settings.baseline?.crossings.has(optionKey(option)) ? settings.baseline : analyseBaseline(p, [option], { record, shouldCancel: settings.shouldCancel });
   const crossing = baseline.crossings.get(optionKey(option))!;
-  const resolution = mergedResolution(s, [option]);
-  const pieces = buildLayout(s, option);
-  const problem = discretise(s, pieces, resolution);
+  const resolution = mergedResolutionOf(p, [option]);
+  const pieces = layoutOf(p, option);
+  const problem = discretise(p, pieces, resolution);
   const levels = establishedLevels(s, problem);
   const watch = new CrossingWatch(problem.grid, geometry, levels, false, crossingProbeKm(s), s.detectionLevel);
   // Without recorded profiles the run stops as soon as pinning is verified on the whole transect (nothing
@@ -689,7 +697,7 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
     });
   }
   const out = runLayout({
-    scenario: s,
+    scenario: p,
     pieces,
     resolution,
     problem,
@@ -698,7 +706,7 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
     shouldCancel: settings.shouldCancel,
     onProgress: (f) => settings.onProgress?.(0.3 * f, `option ${option.name}`),
   });
-  const run = summariseRun(out, s);
+  const run = summariseRun(out, p);
   const baseArr = baseline.summary.arrivals.map((a) => a.arrivalYears);
   const optArr = run.arrivals.map((a) => a.arrivalYears);
   const beyondSites = s.sites.map((site) => isBeyond(geometry, site.atKm));
@@ -717,7 +725,7 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
     const back = Number.isFinite(frontKm) ? geometry.direction * Math.min(geometry.direction * geometry.nearKm, geometry.direction * frontKm) : geometry.nearKm;
     const window: [number, number] = geometry.direction > 0 ? [back - behind, breaks[breaks.length - 1]] : [breaks[0], back + behind];
     const extension = settings.extensionYears ?? 3 * s.horizonYears;
-    const solver = makeWindowSolver(s, pieces, window, resolution, extension);
+    const solver = makeWindowSolver(p, pieces, window, resolution, extension);
     projected = runWindow(solver, {
       start: { grid: out.problem.grid, u: out.u, h: out.h, t: out.solver.t },
       tEnd: out.solver.t + extension,
@@ -734,20 +742,20 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
   const pinned = judgement?.verified === true;
   settings.onProgress?.(0.4, `critical width, option ${option.name}`);
 
-  const critical = criticalWidth(s, option, { ...settings, baseline });
+  const critical = criticalWidth(p, option, { ...settings, baseline });
   const bracket = critical.bracketM;
   const marginal = bracket !== null && option.widthM >= bracket[0] - critical.toleranceM && option.widthM <= bracket[1] + critical.toleranceM;
   critical.marginal = marginal;
 
   settings.onProgress?.(0.8, `width–delay curve, option ${option.name}`);
   const widths = settings.curveWidthsM ?? s.barrier?.curveWidthsM ?? autoCurveWidths(option.widthM, bracket);
-  const curve = settings.widthCurve === false ? [] : widthDelayCurve(s, option, crossing, baseArr, widths, resolution, settings.shouldCancel);
+  const curve = settings.widthCurve === false ? [] : widthDelayCurve(p, option, crossing, baseArr, widths, resolution, settings.shouldCancel);
   const firstBeyond = s.sites.map((x, k) => ({ x, k })).filter(({ k }) => beyondSites[k]).sort((a, b) => geometry.direction * (a.x.atKm - b.x.atKm))[0];
   if (!critical.applicable && firstBeyond) critical.delayPer100mYears = delayPer100m(curve, firstBeyond.k);
 
   // A pest whose front cannot advance through the stand before the clearing never meets it: nothing to hold.
   const nearX = geometry.nearKm - geometry.direction * 1e-6;
-  const nearPiece = buildLayout(s).find((p) => p.fromKm <= nearX && nearX < p.toKm);
+  const nearPiece = layoutOf(p).find((p) => p.fromKm <= nearX && nearX < p.toKm);
   const cannotAdvance = crossing.crossedYears === null && nearPiece?.habitat === 'host-forest' && frontCannotAdvance(s.pest.growth, nearPiece.stocking);
   // A front that the layout already holds before this point (verified without the clearing) is not held by it.
   const heldWithout = crossing.crossedYears === null && critical.withoutClearing === 'pinned';

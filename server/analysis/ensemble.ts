@@ -8,13 +8,14 @@
  * thread or on a worker pool of any size (see ensemble-pool.ts).
  */
 import { FIELDS, inRange, type FieldSpec } from '../model/fields.ts';
-import { habitatCoefficients } from '../model/habitat.ts';
-import { centralValue, listUncertain, quantile, resolveQuantities, type Distribution } from '../model/quantity.ts';
+import { centralValue, listUncertain, quantile, type Distribution } from '../model/quantity.ts';
 import { pointScenario, type PointScenario, type Scenario } from '../model/scenario.ts';
 import { formatPath } from '../model/errors.ts';
 import { latinHypercube, makeRng } from '../numerics/rng.ts';
-import { buildLayout } from './layout.ts';
-import { chooseResolution, discretise } from './discretise.ts';
+import { discretise } from '../problem/discretise.ts';
+import { asProblem, layoutOf, type Problem } from '../problem/problem.ts';
+import { coarsenedProblem } from '../problem/resolution.ts';
+import { resolveDraw } from '../problem/resolve.ts';
 import { runLayout } from './simulate.ts';
 import { DEFAULT_TOLERANCE_M, analyseBaseline, analyseOption, criticalWidth, mergedResolution } from './barrier.ts';
 import { CrossingWatch, barrierGeometry as crossingGeometry, crossingProbeKm, establishedLevels, isBeyond } from './barrier-run.ts';
@@ -118,37 +119,19 @@ export function drawValues(plan: EnsemblePlan, i: number): { values: number[]; c
   return { values, clipped };
 }
 
-/** The point scenario of draw i. */
-export function drawScenario(scenario: Scenario, plan: EnsemblePlan, i: number): { point: PointScenario; values: number[]; clipped: boolean[] } {
+/**
+ * Draw i: its point scenario (resolve.ts) and the problem it runs, with the resolution coarsened by the
+ * ensemble's `resolutionFactor` (a variant of the draw's problem; the scenario itself is not rewritten).
+ */
+export function drawScenario(scenario: Scenario, plan: EnsemblePlan, i: number): { point: PointScenario; problem: Problem; values: number[]; clipped: boolean[] } {
   const { values, clipped } = drawValues(plan, i);
-  const byPath = new Map(plan.parameters.map((p, j) => [p.pathText, values[j]]));
-  const point = resolveQuantities(scenario, (d, path) => byPath.get(formatPath(path)) ?? centralValue(d)) as PointScenario;
-  return { point: coarsened(point, scenario.uncertainty?.resolutionFactor ?? 1), values, clipped };
+  const point = resolveDraw(scenario, plan.parameters, values);
+  return { point, problem: coarsened(point, scenario.uncertainty?.resolutionFactor ?? 1), values, clipped };
 }
 
-/**
- * The draw's scenario with cells and step `factor` times the automatic choice (the finest over the
- * baseline and every option layout, as the barrier analysis would pick), the step capped at 0.5/m for the
- * largest off-host mortality m (never below the automatic step); values set in `numerics` are kept.
- */
-export function coarsened(s: PointScenario, factor: number): PointScenario {
-  if (!(factor > 1)) return s;
-  const layouts = [buildLayout(s), ...(s.barrier?.options ?? []).map((o) => buildLayout(s, o))];
-  const res = layouts.map((l) => chooseResolution(s, l));
-  const cellKm = Math.min(...res.map((r) => r.cellKm));
-  const stepYears = Math.min(...res.map((r) => r.stepYears));
-  // The step stays within 0.5/m for every off-host mortality m present (the automatic rule's bound for
-  // rates handled exactly): longer steps leave the pinning checks of the barrier analysis undecided.
-  let mortality = 0;
-  for (const l of layouts) for (const p of l) if (p.habitat !== 'host-forest') mortality = Math.max(mortality, habitatCoefficients(s.pest, p.habitat).mortality);
-  const stepCap = mortality > 0 ? 0.5 / mortality : Infinity;
-  return {
-    ...s,
-    numerics: {
-      cellM: s.numerics.cellM ?? Math.min(FIELDS.cellM.max, factor * cellKm * 1000),
-      stepYears: s.numerics.stepYears ?? Math.min(FIELDS.stepYears.max, Math.max(stepYears, Math.min(factor * stepYears, stepCap))),
-    },
-  };
+/** The problem of a point scenario with cells and step `factor` times the automatic choice (see coarsenedProblem). */
+export function coarsened(s: PointScenario | Problem, factor: number): Problem {
+  return coarsenedProblem(asProblem(s), factor);
 }
 
 /* ------------------------------------------------------------------ one draw */
@@ -187,12 +170,15 @@ export function drawToleranceM(s: PointScenario, widthM: number): number {
 }
 
 /** Expected number of established introductions beyond an option's clearing, up to `untilYears` (a run of the option layout). */
-export function bypassLambda(s: PointScenario, option: { fromKm: number; widthM: number; cover: 'clearing' | 'non-host-forest' }, untilYears: number, shouldCancel?: () => boolean): number {
+export function bypassLambda(sp: PointScenario | Problem, option: { fromKm: number; widthM: number; cover: 'clearing' | 'non-host-forest' }, untilYears: number, shouldCancel?: () => boolean): number {
+  const p = asProblem(sp);
+  const s = p.scenario;
   const t = s.transport!;
-  const pieces = buildLayout(s, option);
-  const { grid, hostAtCells } = discretise(s, pieces);
+  const pieces = layoutOf(p, option);
+  const problem = discretise(p, pieces);
+  const { grid, hostAtCells } = problem;
   const tracker = new BypassTracker([sourceWeights(grid, hostAtCells, barrierGeometry(s, option), makeSurvivalKernel(t.kernel), bandWidth(s))], effectiveRate(t), s.detectionLevel, []);
-  runLayout({ scenario: s, pieces, record: false, tEnd: Math.max(untilYears, 1e-6), observers: [tracker], shouldCancel });
+  runLayout({ scenario: p, pieces, problem, record: false, tEnd: Math.max(untilYears, 1e-6), observers: [tracker], shouldCancel });
   return tracker.total();
 }
 
@@ -205,11 +191,13 @@ export function bypassLambda(s: PointScenario, option: { fromKm: number; widthM:
  * least as wide as a width verified to pin the front (wider clearings are harder to cross); this saves the
  * option's own pinning run. Without critical widths: analyseOption's own verified pinning.
  */
-export function evaluatePoint(s: PointScenario, settings: { criticalWidth?: boolean; shouldCancel?: () => boolean } = {}): PointOutcome {
+export function evaluatePoint(sp: PointScenario | Problem, settings: { criticalWidth?: boolean; shouldCancel?: () => boolean } = {}): PointOutcome {
+  const p = asProblem(sp);
+  const s = p.scenario;
   const options = s.barrier?.options ?? [];
   const shouldCancel = settings.shouldCancel;
   const withWidth = settings.criticalWidth ?? true;
-  const base = analyseBaseline(s, options, { record: false, shouldCancel });
+  const base = analyseBaseline(p, options, { record: false, shouldCancel });
   const baselineArrivals = base.summary.arrivals.map((a) => a.arrivalYears);
   const outcomes = options.map((o) => {
     const geometry = crossingGeometry(s, o);
@@ -221,7 +209,7 @@ export function evaluatePoint(s: PointScenario, settings: { criticalWidth?: bool
     if (withWidth) {
       // Per draw: no phase-plane seed and no bracket re-checks (their cost is most of a draw's; the checks
       // verify the method, which the single central-value analysis reports).
-      const c = criticalWidth(s, o, { baseline: base, record: false, toleranceM: drawToleranceM(s, o.widthM), phasePlane: false, bracketChecks: false, shouldCancel });
+      const c = criticalWidth(p, o, { baseline: base, record: false, toleranceM: drawToleranceM(s, o.widthM), phasePlane: false, bracketChecks: false, shouldCancel });
       if (!c.applicable) criticalWidthM = Infinity;
       else if (c.bracketM) criticalWidthM = c.bracketM[1];
       // Without any clearing the front never got past this point (it stalls or dies out first): nothing to bracket.
@@ -236,21 +224,21 @@ export function evaluatePoint(s: PointScenario, settings: { criticalWidth?: bool
         crossingYears = null;
         arrivals = s.sites.map(() => null);
       } else {
-        const resolution = mergedResolution(s, [o]);
-        const pieces = buildLayout(s, o);
-        const problem = discretise(s, pieces, resolution);
+        const resolution = mergedResolution(p, [o]);
+        const pieces = layoutOf(p, o);
+        const problem = discretise(p, pieces, resolution);
         const watch = new CrossingWatch(problem.grid, geometry, establishedLevels(s, problem), false, crossingProbeKm(s), s.detectionLevel);
         const siteArrivals = new ArrivalTracker(problem.grid, s.sites.map((x) => x.atKm), s.detectionLevel);
         // Stop once the outcome is known: crossing and all arrivals, or (held) the sites on the near side.
         const done = () =>
           pinned ? siteArrivals.arrivalYears.every((a, k) => beyond[k] || a !== null) : watch.crossedYears !== null && siteArrivals.allArrived();
-        const out = runLayout({ scenario: s, pieces, resolution, problem, record: false, shouldCancel, observers: [watch, siteArrivals, { handle: done }] });
+        const out = runLayout({ scenario: p, pieces, resolution, problem, record: false, shouldCancel, observers: [watch, siteArrivals, { handle: done }] });
         crossingYears = pinned ? null : watch.crossedYears;
         arrivals = out.arrivals.arrivalYears.map((a, k) => (pinned && beyond[k] ? null : a));
         if (crossingYears !== null) pinned = false;
       }
     } else {
-      const r = analyseOption(s, o, { baseline: base, record: false, widthCurve: false, criticalWidth: false, shouldCancel }).result;
+      const r = analyseOption(p, o, { baseline: base, record: false, widthCurve: false, criticalWidth: false, shouldCancel }).result;
       crossingYears = r.crossingYears.option;
       arrivals = r.sites.map((x) => x.optionArrivalYears);
       pinned = r.pinned;
@@ -260,7 +248,7 @@ export function evaluatePoint(s: PointScenario, settings: { criticalWidth?: bool
       arrivals,
       pinned,
       criticalWidthM,
-      bypassLambda: s.transport ? bypassLambda(s, o, crossingYears ?? s.horizonYears, shouldCancel) : null,
+      bypassLambda: s.transport ? bypassLambda(p, o, crossingYears ?? s.horizonYears, shouldCancel) : null,
     };
   });
   return { baselineArrivals, options: outcomes };
@@ -268,8 +256,8 @@ export function evaluatePoint(s: PointScenario, settings: { criticalWidth?: bool
 
 /** Evaluates draw i of the plan. */
 export function evaluateDraw(scenario: Scenario, plan: EnsemblePlan, i: number, shouldCancel?: () => boolean): DrawOutcome {
-  const { point, values, clipped } = drawScenario(scenario, plan, i);
-  return { index: i, values, clipped, ...evaluatePoint(point, { criticalWidth: scenario.uncertainty?.criticalWidth ?? true, shouldCancel }) };
+  const { problem, values, clipped } = drawScenario(scenario, plan, i);
+  return { index: i, values, clipped, ...evaluatePoint(problem, { criticalWidth: scenario.uncertainty?.criticalWidth ?? true, shouldCancel }) };
 }
 
 /* ------------------------------------------------------------------ summaries */

@@ -1,8 +1,10 @@
 import { TOOL } from '../version.ts';
+import { buildProblem, type Problem } from '../problem/problem.ts';
+import { resolve } from '../problem/resolve.ts';
 import { fingerprint } from '../model/canonical.ts';
 import { pointScenario, type Scenario, type PointScenario } from '../model/scenario.ts';
 import { alleeThreshold, lowDensityRate } from '../model/growth.ts';
-import { linearSpreadSpeed } from './discretise.ts';
+import { linearSpreadSpeed } from '../problem/discretise.ts';
 import { analyseBaseline, analyseOption } from './barrier.ts';
 import { analyseMosaic } from './mosaic.ts';
 import { allCautions } from './cautions.ts';
@@ -59,25 +61,30 @@ export function documentHeader(scenario: Scenario, runAt: string) {
  * The function every front end calls (CLI, web routes, workers, briefing).
  */
 export function evaluateScenario(scenario: Scenario, opts: EvaluateOptions = {}): ResultDocument {
-  const s = pointScenario(scenario);
+  return evaluateProblem(scenario, buildProblem(resolve(scenario)), opts);
+}
+
+/** {@link evaluateScenario} on a problem built by the caller from the scenario's central values (tests inspect its cache). */
+export function evaluateProblem(scenario: Scenario, p: Problem, opts: EvaluateOptions = {}): ResultDocument {
+  const s = p.scenario;
   const options = s.barrier?.options ?? [];
   const nRuns = 1 + options.length;
   // With an ensemble, the single runs take the first share of the bar and the draws the rest.
   const share = opts.ensemble === 'skip' ? 1 : singleRunShare(scenario);
   const progress = (k: number, label: string) => (f: number) => opts.onProgress?.((share * (k + f)) / nRuns, label);
-  const baseline = analyseBaseline(s, options, {
+  const baseline = analyseBaseline(p, options, {
     shouldCancel: opts.shouldCancel,
     onProgress: progress(0, 'baseline'),
   });
   const optionResults: OptionResult[] = options.map(
     (o, k) =>
-      analyseOption(s, o, {
+      analyseOption(p, o, {
         baseline,
         shouldCancel: opts.shouldCancel,
         onProgress: (f, stage) => progress(k + 1, stage)(f),
       }).result,
   );
-  const mosaics = (s.mosaics ?? []).map((m) => analyseMosaic(s, m, { shouldCancel: opts.shouldCancel }));
+  const mosaics = (s.mosaics ?? []).map((m) => analyseMosaic(p, m, { shouldCancel: opts.shouldCancel }));
   let uncertainty: UncertaintyResult | undefined;
   if (scenario.uncertainty && opts.ensemble !== 'skip') {
     uncertainty = runEnsemble(scenario, {
@@ -86,7 +93,7 @@ export function evaluateScenario(scenario: Scenario, opts: EvaluateOptions = {})
     });
   }
   // When the caller runs the ensemble it also adds the bypass section (which uses the ensemble).
-  const bypass = opts.ensemble === 'skip' && scenario.uncertainty ? undefined : analyseBypass(s, optionResults, uncertainty, opts.shouldCancel);
+  const bypass = opts.ensemble === 'skip' && scenario.uncertainty ? undefined : analyseBypass(p, optionResults, uncertainty, opts.shouldCancel);
   opts.onProgress?.(1, 'done');
   return {
     ...documentHeader(scenario, (opts.now?.() ?? new Date()).toISOString()),

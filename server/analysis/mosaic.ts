@@ -10,8 +10,9 @@ import { blochEigenvalue, homogenised, spreadingSpeed, type Patch } from '../num
 import { LevelCrossings, type Observer, type FieldState } from '../numerics/time-loop.ts';
 import { cellIndexAt } from '../numerics/grid.ts';
 import type { MosaicResult } from './result.ts';
-import type { Piece } from './layout.ts';
-import { chooseResolution, discretise, growthRateScale } from './discretise.ts';
+import type { Piece } from '../problem/layout.ts';
+import { chooseResolution, discretise, growthRateScale } from '../problem/discretise.ts';
+import { asProblem, deriveProblem, type Problem } from '../problem/problem.ts';
 import { runLayout } from './simulate.ts';
 import { spreadRate } from './speed.ts';
 import { strongAllee } from './barrier-growth.ts';
@@ -83,44 +84,19 @@ export interface MeasuredMosaicSpeed {
  * half. For growth without an Allee effect (pulled fronts) the fit includes the Bramson term −(3/(2s*)) ln t
  * (Bramson 1983; periodic media: Hamel, Nolen, Roquejoffre & Ryzhik 2013), methods note §9.3.
  */
-export function measureMosaicSpeed(s: PointScenario, m: MosaicSpec, opts: { level?: number; periods?: number; decayRate?: number | null; guessKmPerYear?: number | null; shouldCancel?: () => boolean } = {}): MeasuredMosaicSpeed {
-  const periods = opts.periods ?? 100;
-  const lf = m.forestM / 1000;
-  const lg = m.gapM / 1000;
-  const L = lf + lg;
+export function measureMosaicSpeed(sp: PointScenario | Problem, m: MosaicSpec, opts: MosaicRunOptions = {}): MeasuredMosaicSpeed {
+  const { problem: pattern, pieces, probesKm } = mosaicPatternProblem(asProblem(sp), m, opts);
+  const s = pattern.scenario;
+  const periods = probesKm.length;
   const h = m.stocking ?? 1;
-  const pieces: Piece[] = [];
-  for (let k = 0; k < periods; k++) {
-    pieces.push({ fromKm: k * L, toKm: k * L + lf, habitat: 'host-forest', stocking: h, stemsPerHa: 0, segment: 2 * k, barrier: false });
-    pieces.push({ fromKm: k * L + lf, toKm: (k + 1) * L, habitat: m.cover, stocking: 0, stemsPerHa: 0, segment: 2 * k + 1, barrier: false });
-  }
-  const total = periods * L;
-  const guess = opts.guessKmPerYear && opts.guessKmPerYear > 0 ? opts.guessKmPerYear : 2 * Math.sqrt(s.pest.diffusionHost * growthRateScale(s.pest.growth));
-  const horizon = Math.min(1.5 * (total / guess), 2000);
-  const sm: PointScenario = {
-    ...s,
-    transect: {
-      originKm: 0,
-      ends: { left: 'reflecting', right: 'reflecting' },
-      segments: pieces.map((p) =>
-        p.habitat === 'host-forest'
-          ? { habitat: 'host-forest' as const, lengthKm: p.toKm - p.fromKm, stocking: h, stemsPerHa: 0 }
-          : { habitat: p.habitat as 'clearing' | 'non-host-forest', lengthKm: p.toKm - p.fromKm },
-      ),
-    },
-    infestation: { fromKm: 0, toKm: lf, density: 1 },
-    sites: [],
-    horizonYears: horizon,
-  };
-  const probesKm = Array.from({ length: periods }, (_, k) => k * L + 0.5 * lf);
-  const resolution = chooseResolution(sm, pieces);
+  const resolution = chooseResolution(pattern, pieces);
   // Probes read cell values (mid-forest cells); the recorder stops the run once the last probe is passed.
-  const problem = discretise(sm, pieces, resolution);
+  const problem = discretise(pattern, pieces, resolution);
   const grid = problem.grid;
   const cells = probesKm.map((x) => cellIndexAt(grid, x));
   const lastProbe = Math.max(0, periods - 3);
   const recorder = new PassageRecorder(cells.slice(0, lastProbe + 1), opts.level ?? PASSAGE_LEVEL);
-  runLayout({ scenario: sm, pieces, resolution, problem, record: false, observers: [recorder], shouldCancel: opts.shouldCancel });
+  runLayout({ scenario: pattern, pieces, resolution, problem, record: false, observers: [recorder], shouldCancel: opts.shouldCancel });
   const times = recorder.times;
   const pulled = !strongAllee(s.pest.growth, h) && opts.decayRate != null && opts.decayRate > 0;
   const t: number[] = [];
@@ -142,14 +118,54 @@ export function measureMosaicSpeed(s: PointScenario, m: MosaicSpec, opts: { leve
   };
 }
 
+export interface MosaicRunOptions {
+  level?: number;
+  periods?: number;
+  decayRate?: number | null;
+  guessKmPerYear?: number | null;
+  shouldCancel?: () => boolean;
+}
+
+/**
+ * The problem of a mosaic measurement, derived from the scenario's: `periods` periods of forest strip and gap
+ * from 0 km with reflecting ends, the first forest strip fully infested, no sites, and a run length of 1.5×
+ * the time the front needs at the guessed speed (at most 2000 yr). Also what the limit check counts.
+ */
+export function mosaicPatternProblem(p: Problem, m: MosaicSpec, opts: Pick<MosaicRunOptions, 'periods' | 'guessKmPerYear'> = {}): { problem: Problem; pieces: Piece[]; probesKm: number[] } {
+  const s = p.scenario;
+  const periods = opts.periods ?? 100;
+  const lf = m.forestM / 1000;
+  const lg = m.gapM / 1000;
+  const L = lf + lg;
+  const h = m.stocking ?? 1;
+  const pieces: Piece[] = [];
+  for (let k = 0; k < periods; k++) {
+    pieces.push({ fromKm: k * L, toKm: k * L + lf, habitat: 'host-forest', stocking: h, stemsPerHa: 0, segment: 2 * k, barrier: false });
+    pieces.push({ fromKm: k * L + lf, toKm: (k + 1) * L, habitat: m.cover, stocking: 0, stemsPerHa: 0, segment: 2 * k + 1, barrier: false });
+  }
+  const total = periods * L;
+  const guess = opts.guessKmPerYear && opts.guessKmPerYear > 0 ? opts.guessKmPerYear : 2 * Math.sqrt(s.pest.diffusionHost * growthRateScale(s.pest.growth));
+  const horizon = Math.min(1.5 * (total / guess), 2000);
+  const problem = deriveProblem(p, {
+    extentKm: [0, total],
+    ends: { left: 'reflecting', right: 'reflecting' },
+    infestation: { fromKm: 0, toKm: lf, density: 1 },
+    sites: [],
+    horizonYears: horizon,
+  });
+  const probesKm = Array.from({ length: periods }, (_, k) => k * L + 0.5 * lf);
+  return { problem, pieces, probesKm };
+}
+
 /** Speed in unbroken host forest at the same stocking [km/yr]: 2√(D r0) without an Allee effect, else measured. */
-function intactSpeed(s: PointScenario, m: MosaicSpec, measure: boolean): number | null {
+function intactSpeed(p: Problem, m: MosaicSpec, measure: boolean): number | null {
+  const s = p.scenario;
   const h = m.stocking ?? 1;
   const r0 = lowDensityRate(s.pest.growth, h);
   if (!strongAllee(s.pest.growth, h)) return r0 > 0 ? 2 * Math.sqrt(s.pest.diffusionHost * r0) : 0;
   if (!measure) return null;
   // Strong Allee effect: pushed front, measured in a pattern with vanishing gaps (1 m of host forest).
-  const r = measureMosaicSpeed(s, { ...m, gapM: 0.001, forestM: Math.max(m.forestM + m.gapM, 100) });
+  const r = measureMosaicSpeed(p, { ...m, gapM: 0.001, forestM: Math.max(m.forestM + m.gapM, 100) });
   return r.kmPerYear;
 }
 
@@ -161,7 +177,9 @@ function dispersionCurve(patches: Patch[], sStar: number | null): { s: number[];
 }
 
 /** Full result for one mosaic, as in the result document. */
-export function analyseMosaic(s: PointScenario, m: MosaicSpec, opts: { shouldCancel?: () => boolean } = {}): MosaicResult {
+export function analyseMosaic(sp: PointScenario | Problem, m: MosaicSpec, opts: { shouldCancel?: () => boolean } = {}): MosaicResult {
+  const p = asProblem(sp);
+  const s = p.scenario;
   const patches = mosaicPatches(s, m);
   const h = m.stocking ?? 1;
   const allee = strongAllee(s.pest.growth, h);
@@ -170,8 +188,8 @@ export function analyseMosaic(s: PointScenario, m: MosaicSpec, opts: { shouldCan
   const measure = m.measure ?? true;
   const lambda0 = exact.lambda0;
   const linearPersists = lambda0 > 0;
-  const measured = measure && (linearPersists || allee) ? measureMosaicSpeed(s, m, { decayRate: exact.decayRate, guessKmPerYear: exact.speed, shouldCancel: opts.shouldCancel }) : null;
-  const intact = intactSpeed(s, m, measure) ?? 0;
+  const measured = measure && (linearPersists || allee) ? measureMosaicSpeed(p, m, { decayRate: exact.decayRate, guessKmPerYear: exact.speed, shouldCancel: opts.shouldCancel }) : null;
+  const intact = intactSpeed(p, m, measure) ?? 0;
   const exactKmPerYear = allee ? null : exact.speed;
   const best = exactKmPerYear ?? measured?.kmPerYear ?? null;
   const persists = allee ? best !== null && best > 0 : linearPersists;

@@ -2,14 +2,16 @@ import { makeDiffusionOperator, type DiffusionOperator } from '../numerics/diffu
 import { makeCoupledStepper } from '../numerics/coupled.ts';
 import { runTimeLoop, type FieldStepper, type Observer, type SolverResult } from '../numerics/time-loop.ts';
 import type { PointScenario } from '../model/scenario.ts';
-import { discretise, type Resolution, type TransectProblem } from './discretise.ts';
-import { HA_PER_KM2, type Piece } from './layout.ts';
+import { asProblem, type Problem } from '../problem/problem.ts';
+import { discretise, type Resolution, type TransectProblem } from '../problem/discretise.ts';
+import { HA_PER_KM2, type Piece } from '../problem/layout.ts';
 import { ArrivalTracker, FrontTracker, SnapshotRecorder, profileCells } from './trackers.ts';
 import { spreadRate } from './speed.ts';
 import type { RunResult, SpreadRateSummary } from './result.ts';
 
 export interface RunRequest {
-  scenario: PointScenario;
+  /** The problem to run (a point scenario gets its own). */
+  scenario: PointScenario | Problem;
   pieces: Piece[];
   /** End time [yr]; the scenario horizon by default. */
   tEnd?: number;
@@ -72,7 +74,7 @@ export function makeEngineStepper(problem: TransectProblem): { op: DiffusionOper
 
 /** Runs one layout of a scenario from the current infestation. The engine call shared by every caller. */
 export function runLayout(req: RunRequest): RunOutput {
-  const s = req.scenario;
+  const s = asProblem(req.scenario);
   const problem = req.problem ?? discretise(s, req.pieces, req.resolution);
   const tEnd = req.tEnd ?? s.horizonYears;
   const { grid } = problem;
@@ -115,7 +117,7 @@ const sig = (x: number): number => (x === 0 || !Number.isFinite(x) ? x : Number(
  * Measured spread rates of both fronts. The fit window excludes the initial stretch and the last 5 % of
  * the transect on the side the front moves towards (end effects).
  */
-export function measuredSpreadRates(out: RunOutput, s: PointScenario): SpreadRateSummary[] {
+export function measuredSpreadRates(out: RunOutput, s: Pick<Problem, 'infestation'>): SpreadRateSummary[] {
   const f = out.problem.grid.facesKm;
   const start = f[0];
   const end = f[f.length - 1];
@@ -148,7 +150,7 @@ export function hostSummary(problem: TransectProblem, h: Float64Array): RunResul
 }
 
 /** Turns a run into the JSON summary of the result document. */
-export function summariseRun(out: RunOutput, s: PointScenario): RunResult {
+export function summariseRun(out: RunOutput, s: Pick<Problem, 'infestation' | 'sites'>): RunResult {
   const { problem, front, solver } = out;
   const { grid } = problem;
   const keep = decimateIndices(front.times.length, 400);

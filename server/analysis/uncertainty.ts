@@ -3,8 +3,8 @@
  * evaluateScenario (ensemble in this thread) and evaluateScenarioParallel (ensemble on a worker pool).
  */
 import type { PointScenario, Scenario } from '../model/scenario.ts';
-import { buildLayout } from './layout.ts';
-import { discretise } from './discretise.ts';
+import { asProblem, layoutOf, type Problem } from '../problem/problem.ts';
+import { discretise } from '../problem/discretise.ts';
 import { runLayout } from './simulate.ts';
 import {
   BypassTracker,
@@ -30,11 +30,13 @@ const pct = (p: number): string => (p > 0 && p < 0.005 ? '< 1 %' : `${Math.round
  * wider), combined with the ensemble when there is one.
  */
 export function analyseBypass(
-  s: PointScenario,
+  sp: PointScenario | Problem,
   optionResults: readonly Pick<OptionResult, 'crossingYears'>[],
   uncertainty: UncertaintyResult | undefined,
   shouldCancel?: () => boolean,
 ): BypassResult | undefined {
+  const p = asProblem(sp);
+  const s = p.scenario;
   const t = s.transport;
   if (!t) return undefined;
   const kernel = makeSurvivalKernel(t.kernel);
@@ -45,15 +47,16 @@ export function analyseBypass(
   const options: OptionBypass[] = (s.barrier?.options ?? []).map((o, m) => {
     const g = barrierGeometry(s, o);
     const wider = { ...g, farKm: g.side === 'right' ? g.farKm + EXTRA_WIDTH_KM : g.farKm - EXTRA_WIDTH_KM };
-    const pieces = buildLayout(s, o);
-    const { grid, hostAtCells } = discretise(s, pieces);
+    const pieces = layoutOf(p, o);
+    const problem = discretise(p, pieces);
+    const { grid, hostAtCells } = problem;
     const tracker = new BypassTracker(
       [sourceWeights(grid, hostAtCells, g, kernel, band), sourceWeights(grid, hostAtCells, wider, kernel, band)],
       rate,
       s.detectionLevel,
       years,
     );
-    runLayout({ scenario: s, pieces, record: false, observers: [tracker], shouldCancel });
+    runLayout({ scenario: p, pieces, problem, record: false, observers: [tracker], shouldCancel });
     const probability = atLeastOne(tracker.total(0));
     const ens = uncertainty?.options[m];
     // Natural spread: the barrier analysis's crossing within the horizon (central values), or the ensemble.

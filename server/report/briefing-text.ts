@@ -6,7 +6,7 @@
  */
 import type { OptionResult, ResultDocument, RunResult, VerdictKind } from '../analysis/result.ts';
 import { CAUTIONS, MODEL_LIMITS, allCautions } from '../analysis/cautions.ts';
-import { stemsRemoved } from '../analysis/layout.ts';
+import { stemsRemoved } from '../problem/layout.ts';
 import { valueAt } from '../model/errors.ts';
 import { FIELDS, type FieldSpec } from '../model/fields.ts';
 import { centralValue, isDistribution, listUncertain } from '../model/quantity.ts';

@@ -4,7 +4,7 @@ import { parseScenario, pointScenario } from '../../server/model/scenario.ts';
 import { analyseMosaic, mosaicPatches } from '../../server/analysis/mosaic.ts';
 import { blochEigenvalue, spreadingSpeed } from '../../server/numerics/dispersion.ts';
 import { runLayout } from '../../server/analysis/simulate.ts';
-import type { Piece } from '../../server/analysis/layout.ts';
+import type { Piece } from '../../server/problem/layout.ts';
 import { fitLine } from '../../server/analysis/speed.ts';
 
 /** A scenario carrying only the pest (mosaic runs build their own layout). */
