@@ -21,7 +21,7 @@ import { openStore } from './web/store.ts';
 import { loadDemos, makeCatalogue } from './web/catalogue.ts';
 import { makeJobRunner } from './web/jobs.ts';
 import { makeBriefingRenderer } from './web/briefings.ts';
-import { defaultThreads } from './analysis/ensemble-pool.ts';
+import { defaultThreads } from './analysis/ensemble/ensemble-pool.ts';
 import { DEFAULT_LIMITS, type WebLimits } from './web/limits.ts';
 import scenarioPages from './web/routes/scenario-pages.ts';
 import runPages from './web/routes/run-pages.ts';

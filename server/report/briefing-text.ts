@@ -5,7 +5,7 @@
  * tests can check them directly.
  */
 import type { OptionResult, ResultDocument, RunResult, VerdictKind } from '../analysis/result.ts';
-import { CAUTIONS, MODEL_LIMITS, allCautions } from '../analysis/cautions.ts';
+import { CAUTIONS, MODEL_LIMITS, allCautions } from '../analysis/evaluate/cautions.ts';
 import { stemsRemoved } from '../problem/layout.ts';
 import { valueAt } from '../model/errors.ts';
 import { FIELDS, type FieldSpec } from '../model/fields.ts';

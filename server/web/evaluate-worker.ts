@@ -5,7 +5,7 @@
  * errors never cross the thread boundary as exceptions, so the main thread always knows what happened.
  */
 import type { MessagePort } from 'node:worker_threads';
-import { evaluateScenarioParallel } from '../analysis/evaluate-parallel.ts';
+import { evaluateScenarioParallel } from '../analysis/evaluate/evaluate.ts';
 import { InputError, type Problem } from '../model/errors.ts';
 import type { Scenario } from '../model/scenario.ts';
 import type { ResultDocument } from '../analysis/result.ts';

@@ -6,8 +6,7 @@
 import { Piscina } from 'piscina';
 import { MessageChannel } from 'node:worker_threads';
 import { randomUUID } from 'node:crypto';
-import { createRequire } from 'node:module';
-import { pathToFileURL } from 'node:url';
+import { tsxLoaderUrl } from '../jobs/worker-loader.ts';
 import { LimitError, type Problem } from '../model/errors.ts';
 import type { Scenario } from '../model/scenario.ts';
 import type { EvaluateOutcome, EvaluateTask } from './evaluate-worker.ts';
@@ -71,10 +70,8 @@ const KEEP_FINISHED = 200;
 /** Grace after the wall-time limit before the worker thread is terminated [ms]. */
 const HARD_STOP_GRACE_MS = 15_000;
 
-/** The tsx loader, so worker threads can load the TypeScript worker file (also under vitest). */
-export function tsxLoaderUrl(): string {
-  return pathToFileURL(createRequire(import.meta.url).resolve('tsx')).href;
-}
+/** The tsx loader, so worker threads can load the TypeScript worker file (also under vitest): one helper for every pool. */
+export { tsxLoaderUrl } from '../jobs/worker-loader.ts';
 
 export function makeJobRunner(opts: JobRunnerOptions): JobRunner {
   const pool = new Piscina<EvaluateTask, EvaluateOutcome>({

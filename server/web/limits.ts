@@ -6,7 +6,7 @@
  */
 import { LimitError, type Problem } from '../model/errors.ts';
 import type { Scenario } from '../model/scenario.ts';
-import { plannedRuns, type PlannedRun } from '../analysis/planned-runs.ts';
+import { plannedRuns, type PlannedRun } from '../analysis/evaluate/planned-runs.ts';
 import { MAX_STEPS } from '../problem/resolution.ts';
 
 export interface WebLimits {

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { parseScenarioText, pointScenario } from '../../server/model/scenario.ts';
-import { runLayout } from '../../server/analysis/simulate.ts';
+import { runLayout } from '../../server/analysis/run/simulate.ts';
 import { buildLayout } from '../../server/problem/layout.ts';
 import { chooseResolution } from '../../server/problem/discretise.ts';
 

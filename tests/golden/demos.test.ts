@@ -8,7 +8,7 @@
 import { describe, expect, it } from 'vitest';
 import { readdirSync, readFileSync } from 'node:fs';
 import { parseScenarioText } from '../../server/model/scenario.ts';
-import { evaluateProblem } from '../../server/analysis/evaluate.ts';
+import { evaluateProblem } from '../../server/analysis/evaluate/evaluate.ts';
 import { buildProblem } from '../../server/problem/problem.ts';
 import { resolve } from '../../server/problem/resolve.ts';
 import { GOLDEN_DIR, SCENARIO_DIR, stripVolatile } from './golden.ts';

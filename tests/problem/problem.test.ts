@@ -6,7 +6,7 @@ import { describe, expect, it } from 'vitest';
 import { asProblem, buildProblem, deriveProblem, layoutOf } from '../../server/problem/problem.ts';
 import { discretise } from '../../server/problem/discretise.ts';
 import { chooseResolution } from '../../server/problem/resolution.ts';
-import { makeWindowSolver } from '../../server/analysis/barrier-run.ts';
+import { makeWindowSolver } from '../../server/analysis/run/barrier-run.ts';
 import { clearingSegment, hostSegment, testPest, testScenario } from '../helpers/scenario.ts';
 
 describe('Problem', () => {

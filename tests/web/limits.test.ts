@@ -8,7 +8,7 @@ import { describe, expect, it } from 'vitest';
 import { readFileSync, readdirSync } from 'node:fs';
 import { parseScenarioText, type Scenario } from '../../server/model/scenario.ts';
 import { checkLimits, DEFAULT_LIMITS } from '../../server/web/limits.ts';
-import { plannedRuns } from '../../server/analysis/planned-runs.ts';
+import { plannedRuns } from '../../server/analysis/evaluate/planned-runs.ts';
 import { LimitError } from '../../server/model/errors.ts';
 import { GOLDEN_DIR, SCENARIO_DIR } from '../golden/golden.ts';
 
