@@ -1,3 +1,4 @@
+import { geometryBetween } from '../../server/problem/geometry.ts';
 import { describe, expect, it } from 'vitest';
 import { makeGrid } from '../../server/numerics/grid.ts';
 import { makeRng } from '../../server/numerics/rng.ts';
@@ -69,7 +70,7 @@ describe('bypass probability against methods note §7.2 check values', () => {
     const lam = 0.5;
     const q = 0.5;
     const p = 0.3;
-    const geometry = { nearKm: 2, farKm: 4, side: 'right' as const };
+    const geometry = geometryBetween(2, 4);
     const kernel = makeSurvivalKernel({ shape: 'exponential', meanKm: 5 });
     const Lambda = trackSynthetic(
       [-ell, 0, 2],
@@ -91,7 +92,7 @@ describe('bypass probability against methods note §7.2 check values', () => {
     const p = 0.3;
     const h = 0.01;
     const faces = uniformFaces(-10, 0, 1000);
-    const geometry = { nearKm: 0, farKm: 2, side: 'right' as const };
+    const geometry = geometryBetween(0, 2);
     const kernel = makeSurvivalKernel({ shape: 'exponential', meanKm: 5 });
     const Lambda = trackSynthetic(
       faces,

@@ -16,6 +16,7 @@ import {
   makeSurvivalKernel,
   sourceWeights,
 } from './bypass.ts';
+import { withFarEdge } from '../../problem/geometry.ts';
 import type { BypassResult, OptionBypass, OptionResult, UncertaintyResult } from '../result.ts';
 
 /** Extra clearing width used to show how little width helps against transport [km]. */
@@ -46,7 +47,7 @@ export function analyseBypass(
   if (years[years.length - 1] < s.horizonYears) years.push(s.horizonYears);
   const options: OptionBypass[] = (s.barrier?.options ?? []).map((o, m) => {
     const g = barrierGeometry(s, o);
-    const wider = { ...g, farKm: g.side === 'right' ? g.farKm + EXTRA_WIDTH_KM : g.farKm - EXTRA_WIDTH_KM };
+    const wider = withFarEdge(g, g.side === 'right' ? g.farKm + EXTRA_WIDTH_KM : g.farKm - EXTRA_WIDTH_KM);
     const pieces = layoutOf(p, o);
     const problem = discretise(p, pieces);
     const { grid, hostAtCells } = problem;

@@ -82,21 +82,9 @@ export function makeSurvivalKernel(kernel: PointKernel): SurvivalKernel {
   };
 }
 
-/** Where the protected side lies and where the barrier's far edge is. */
-export interface BarrierGeometry {
-  /** Near edge (infested side) [km]. */
-  nearKm: number;
-  /** Far edge (protected side) [km]. */
-  farKm: number;
-  side: 'right' | 'left';
-}
-
-/** Geometry of a clearing option relative to the current infestation. */
-export function barrierGeometry(s: PointScenario, option: { fromKm: number; widthM: number }): BarrierGeometry {
-  const a = option.fromKm;
-  const b = option.fromKm + option.widthM / 1000;
-  return a >= s.infestation.toKm ? { nearKm: a, farKm: b, side: 'right' } : { nearKm: b, farKm: a, side: 'left' };
-}
+// The one barrier geometry (problem/geometry.ts): near and far edge and the protected side.
+export { barrierGeometry, type BarrierGeometry } from '../../problem/geometry.ts';
+import type { BarrierGeometry } from '../../problem/geometry.ts';
 
 /**
  * Per-cell source weight [km²·(share of trips that pass the far edge)]: band width × ∫ over the cell of

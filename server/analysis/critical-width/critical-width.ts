@@ -9,6 +9,7 @@ import { equilibria } from '../../model/growth.ts';
 import { criticalGapWidth } from '../../numerics/steady-blocking.ts';
 import { growthRateScale, type Resolution } from '../../problem/discretise.ts';
 import { type ClearingSpec } from '../../problem/layout.ts';
+import { withFarEdge } from '../../problem/geometry.ts';
 import { asProblem, layoutOf, type Problem } from '../../problem/problem.ts';
 import { mergedResolution as mergedResolutionOf } from '../../problem/resolution.ts';
 import type { CriticalWidth } from '../result.ts';
@@ -94,7 +95,7 @@ function maxUsableWidthM(p: Problem, g: BarrierGeometry): number {
  */
 function classifyWidth(c: WidthProbeContext, widthM: number, stepFactor = 1, windowFactor = 1): WidthRun {
   const clearing = widthM > 0 ? clearingOfWidth(c, widthM) : null;
-  const g: BarrierGeometry = clearing ? barrierGeometry(c.s, clearing) : { ...c.geometry, farKm: c.geometry.nearKm };
+  const g: BarrierGeometry = clearing ? barrierGeometry(c.s, clearing) : withFarEdge(c.geometry, c.geometry.nearKm);
   const pieces = layoutOf(c.p, clearing ?? undefined);
   const d = g.direction;
   const behind = c.behindKm * windowFactor;

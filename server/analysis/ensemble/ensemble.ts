@@ -18,9 +18,10 @@ import { coarsenedProblem } from '../../problem/resolution.ts';
 import { resolveDraw } from '../../problem/resolve.ts';
 import { runLayout } from '../run/simulate.ts';
 import { DEFAULT_TOLERANCE_M, analyseBaseline, analyseOption, criticalWidth, mergedResolution } from '../verdict/barrier.ts';
-import { CrossingWatch, barrierGeometry as crossingGeometry, crossingProbeKm, establishedLevels, isBeyond } from '../run/barrier-run.ts';
+import { CrossingWatch, crossingProbeKm, establishedLevels } from '../run/barrier-run.ts';
+import { barrierGeometry, isBeyond } from '../../problem/geometry.ts';
 import { ArrivalTracker } from '../run/trackers.ts';
-import { BypassTracker, bandWidth, barrierGeometry, effectiveRate, makeSurvivalKernel, sourceWeights } from '../bypass/bypass.ts';
+import { BypassTracker, bandWidth, effectiveRate, makeSurvivalKernel, sourceWeights } from '../bypass/bypass.ts';
 import { partialRankCorrelation } from '../sensitivity/sensitivity.ts';
 import type {
   OptionUncertainty,
@@ -200,7 +201,7 @@ export function evaluatePoint(sp: PointScenario | Problem, settings: { criticalW
   const base = analyseBaseline(p, options, { record: false, shouldCancel });
   const baselineArrivals = base.summary.arrivals.map((a) => a.arrivalYears);
   const outcomes = options.map((o) => {
-    const geometry = crossingGeometry(s, o);
+    const geometry = barrierGeometry(s, o);
     const beyond = s.sites.map((site) => isBeyond(geometry, site.atKm));
     let crossingYears: number | null;
     let arrivals: (number | null)[];

@@ -11,37 +11,16 @@ import { alleeThreshold, equilibria, lowDensityRate } from '../../model/growth.t
 import type { PointScenario } from '../../model/scenario.ts';
 import { asProblem, deriveProblem, type Problem } from '../../problem/problem.ts';
 import { discretise, growthRateScale, type Resolution, type TransectProblem } from '../../problem/discretise.ts';
-import type { ClearingSpec, Piece } from '../../problem/layout.ts';
+import type {  Piece } from '../../problem/layout.ts';
 import { cellReaction, establishedLevel, potentialThreshold, strongAllee } from './barrier-growth.ts';
 import { hasStrongAllee } from '../../model/growth.ts';
 import { ArrivalTracker } from './trackers.ts';
 import { makeEngineStepper } from './simulate.ts';
 
-/** Where a clearing sits relative to the infestation. */
-export interface BarrierGeometry {
-  /** +1 when the front must travel right to reach the clearing, −1 when left. */
-  direction: 1 | -1;
-  /** Edge of the clearing that faces the infestation [km]. */
-  nearKm: number;
-  /** Edge the front must pass to cross [km]. */
-  farKm: number;
-}
+import { SAME_KM, isBeyond, type BarrierGeometry } from '../../problem/geometry.ts';
 
-/** Positions closer than this are equal [km] (1 mm). */
-const SAME_KM = 1e-6;
-
-/** Which way the front meets the clearing (the scenario's cross-checks guarantee no overlap with the infestation). */
-export function barrierGeometry(s: PointScenario, c: ClearingSpec): BarrierGeometry {
-  const a = c.fromKm;
-  const b = c.fromKm + c.widthM / 1000;
-  if (a >= s.infestation.toKm - SAME_KM) return { direction: 1, nearKm: a, farKm: b };
-  return { direction: -1, nearKm: b, farKm: a };
-}
-
-/** True when x lies beyond the clearing as seen from the infestation. */
-export function isBeyond(g: BarrierGeometry, xKm: number): boolean {
-  return g.direction * (xKm - g.farKm) > SAME_KM;
-}
+// The one barrier geometry lives in problem/geometry.ts; re-exported for the rooms that import it from here.
+export { barrierGeometry, isBeyond, type BarrierGeometry } from '../../problem/geometry.ts';
 
 /** Movement length in host forest √(D/r) [km]: the distance over which a front profile changes. */
 export function movementLengthKm(s: PointScenario): number {
