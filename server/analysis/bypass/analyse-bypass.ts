@@ -18,13 +18,14 @@ import {
 } from './bypass.ts';
 import { withFarEdge } from '../../problem/geometry.ts';
 import type { BypassResult, OptionBypass, OptionResult, UncertaintyResult } from '../result.ts';
+import { percent } from '../words.ts';
 
 /** Extra clearing width used to show how little width helps against transport [km]. */
 const EXTRA_WIDTH_KM = 0.1;
 /** Bypass probability from which transport counts as deciding (when it also exceeds the natural failure risk). */
 const TRANSPORT_MATTERS = 0.05;
 
-const pct = (p: number): string => (p > 0 && p < 0.005 ? '< 1 %' : `${Math.round(100 * p)} %`);
+const pct = percent;
 
 /**
  * Bypass risk per option from a run at the central values (curve by year, and with the clearing 100 m

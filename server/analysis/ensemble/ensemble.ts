@@ -32,6 +32,7 @@ import type {
   UncertainParameter,
   UncertaintyResult,
 } from '../result.ts';
+import { percent } from '../words.ts';
 
 /* ------------------------------------------------------------------ parameters and draws */
 
@@ -372,7 +373,7 @@ export function sensitivityRanking(
   return { outcome: what.outcome, outcomeKey: what.outcomeKey, method: 'partial rank correlation (PRCC) over the Latin hypercube draws', entries, sentence };
 }
 
-const pct = (p: number): string => `${Math.round(100 * p)} %`;
+const pct = percent;
 
 /** Summarises the draws (in index order) into the result document's uncertainty section. */
 export function summariseEnsemble(
