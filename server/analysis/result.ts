@@ -2,6 +2,7 @@
  * The result document: what one evaluation produces, for the CLI (--json), the API, the web pages and
  * the briefing. Plain JSON (numbers, strings, arrays); times in years, positions in km, widths in m.
  * Documented field by field in the README ("Result document").
+ * Longer than 400 lines on purpose: the whole document's type, in one place, is what readers and the README follow.
  */
 import type { Habitat } from '../model/scenario.ts';
 

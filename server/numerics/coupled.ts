@@ -9,6 +9,9 @@
  * edge was off by a few per cent and the critical width of a clearing by ≈ 0.4 % (tests/verification/
  * convergence.test.ts measures both schemes). Treating L and the growth rates in one implicit solve keeps
  * the edge conditions in every stage and restores second order.
+ *
+ * makeCoupledStepper is one long factory on purpose: the step is a closure over buffers allocated once per
+ * problem, and its stages share them; the bench's engine run spends most of its time in this loop.
  */
 import type { DiffusionCounters, DiffusionOperator } from './diffusion.ts';
 import { expSmall, type PerCapitaRate, type ReactionCounters } from './reaction.ts';

@@ -1,3 +1,8 @@
+/**
+ * The finite-volume movement operator (residence-index form, methods note §9.1) and the split diffusion step
+ * kept for comparison. makeDiffusionStepper is one long factory on purpose: the step is a closure over buffers
+ * allocated once per grid (the fused tridiagonal 1-D path).
+ */
 import type { Grid } from './grid.ts';
 import { makeTridiagonalSolver } from './tridiagonal.ts';
 
