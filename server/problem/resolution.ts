@@ -23,7 +23,7 @@ const STEP_PER_RATE_TIME = 0.05;
  * Automatic time step as a fraction of 1/mortality for off-host mortality. Mortality is linear and sits in
  * the L-stable implicit operator of the coupled step (numerics/coupled.ts), so it needs no stability bound
  * and gets a looser accuracy bound than the growth rates. Measured cost on the demo scenarios: arrival times
- * change by ≤ 0.02 yr against a step four times smaller (tests/analysis/step-rule.test.ts); run time falls
+ * change by ≤ 0.02 yr against a step four times smaller (tests/problem/step-rule.test.ts); run time falls
  * 4–8× for options with a high mortality in the clearing.
  */
 const STEP_PER_EXACT_RATE_TIME = 0.5;

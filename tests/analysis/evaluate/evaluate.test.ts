@@ -11,7 +11,7 @@ import { taskHandler } from '../../../server/jobs/tasks.ts';
 import type { MapOptions, TaskRunner } from '../../../server/jobs/task-runner.ts';
 import { ENSEMBLE_CHUNK, chunkSize } from '../../../server/analysis/ensemble/chunks.ts';
 import { stripVolatile } from '../../golden/golden.ts';
-import { smallEnsembleScenario } from '../ensemble-fixture.ts';
+import { smallEnsembleScenario } from '../ensemble/ensemble-fixture.ts';
 
 /** A runner that records what it is asked and finishes the tasks in reverse order (results must still come back in payload order). */
 function reversingRunner(): TaskRunner & { calls: { kind: string; n: number }[] } {

@@ -1,4 +1,4 @@
-import type { ScenarioInput } from '../../server/model/scenario.ts';
+import type { ScenarioInput } from '../../../server/model/scenario.ts';
 
 /**
  * A small transect (8 km, 100 m cells, 0.05 yr steps) with an Allee pest and uncertain clearing behaviour:

@@ -1,11 +1,11 @@
-import { geometryBetween } from '../../server/problem/geometry.ts';
+import { geometryBetween } from '../../../server/problem/geometry.ts';
 import { describe, expect, it } from 'vitest';
-import { makeGrid } from '../../server/numerics/grid.ts';
-import { makeRng } from '../../server/numerics/rng.ts';
-import { BypassTracker, atLeastOne, makeSurvivalKernel, sourceWeights } from '../../server/analysis/bypass/bypass.ts';
-import { bypassLambda } from '../../server/analysis/ensemble/ensemble.ts';
-import { parseScenario, pointScenario } from '../../server/model/scenario.ts';
-import { expectAllClose } from '../helpers/close.ts';
+import { makeGrid } from '../../../server/numerics/grid.ts';
+import { makeRng } from '../../../server/numerics/rng.ts';
+import { BypassTracker, atLeastOne, makeSurvivalKernel, sourceWeights } from '../../../server/analysis/bypass/bypass.ts';
+import { bypassLambda } from '../../../server/analysis/ensemble/ensemble.ts';
+import { parseScenario, pointScenario } from '../../../server/model/scenario.ts';
+import { expectAllClose } from '../../helpers/close.ts';
 
 /**
  * Bypass probability checks. Formula: Poisson-process thinning in the stratified-dispersal framing of

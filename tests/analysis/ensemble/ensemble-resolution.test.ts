@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
-import { parseScenario, parseScenarioText, pointScenario } from '../../server/model/scenario.ts';
-import { coarsened, drawScenario, drawToleranceM, evaluatePoint, planEnsemble } from '../../server/analysis/ensemble/ensemble.ts';
-import { FIELDS } from '../../server/model/fields.ts';
+import { parseScenario, parseScenarioText, pointScenario } from '../../../server/model/scenario.ts';
+import { coarsened, drawScenario, drawToleranceM, evaluatePoint, planEnsemble } from '../../../server/analysis/ensemble/ensemble.ts';
+import { FIELDS } from '../../../server/model/fields.ts';
 import { smallEnsembleScenario } from './ensemble-fixture.ts';
 
 /**
@@ -40,7 +40,7 @@ describe(`ensemble draws at ${factor}× the automatic cell and step`, () => {
   });
 
   it('logistic pest (pulled front, the most resolution-sensitive): arrivals and crossings within 0.1 yr', () => {
-    const s = pointScenario(parseScenarioText(readFileSync(new URL('../../scenarios/clearing-delays.json', import.meta.url), 'utf8')));
+    const s = pointScenario(parseScenarioText(readFileSync(new URL('../../../scenarios/clearing-delays.json', import.meta.url), 'utf8')));
     const a = evaluatePoint(s);
     const b = evaluatePoint(coarsened(s, factor));
     const pairs: [number | null, number | null][] = [

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { makeGrid } from '../../server/numerics/grid.ts';
-import { ArrivalTracker, FrontTracker, leftFrontKm, makeProbe, probeValue, rightFrontKm } from '../../server/analysis/run/trackers.ts';
-import { expectAllClose } from '../helpers/close.ts';
+import { makeGrid } from '../../../server/numerics/grid.ts';
+import { ArrivalTracker, FrontTracker, leftFrontKm, makeProbe, probeValue, rightFrontKm } from '../../../server/analysis/run/trackers.ts';
+import { expectAllClose } from '../../helpers/close.ts';
 
 /**
  * Ahead of a front, density decays exponentially (the linearised leading edge, e.g. u ∝ e^{−s*(x − ct)} for

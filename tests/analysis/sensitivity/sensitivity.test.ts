@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest';
-import { makeRng } from '../../server/numerics/rng.ts';
-import { partialRankCorrelation, rankTransform, tCritical95 } from '../../server/analysis/sensitivity/sensitivity.ts';
-import { expectAllClose } from '../helpers/close.ts';
-import { hasPythonScipy, runPython } from '../helpers/python.ts';
+import { makeRng } from '../../../server/numerics/rng.ts';
+import { partialRankCorrelation, rankTransform, tCritical95 } from '../../../server/analysis/sensitivity/sensitivity.ts';
+import { expectAllClose } from '../../helpers/close.ts';
+import { hasPythonScipy, runPython } from '../../helpers/python.ts';
 
 const python = hasPythonScipy();
 if (!python) console.warn('SKIPPED: python3 with scipy not found; the PRCC cross-check against numpy/scipy is skipped');

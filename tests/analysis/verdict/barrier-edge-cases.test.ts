@@ -9,10 +9,10 @@
  * c = √(2rD)(½ − a) = 0.354 km/yr (Lewis & Kareiva 1993).
  */
 import { describe, expect, it } from 'vitest';
-import { parseScenario, pointScenario } from '../../server/model/scenario.ts';
-import { analyseBaseline, analyseOption } from '../../server/analysis/verdict/barrier.ts';
-import { evaluatePoint } from '../../server/analysis/ensemble/ensemble.ts';
-import { expectAllClose } from '../helpers/close.ts';
+import { parseScenario, pointScenario } from '../../../server/model/scenario.ts';
+import { analyseBaseline, analyseOption } from '../../../server/analysis/verdict/barrier.ts';
+import { evaluatePoint } from '../../../server/analysis/ensemble/ensemble.ts';
+import { expectAllClose } from '../../helpers/close.ts';
 
 const cubicPest = {
   name: 'synthetic pest (invented)',

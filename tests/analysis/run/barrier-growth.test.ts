@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { frontCannotAdvance } from '../../server/analysis/run/barrier-growth.ts';
-import type { PointGrowth } from '../../server/model/growth.ts';
+import { frontCannotAdvance } from '../../../server/analysis/run/barrier-growth.ts';
+import type { PointGrowth } from '../../../server/model/growth.ts';
 
 describe('frontCannotAdvance: does a front move into unbroken host forest at all?', () => {
   it('cubic: exactly when a ≥ ½, the sign of c = √(2rD)(½ − a) (McKean 1970; Lewis & Kareiva 1993)', () => {

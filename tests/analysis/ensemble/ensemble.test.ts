@@ -1,11 +1,11 @@
 import { describe, expect, it } from 'vitest';
-import { parseScenario, pointScenario } from '../../server/model/scenario.ts';
-import { drawValues, effectiveStandardError, evaluatePoint, planEnsemble, probability, runEnsemble, summariseEnsemble, wilsonInterval, type DrawOutcome } from '../../server/analysis/ensemble/ensemble.ts';
-import { expectAllClose } from '../helpers/close.ts';
-import { probabilityEstimate } from '../../server/report/format.ts';
-import { runEnsembleParallel } from '../../server/analysis/ensemble/ensemble-pool.ts';
-import { evaluateScenario } from '../../server/analysis/evaluate/evaluate.ts';
-import { FIELDS } from '../../server/model/fields.ts';
+import { parseScenario, pointScenario } from '../../../server/model/scenario.ts';
+import { drawValues, effectiveStandardError, evaluatePoint, planEnsemble, probability, runEnsemble, summariseEnsemble, wilsonInterval, type DrawOutcome } from '../../../server/analysis/ensemble/ensemble.ts';
+import { expectAllClose } from '../../helpers/close.ts';
+import { probabilityEstimate } from '../../../server/report/format.ts';
+import { runEnsembleParallel } from '../../../server/analysis/ensemble/ensemble-pool.ts';
+import { evaluateScenario } from '../../../server/analysis/evaluate/evaluate.ts';
+import { FIELDS } from '../../../server/model/fields.ts';
 import { smallEnsembleScenario } from './ensemble-fixture.ts';
 
 const strip = (r: { wallMs: number; threads: number }) => ({ ...r, wallMs: 0, threads: 0 });
