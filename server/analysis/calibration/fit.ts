@@ -227,8 +227,53 @@ export function fitSurvey(scenario: Scenario, table: SurveyTable, opts: FitOptio
   const point = pointScenario(scenario);
   const start: StartStretch = { fromKm: opts.start?.fromKm ?? scenario.infestation.fromKm, toKm: opts.start?.toKm ?? scenario.infestation.toKm, density: scenario.infestation.density };
   if (!(start.toKm > start.fromKm)) throw new InputError('FIT_INVALID', [{ path: 'start.toKm', value: start.toKm, message: `must be greater than start.fromKm (${start.fromKm})` }]);
+  const first = fitOnce(scenario, point, table, start, [], opts);
+  // A detection far ahead of every front the fitted model allows (its 90 % range) is set aside too, and the
+  // fit repeated without it: the front line alone misses such records when the front stalls at an edge.
+  const late = modelFlags(first, table);
+  if (!late.length) return first;
+  const second = fitOnce(scenario, point, table, start, late, opts);
+  return second;
+}
+
+/** Detection lies ahead of the farthest model front of its year (best fit and both ends of D's range). */
+const MODEL_FLAG_YEARS_OF_SPREAD = 3;
+const MODEL_FLAG_MIN_KM = 2;
+
+function modelFlags(fit: CalibrationResult, table: SurveyTable): FlaggedRecord[] {
+  const dir = fit.front.direction;
+  const fr = fit.model.fronts.filter((f) => f.bestKm !== null);
+  if (fr.length < 2) return [];
+  const rate = Math.abs(((fr[fr.length - 1].bestKm as number) - (fr[0].bestKm as number)) / (fr[fr.length - 1].year - fr[0].year || 1));
+  const threshold = Math.max(MODEL_FLAG_YEARS_OF_SPREAD * rate, MODEL_FLAG_MIN_KM);
+  const already = new Set(fit.flagged.map((f) => f.index));
+  const out: FlaggedRecord[] = [...fit.flagged];
+  table.records.forEach((r, i) => {
+    if (!r.detected || already.has(i) || r.atKm === undefined) return;
+    const f = fit.model.fronts.find((x) => x.year === r.year);
+    if (!f || f.bestKm === null) return;
+    const fronts = [f.bestKm, f.lowKm, f.highKm].filter((x): x is number => x !== null);
+    const farthest = dir === 1 ? Math.max(...fronts) : Math.min(...fronts);
+    const ahead = dir * (r.atKm - farthest);
+    if (ahead > threshold) {
+      out.push({
+        index: i,
+        row: table.rowLabels[i],
+        year: r.year,
+        atKm: r.atKm,
+        aheadKm: ahead,
+        sentence:
+          `${table.rowLabels[i]} (${r.year}, ${fmt(r.atKm)} km): a detection ${fmt(ahead)} km ahead of the farthest front the fitted model allows that year (${fmt(farthest)} km; about ${fmt(ahead / (rate || 1))} years of spread). ` +
+          'Natural spread cannot explain it: a possible human-carried introduction (firewood, logs, nursery stock). It is left out of the fit; confirm it on the ground and report it to the regulator.',
+      });
+    }
+  });
+  return out.length > fit.flagged.length ? out : [];
+}
+
+function fitOnce(scenario: Scenario, point: PointScenario, table: SurveyTable, start: StartStretch, setAside: FlaggedRecord[], opts: FitOptions): CalibrationResult {
   const { records, rowLabels } = table;
-  const front = fitFront(records, rowLabels, start);
+  const front = fitFront(records, rowLabels, start, setAside);
   const quick = quickEstimate(scenario, point, front);
   const flaggedSet = new Set(front.flagged.map((f) => f.index));
   const usedIdx = records.map((_, i) => i).filter((i) => !flaggedSet.has(i));

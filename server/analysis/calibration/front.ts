@@ -92,12 +92,19 @@ export function spreadDirection(records: readonly SurveyRecord[], start: { fromK
  * Front positions by year, the flagged introductions and the straight-line spread rate.
  * @param start - the infested stretch the spread starts from [km]
  * @param rowLabels - label of each record for messages
+ * @param setAside - records already flagged (e.g. by the full model): left out and listed first
  */
-export function fitFront(records: readonly SurveyRecord[], rowLabels: readonly string[], start: { fromKm: number; toKm: number }): FrontFit {
+export function fitFront(
+  records: readonly SurveyRecord[],
+  rowLabels: readonly string[],
+  start: { fromKm: number; toKm: number },
+  setAside: readonly FlaggedRecord[] = [],
+): FrontFit {
   const direction = spreadDirection(records, start);
   const edgeKm = direction === 1 ? start.toKm : start.fromKm;
   const use = records.map(() => true);
-  const flagged: FlaggedRecord[] = [];
+  for (const f of setAside) use[f.index] = false;
+  const flagged: FlaggedRecord[] = [...setAside];
   let years = yearFronts(records, use, direction, edgeKm);
   for (let guard = 0; guard < records.length; guard++) {
     const withDet = years.filter((y) => y.distanceKm !== null);
