@@ -299,7 +299,7 @@ function fitOnce(scenario: Scenario, point: PointScenario, table: SurveyTable, s
   const grid: GridParameter[] = gridParams.map((p) => ({ path: p, values: STRATA(nPts).map((u) => quantile(valueAtPath(scenario, p) as Distribution, u)) }));
 
   const lead = opts.leadYears ?? autoLead(front, quick);
-  const initialDiffusion = quick.diffusion && quick.diffusion > 0 ? quick.diffusion : point.pest.diffusionHost;
+  const initialDiffusion = [point.pest.diffusionHost, ...(quick.diffusion && quick.diffusion > 0 ? [quick.diffusion] : [])];
   const rec = recordArrays(used);
   const outcome = fitModel(point, rec, {
     start,
@@ -436,7 +436,7 @@ function summariseParameters(scenario: Scenario, outcome: ModelFitOutcome, grid:
     identifiable: !open,
     method: `profile likelihood of the full model (binomial detections; start year and detection chance profiled out)${carried}`,
     message: open
-      ? `not identifiable from these records: the fit is flat ${bestProfile.lowerOpen ? 'towards small' : 'towards large'} values (searched ${fmt(Math.min(...searched))}–${fmt(Math.max(...searched))} ${dSpec.unit}); the entered range is kept`
+      ? `not identifiable from these records: they do not bound it towards ${bestProfile.lowerOpen ? 'small' : 'large'} values (searched ${fmt(Math.min(...searched))}–${fmt(Math.max(...searched))} ${dSpec.unit}); the entered range is kept`
       : `${fmt(bestProfile.best.diffusion)} ${dSpec.unit}, 90 % range ${fmt(range[0])}–${fmt(range[1])}`,
     distribution: open ? null : lognormalFor(range),
   });

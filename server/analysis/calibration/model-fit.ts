@@ -30,8 +30,8 @@ export interface ModelFitSettings {
   firstYear: number;
   /** Last survey year. */
   lastYear: number;
-  /** D to centre the first search on [km²/yr] (the front estimate, or the scenario's central value). */
-  initialDiffusion: number;
+  /** D values the first search must cover [km²/yr] (the front estimate and the scenario's central value). */
+  initialDiffusion: number | number[];
   grid: GridParameter[];
   /** Cells and steps this many times the automatic choice at the initial D (default 2). */
   resolutionFactor?: number;
@@ -76,8 +76,9 @@ export function withValue(s: PointScenario, path: readonly (string | number)[], 
 
 /** Half-width of the first search in ln D: a factor of 5 either side of the initial D. */
 const FIRST_SPAN = Math.log(5);
-/** Points of the first grid in ln D. */
+/** Points of the first grid in ln D (a step of ln 1.5), and at most this many when anchors lie far apart. */
 const FIRST_POINTS = 9;
+const MAX_FIRST_POINTS = 21;
 /** Widening steps allowed when the best D is at the grid's end. */
 const MAX_WIDENINGS = 3;
 /** Bisection steps for each interval end (ln D to ≈ 0.3 % of a grid step). */
@@ -88,8 +89,9 @@ const LN_D_MAX = Math.log(FIELDS.diffusionHost.max);
 /**
  * Profiles ln D for one grid point.
  * @param evaluate - the log-likelihood of a run at D = e^x (nuisance parameters profiled out)
+ * @param initialDiffusion - D value(s) the first grid must cover [km²/yr]
  */
-export function profileDiffusion(evaluate: (diffusion: number) => Evaluation, initialDiffusion: number): Omit<ConditionalProfile, 'gridValues'> {
+export function profileDiffusion(evaluate: (diffusion: number) => Evaluation, initialDiffusion: number | number[]): Omit<ConditionalProfile, 'gridValues'> {
   const cache = new Map<number, Evaluation>();
   const at = (x: number): Evaluation => {
     const key = Math.round(x * 1e9);
@@ -98,8 +100,12 @@ export function profileDiffusion(evaluate: (diffusion: number) => Evaluation, in
     return e;
   };
   const h = (2 * FIRST_SPAN) / (FIRST_POINTS - 1);
-  const x0 = Math.min(LN_D_MAX - FIRST_SPAN, Math.max(LN_D_MIN + FIRST_SPAN, Math.log(initialDiffusion)));
-  let xs = Array.from({ length: FIRST_POINTS }, (_, k) => x0 - FIRST_SPAN + k * h);
+  // The first grid covers every anchor (front estimate, the scenario's value) with a factor of 5 to spare.
+  const anchors = (Array.isArray(initialDiffusion) ? initialDiffusion : [initialDiffusion]).filter((d) => d > 0 && Number.isFinite(d)).map(Math.log);
+  const a = Math.max(LN_D_MIN, Math.min(...anchors) - FIRST_SPAN);
+  const b = Math.min(LN_D_MAX, Math.max(...anchors) + FIRST_SPAN);
+  const nFirst = Math.min(MAX_FIRST_POINTS, Math.max(FIRST_POINTS, Math.ceil((b - a) / h) + 1));
+  let xs = Array.from({ length: nFirst }, (_, k) => a + ((b - a) * k) / (nFirst - 1));
   xs.forEach(at);
   for (let w = 0; w < MAX_WIDENINGS; w++) {
     const best = argmax(xs.map((x) => at(x).logLik));
@@ -172,7 +178,9 @@ export function fitModel(s: PointScenario, rec: RecordArrays, settings: ModelFit
   const factor = settings.resolutionFactor ?? 2;
   const maxRuns = settings.maxRuns ?? 4000;
   // One grid and step for every trial value: the automatic choice at the initial D and the largest grid values.
-  let ref = withValue(s, ['pest', 'diffusionHost'], Math.min(settings.initialDiffusion, s.pest.diffusionHost));
+  const anchors = [settings.initialDiffusion].flat().filter((d) => d > 0 && Number.isFinite(d));
+  // The geometric middle of the anchors: neither a wild front estimate nor a wild guess sets the grid alone.
+  let ref = withValue(s, ['pest', 'diffusionHost'], Math.exp(anchors.reduce((a, d) => a + Math.log(d), 0) / anchors.length));
   for (const g of settings.grid) ref = withValue(ref, g.path, g.path[g.path.length - 1] === 'rate' || g.path[g.path.length - 1] === 'birthRate' ? Math.max(...g.values) : g.values[Math.floor(g.values.length / 2)]);
   const auto = chooseResolution(ref, buildLayout(ref));
   const resolution: Resolution = { ...auto, cellKm: auto.cellKm * (auto.autoCell ? factor : 1), stepYears: auto.stepYears * (auto.autoStep ? factor : 1) };

@@ -111,7 +111,7 @@ describe('records the fit cannot use', () => {
     const d = fit.parameters[0];
     expect(d.identifiable).toBe(false);
     expect(d.interval90).toBeNull();
-    expect(d.message).toMatch(/not identifiable .*flat towards small values/);
+    expect(d.message).toMatch(/not identifiable .*do not bound it towards small values/);
     expect(fit.quick.diffusion).toBeNull();
   });
 });
