@@ -163,9 +163,30 @@ export interface NuisanceFit {
 const logit = (p: number) => Math.log(p / (1 - p));
 const expit = (x: number) => 1 / (1 + Math.exp(-x));
 
-/** Best detection chance for fixed densities (golden section on logit q ∈ [−6, 6]). */
-function bestChance(u: Float64Array, rec: RecordArrays, level: number): { q: number; ll: number } {
-  const m = goldenSectionMin((x) => -logLikelihood(u, rec, expit(x), level), -6, 6, 1e-3, 40);
+/**
+ * Best detection chance for fixed densities (golden section on logit q ∈ [−6, 6]). The density part
+ * 1 − e^(−u/L) of each record does not depend on q, so it is computed once (`sat`) and each trial q costs one
+ * logarithm per record — the same arithmetic as `logLikelihood`, rearranged.
+ */
+function bestChance(u: Float64Array, rec: RecordArrays, level: number, sat: Float64Array): { q: number; ll: number } {
+  const n = u.length;
+  let unitEffort = true;
+  for (let i = 0; i < n; i++) {
+    sat[i] = -Math.expm1(-Math.max(0, u[i]) / level);
+    if (rec.effort[i] !== 1) unitEffort = false;
+  }
+  const eps = STRAY_DETECTION_RATE;
+  const ll = (q: number): number => {
+    let s = 0;
+    for (let i = 0; i < n; i++) {
+      const single = q * sat[i];
+      const found = unitEffort || rec.effort[i] === 1 ? single : -Math.expm1(rec.effort[i] * Math.log1p(-Math.min(single, 1 - 1e-15)));
+      const p = eps + (1 - eps) * found;
+      s += rec.detected[i] ? Math.log(p) : Math.log1p(-p);
+    }
+    return s;
+  };
+  const m = goldenSectionMin((x) => -ll(expit(x)), -6, 6, 2e-3, 40);
   return { q: expit(m.x), ll: -m.value };
 }
 
@@ -175,7 +196,8 @@ function bestChance(u: Float64Array, rec: RecordArrays, level: number): { q: num
  */
 export function fitNuisance(series: PositionSeries, rec: RecordArrays, level: number, earliest: number, latest: number): NuisanceFit {
   const u = new Float64Array(rec.year.length);
-  const at = (t0: number) => bestChance(densitiesAtStart(series, rec, t0, u), rec, level);
+  const sat = new Float64Array(rec.year.length);
+  const at = (t0: number) => bestChance(densitiesAtStart(series, rec, t0, u), rec, level, sat);
   const step = 0.5;
   const n = Math.max(1, Math.ceil((latest - earliest) / step));
   let bestT = latest;
@@ -190,7 +212,7 @@ export function fitNuisance(series: PositionSeries, rec: RecordArrays, level: nu
   }
   const lo = Math.max(earliest, bestT - step);
   const hi = Math.min(latest, bestT + step);
-  const m = goldenSectionMin((t0) => -at(t0).ll, lo, hi, 0.01, 30);
+  const m = goldenSectionMin((t0) => -at(t0).ll, lo, hi, 0.02, 30);
   if (-m.value > best.ll) {
     bestT = m.x;
     best = at(m.x);
