@@ -197,7 +197,9 @@ export function parameterRows(scenario: Scenario, raw?: unknown, used?: RunResul
   const add = (group: string, path: (string | number)[], spec: FieldSpec | null, label?: string, unit?: string) => {
     const v = valueAt(scenario, path);
     if (v === undefined) return;
-    rows.push({ group, label: label ?? spec?.label ?? String(path[path.length - 1]), value: quantityText(v), unit: unit ?? (spec?.unit || '–'), source: sourceText(spec, path, v, ctx) });
+    // A value fitted to survey records says so ("fitted to 37 detections, 2019–2025"; analysis/calibration/fit.ts).
+    const fitted = scenario.calibration?.paths.includes(path.join('.')) ? scenario.calibration.sentence : undefined;
+    rows.push({ group, label: label ?? spec?.label ?? String(path[path.length - 1]), value: quantityText(v), unit: unit ?? (spec?.unit || '–'), source: fitted ?? sourceText(spec, path, v, ctx) });
   };
   const pest = 'Pest profile';
   add(pest, ['pest', 'diffusionHost'], FIELDS.diffusionHost);
