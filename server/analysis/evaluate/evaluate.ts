@@ -14,6 +14,7 @@ import { runEnsembleOn } from '../ensemble/chunks.ts';
 import type { MosaicResult } from '../result.ts';
 import type { TaskRunner } from '../../jobs/task-runner.ts';
 import { makeInlineRunner } from '../../jobs/inline-runner.ts';
+import { defaultThreads, makePoolRunner } from '../../jobs/pool-runner.ts';
 import { analyseBypass, singleRunShare } from '../bypass/analyse-bypass.ts';
 
 export interface EvaluateOptions {
@@ -139,8 +140,6 @@ export function evaluateProblem(scenario: Scenario, p: Problem, opts: EvaluateOp
  */
 export async function evaluateScenarioParallel(scenario: Scenario, opts: EvaluateOptions & { threads?: number } = {}): Promise<ResultDocument> {
   if (!scenario.uncertainty) return evaluate(scenario, opts);
-  // Loaded on demand: the worker pool (piscina) costs start-up time that evaluations without an ensemble never need.
-  const { defaultThreads, makePoolRunner } = await import('../../jobs/pool-runner.ts');
   const runner = makePoolRunner({ threads: Math.min(opts.threads ?? defaultThreads(), scenario.uncertainty.draws) });
   try {
     return await evaluate(scenario, { ...opts, runner });
