@@ -82,3 +82,9 @@ for (const signal of ['SIGINT', 'SIGTERM'] as const) {
       .then(() => process.exit(0));
   });
 }
+// Started by a wrapper (npm, a shell) that went away without passing its signal on: stop as on SIGTERM
+// rather than keep serving as an orphan nobody can stop with Ctrl-C.
+const parentPid = process.ppid;
+setInterval(() => {
+  if (!stopping && process.ppid !== parentPid) process.emit('SIGTERM');
+}, 1_000).unref();
