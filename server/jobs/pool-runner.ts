@@ -24,6 +24,8 @@ export interface PoolRunnerOptions {
   threads?: number;
   /** Keep idle threads this long [ms] (default 30 s). */
   idleTimeoutMs?: number;
+  /** Threads started at once and kept (default 0: started on demand). A queue worker keeps all of them. */
+  minThreads?: number;
 
 }
 
@@ -48,7 +50,7 @@ export function makePoolRunner(opts: PoolRunnerOptions = {}): PoolRunner {
   const threads = Math.max(1, Math.floor(opts.threads ?? defaultThreadCount()));
   const pool = new Piscina<PoolTask, unknown>({
     filename: new URL('./pool-worker.ts', import.meta.url).href,
-    minThreads: 0,
+    minThreads: Math.min(threads, Math.max(0, Math.floor(opts.minThreads ?? 0))),
     maxThreads: threads,
     idleTimeout: opts.idleTimeoutMs ?? 30_000,
     execArgv: workerExecArgv(),

@@ -18,7 +18,7 @@ import type { Redis } from 'ioredis';
 import { TOOL } from '../version.ts';
 import { fromJsonSafe, toJsonSafe } from './json-safe.ts';
 import { cancelChannel, jobIdOf, queueName, redactedUrl, redisConnection } from './queue-config.ts';
-import { CancelledError, type MapOptions, type RunnerHealth, type TaskKind, type TaskRunner } from './task-runner.ts';
+import { CancelledError, DETACH, type MapOptions, type RunnerHealth, type TaskKind, type TaskRunner } from './task-runner.ts';
 
 /** What a queue job carries. */
 export interface QueueJobData {
@@ -158,7 +158,7 @@ export async function makeQueueRunner(opts: QueueRunnerOptions): Promise<QueueRu
     workers: () => workerCount,
     health(): RunnerHealth {
       if (!healthy) return { ok: false, message: `Queue unavailable, retrying (${problem}). Accepted work is kept.` };
-      if (workerCount === 0) return { ok: true, message: 'No queue worker is connected: the work waits in the queue until one starts (npm run worker).' };
+      if (workerCount === 0) return { ok: false, message: 'No queue worker is connected: the work waits in the queue until one starts (npm run worker).' };
       return { ok: true, message: `${workerCount} queue workers` };
     },
     async map<P, R>(kind: TaskKind, payloads: readonly P[], o: MapOptions<R> = {}): Promise<R[]> {
@@ -197,7 +197,12 @@ export async function makeQueueRunner(opts: QueueRunnerOptions): Promise<QueueRu
         for (const id of open) void queue.remove(id).catch(() => 0); // waiting jobs go; active ones are locked by their worker
         void pub.publish(cancelChannel(name), JSON.stringify(open)).catch(() => 0);
       };
-      const onAbort = stopOpen;
+      const onAbort = () => {
+        if (o.signal?.reason !== DETACH) return stopOpen();
+        // The caller is stopping: stop waiting, leave the tasks to the workers for its next start.
+        cancelled = true;
+        dropOwn();
+      };
       o.signal?.addEventListener('abort', onAbort, { once: true });
       try {
         // Adding waits (retrying) while Redis is away; the reconcile pass re-adds whatever is lost later.

@@ -43,7 +43,8 @@ const threads = Math.floor(positive('THREADS', defaultThreadCount()));
 const lockMs = positive('QUEUE_LOCK_SECONDS', 30) * 1000;
 const name = queueName();
 const shown = redactedUrl(url);
-const pool = makePoolRunner({ threads });
+// All threads started (and their code loaded) before the first task arrives.
+const pool = makePoolRunner({ threads, minThreads: threads });
 const active = new Map<string, AbortController>();
 
 async function processTask(job: Job<QueueJobData>): Promise<unknown> {

@@ -66,6 +66,13 @@ export interface TaskRunner {
   health?(): RunnerHealth;
 }
 
+/**
+ * Abort reason meaning "the caller goes away, the work may go on": a server shutting down aborts with it.
+ * `map` still rejects at once, but a distributed runner leaves queued and running tasks in place, for the
+ * restarted caller to collect (their ids are deterministic); a local runner stops them as for a cancel.
+ */
+export const DETACH = 'detach';
+
 /** Thrown by `map` when its signal was aborted before every task finished. */
 export class CancelledError extends Error {
   constructor(message = 'cancelled') {

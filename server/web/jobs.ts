@@ -17,7 +17,7 @@ import { createRequire } from 'node:module';
 import { pathToFileURL } from 'node:url';
 import { LimitError, type Problem } from '../model/errors.ts';
 import type { Scenario } from '../model/scenario.ts';
-import { CancelledError, type TaskRunner } from '../jobs/task-runner.ts';
+import { CancelledError, DETACH, type TaskRunner } from '../jobs/task-runner.ts';
 import { runEvaluation } from '../jobs/evaluation-job.ts';
 import { parseSafe, stringifySafe } from '../jobs/json-safe.ts';
 import type { StoredJob } from './job-store.ts';
@@ -215,11 +215,17 @@ export function makeJobRunner(opts: JobRunnerOptions): JobRunner {
     job.attemptStart = Date.now();
     job.attemptFraction = job.view.fraction;
     update(job, { status: 'running', stage: job.view.resumed ? 'taking up again after the restart' : 'starting' });
-    const wall = setTimeout(() => {
-      job.stopReason ??= 'timeout';
-      abort.abort();
-    }, opts.wallSeconds * 1000);
-    wall.unref();
+    // The wall-time limit counts computing, from the first sign of it (a task reporting progress or a
+    // result), not the wait for a free thread or queue worker.
+    let wall: NodeJS.Timeout | undefined;
+    const computing = () => {
+      if (wall || abort.signal.aborted) return;
+      wall = setTimeout(() => {
+        job.stopReason ??= 'timeout';
+        abort.abort();
+      }, opts.wallSeconds * 1000);
+      wall.unref();
+    };
     const id = job.view.id;
     try {
       const point = store.jobs.point(id);
@@ -227,9 +233,16 @@ export function makeJobRunner(opts: JobRunnerOptions): JobRunner {
       const out = await runEvaluation(job.scenario, runner, {
         signal: abort.signal,
         checkpoint: { point: point === undefined ? undefined : parseSafe(point), chunks },
-        onPoint: (d) => store.jobs.savePoint(id, stringifySafe(d)),
-        onChunk: (k, d) => store.jobs.saveChunk(id, k, stringifySafe(d)),
+        onPoint: (d) => {
+          computing();
+          store.jobs.savePoint(id, stringifySafe(d));
+        },
+        onChunk: (k, d) => {
+          computing();
+          store.jobs.saveChunk(id, k, stringifySafe(d));
+        },
         onProgress: (fraction, stage) => {
+          computing();
           if (job.view.status === 'running') update(job, { fraction, stage }, false);
         },
       });
@@ -253,7 +266,7 @@ export function makeJobRunner(opts: JobRunnerOptions): JobRunner {
         update(job, { status: 'failed', stage: 'failed', message: 'The evaluation failed unexpectedly; the details were logged on the server.' });
       }
     } finally {
-      clearTimeout(wall);
+      if (wall) clearTimeout(wall);
       job.abort = undefined;
       if (TERMINAL.has(job.view.status)) {
         try {
@@ -403,7 +416,7 @@ export function makeJobRunner(opts: JobRunnerOptions): JobRunner {
       for (const job of runningIds()) {
         if (job.view.status === 'cancelling') continue; // a cancel under way finishes as a cancel
         job.stopReason = 'shutdown';
-        job.abort?.abort();
+        job.abort?.abort(DETACH);
       }
       const done = Promise.all(live.map((j) => j.done).filter(Boolean));
       await Promise.race([done, new Promise((r) => setTimeout(r, graceMs).unref())]);

@@ -128,6 +128,69 @@ describe('durable jobs (embedded)', () => {
   });
 });
 
+describe('cancel and wall-time limit on a big grid (regression: 15–20 s on 80 000 cells)', () => {
+  /** 40 km at 0.5 m: 80 000 cells. */
+  const bigRaw = () =>
+    smallEnsembleScenario({
+      uncertainty: undefined,
+      transport: undefined,
+      barrier: undefined,
+      transect: { segments: [{ habitat: 'host-forest', lengthKm: 40, stocking: 1, stemsPerHa: 400 }] },
+      horizonYears: 30,
+      numerics: { cellM: 0.5, stepYears: 0.01 },
+    });
+  const waitRunning = async (a: Awaited<ReturnType<typeof app>>, id: string) => {
+    for (let i = 0; i < 400; i++) {
+      const s = (await a.inject(`/api/evaluations/${id}`)).json();
+      if (s.status === 'running') return;
+      if (s.status !== 'queued') throw new Error(`did not start: ${JSON.stringify(s)}`);
+      await new Promise((r) => setTimeout(r, 25));
+    }
+    throw new Error('never started');
+  };
+  const waitFinished = async (a: Awaited<ReturnType<typeof app>>, id: string) => {
+    for (;;) {
+      const s = (await a.inject(`/api/evaluations/${id}`)).json();
+      if (s.finished) return s;
+      await new Promise((r) => setTimeout(r, 25));
+    }
+  };
+
+  it('Cancel acts within about a second', async () => {
+    const a = await app(newDir(), { limits: { maxCells: 100_000 } });
+    try {
+      const posted = await a.inject({ method: 'POST', url: '/api/evaluations', payload: { scenario: bigRaw() } });
+      expect(posted.statusCode, posted.body).toBe(202);
+      const id = posted.json().id as string;
+      await waitRunning(a, id);
+      await new Promise((r) => setTimeout(r, 700));
+      const t0 = Date.now();
+      await a.inject({ method: 'POST', url: `/api/evaluations/${id}/cancel` });
+      const s = await waitFinished(a, id);
+      expect(s.status).toBe('cancelled');
+      expect(Date.now() - t0).toBeLessThan(1_500);
+    } finally {
+      await a.close();
+    }
+  });
+
+  it('the wall-time limit stops within about a second of the limit and names the cells', async () => {
+    const a = await app(newDir(), { limits: { maxCells: 100_000, wallSeconds: 2 } });
+    try {
+      const id = (await a.inject({ method: 'POST', url: '/api/evaluations', payload: { scenario: bigRaw() } })).json().id as string;
+      await waitRunning(a, id);
+      const t0 = Date.now();
+      const s = await waitFinished(a, id);
+      expect(s.status).toBe('failed');
+      expect(Date.now() - t0).toBeLessThan(4_000); // 2 s limit + stop; generous for the shared machine
+      expect(s.message).toMatch(/^Stopped after 2 s/);
+      expect(s.problems[0].path).toBe('numerics.cellM');
+    } finally {
+      await a.close();
+    }
+  });
+});
+
 describe('run page status texts', () => {
   const base: JobView = {
     id: 'x', status: 'queued', fraction: 0, stage: 'waiting for a free worker', title: 't', scenarioRef: null, createdAt: '', resultId: null,
