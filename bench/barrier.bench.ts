@@ -7,7 +7,7 @@
  * and without recorded profiles; stage times from the fastest repetition.
  */
 import { parseScenario, pointScenario, type PointScenario } from '../server/model/scenario.ts';
-import { analyseBaseline, analyseOption, criticalWidth } from '../server/analysis/barrier.ts';
+import { analyseBaseline, analyseOption, criticalWidth } from '../server/analysis/verdict/barrier.ts';
 
 const FLOOR_MS = 5000;
 

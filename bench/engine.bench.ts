@@ -4,9 +4,9 @@
  * Bench (b) lives in scipy-reference.bench.ts.
  */
 import { parseScenario, pointScenario } from '../server/model/scenario.ts';
-import { runLayout } from '../server/analysis/simulate.ts';
-import { buildLayout } from '../server/analysis/layout.ts';
-import { evaluateScenario } from '../server/analysis/evaluate.ts';
+import { runLayout } from '../server/analysis/run/simulate.ts';
+import { buildLayout } from '../server/problem/layout.ts';
+import { evaluateScenario } from '../server/analysis/evaluate/evaluate.ts';
 import { transect100km } from './problems.ts';
 
 const scenario = parseScenario(transect100km());

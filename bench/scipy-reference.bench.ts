@@ -9,11 +9,11 @@
 import { spawnSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
 import { parseScenario, pointScenario } from '../server/model/scenario.ts';
-import { runLayout, type RunOutput } from '../server/analysis/simulate.ts';
-import { buildLayout } from '../server/analysis/layout.ts';
-import { chooseResolution, discretise } from '../server/analysis/discretise.ts';
+import { runLayout, type RunOutput } from '../server/analysis/run/simulate.ts';
+import { buildLayout } from '../server/problem/layout.ts';
+import { chooseResolution, discretise } from '../server/problem/discretise.ts';
 import { makeDiffusionOperator } from '../server/numerics/diffusion.ts';
-import { rightFrontKm } from '../server/analysis/trackers.ts';
+import { rightFrontKm } from '../server/analysis/run/trackers.ts';
 import type { Grid } from '../server/numerics/grid.ts';
 import { transect100km } from './problems.ts';
 

@@ -29,6 +29,7 @@ import runPages from './web/routes/run-pages.ts';
 import resultPages from './web/routes/result-pages.ts';
 import referencePages from './web/routes/reference-pages.ts';
 import apiRoutes from './web/routes/api.ts';
+import fitPages from './web/routes/fit-pages.ts';
 import type { WebDeps } from './web/deps.ts';
 
 export interface AppOptions {
@@ -126,5 +127,6 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
   await app.register(resultPages, deps);
   await app.register(referencePages, deps);
   await app.register(apiRoutes, deps);
+  await app.register(fitPages, deps);
   return app;
 }

@@ -6,7 +6,7 @@ import { accessSync, constants, readFileSync, renameSync, statSync, writeFileSyn
 import { dirname, basename, join } from 'node:path';
 import { parseScenarioText } from './model/scenario.ts';
 import { InputError, formatProblems } from './model/errors.ts';
-import { evaluateScenarioParallel } from './analysis/evaluate-parallel.ts';
+import { evaluateScenarioParallel } from './analysis/evaluate/evaluate.ts';
 import { textSummary } from './report/text-summary.ts';
 import { renderBriefing } from './report/briefing.ts';
 

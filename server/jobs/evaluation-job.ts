@@ -9,9 +9,9 @@
  * Task keys are deterministic (tool version + scenario fingerprint + piece), so a distributed runner that
  * is handed the same piece twice (a retry, a restarted server) computes it once.
  */
-import { planEnsemble } from '../analysis/ensemble.ts';
+import { planEnsemble } from '../analysis/ensemble/ensemble.ts';
 import type { ResultDocument } from '../analysis/result.ts';
-import { singleRunShare } from '../analysis/uncertainty.ts';
+import { singleRunShare } from '../analysis/bypass/analyse-bypass.ts';
 import { fingerprint } from '../model/canonical.ts';
 import type { Problem } from '../model/errors.ts';
 import type { Scenario } from '../model/scenario.ts';
@@ -83,8 +83,8 @@ export async function runEvaluation(scenario: Scenario, runner: TaskRunner, hook
   const partial = new Map<number, number>();
   const drawsDone = () => {
     let n = 0;
-    for (const k of done.keys()) n += chunks[k].to - chunks[k].from;
-    for (const [k, f] of partial) n += f * (chunks[k].to - chunks[k].from);
+    for (const k of done.keys()) n += chunks[k].length;
+    for (const [k, f] of partial) n += f * chunks[k].length;
     return n;
   };
   const report = () => {
@@ -97,7 +97,7 @@ export async function runEvaluation(scenario: Scenario, runner: TaskRunner, hook
   if (missing.length) {
     await runner.map<ChunkTask, unknown>(
       'ensemble-chunk',
-      missing.map((k) => ({ scenario, ...chunks[k] })),
+      missing.map((k) => ({ scenario, indices: chunks[k] })),
       {
         signal,
         key: `${key}:ens${size}`,

@@ -1,26 +1,27 @@
 /**
- * The task kinds of one evaluation, registered for every runner (inline, local pool, queue workers):
+ * The task kinds of one evaluation besides the ensemble's 'ensemble-chunk' (registered by the analysis in
+ * server/analysis/ensemble/chunks.ts), so that a web job can run every stage of an evaluation on a
+ * runner — off the server's thread, resumable stage by stage:
  *
- * - 'evaluation-point': the central-value analysis (baseline, each option, mosaics) of a scenario; the
- *   ensemble, when the scenario has one, is left to the next two kinds;
- * - 'ensemble-chunk': draws `from` … `to − 1` of the scenario's ensemble (each draw depends only on the
- *   scenario, the seed and its index, so any split over tasks gives the same numbers);
- * - 'evaluation-finish': the ensemble summary and the bypass section from every draw, added to the document.
+ * - 'evaluation-point': the central-value analysis (baseline, each option, mosaics). For a scenario with
+ *   an ensemble it is the analysis of the scenario without its uncertainty block; 'evaluation-finish' then
+ *   puts the document together as the evaluate orchestrator does;
+ * - 'evaluation-finish': the ensemble summary from every draw, the bypass section (which uses it) and the
+ *   document header of the full scenario, in the orchestrator's order (server/analysis/evaluate/evaluate.ts).
  *
- * Adapter over today's analysis functions (evaluateScenario, planEnsemble/evaluateDraw, summariseEnsemble,
- * analyseBypass), in the order evaluateScenarioParallel calls them, until the analysis's own evaluate
- * orchestrator registers these kinds itself. Results are made JSON-safe (json-safe.ts) so they keep every
- * double across processes and on disk.
+ * Results are made JSON-safe (json-safe.ts) so they keep every double across processes and on disk.
  */
-import { evaluateScenario } from '../analysis/evaluate.ts';
-import { evaluateDraw, planEnsemble, summariseEnsemble, type DrawOutcome, type EnsemblePlan } from '../analysis/ensemble.ts';
-import { analyseBypass } from '../analysis/uncertainty.ts';
+import { documentHeader, evaluateScenario } from '../analysis/evaluate/evaluate.ts';
+import { planEnsemble, summariseEnsemble, type DrawOutcome, type EnsemblePlan } from '../analysis/ensemble/ensemble.ts';
+import { analyseBypass } from '../analysis/bypass/analyse-bypass.ts';
 import type { ResultDocument } from '../analysis/result.ts';
+import { buildProblem } from '../problem/problem.ts';
+import { resolve } from '../problem/resolve.ts';
 import { canonicalJson } from '../model/canonical.ts';
 import { InputError, type Problem } from '../model/errors.ts';
-import { pointScenario, type Scenario } from '../model/scenario.ts';
+import type { Scenario } from '../model/scenario.ts';
 import { fromJsonSafe, toJsonSafe } from './json-safe.ts';
-import { CancelledError, type TaskContext } from './task-runner.ts';
+import { CancelledError, NO_CONTEXT, type TaskContext } from './task-runner.ts';
 import { registerTask } from './tasks.ts';
 
 export interface PointTask {
@@ -31,19 +32,17 @@ export type PointOutcomeMessage =
   | { kind: 'invalid'; code: string; problems: Problem[] }
   | { kind: 'cancelled' };
 
+/** Payload of the analysis's 'ensemble-chunk' kind: the draws `indices` of the scenario's ensemble. */
 export interface ChunkTask {
   scenario: Scenario;
-  /** First draw index (inclusive). */
-  from: number;
-  /** Last draw index (exclusive). */
-  to: number;
+  indices: number[];
 }
 
 export interface FinishTask {
   scenario: Scenario;
   /** The point document (JSON-safe). */
   document: unknown;
-  /** Every draw in index order (JSON-safe DrawOutcome[]). */
+  /** Every draw in index order (DrawOutcome[], JSON-safe or not). */
   draws: unknown;
   /** Workers that shared the draws (reported in the document). */
   threads: number;
@@ -51,22 +50,24 @@ export interface FinishTask {
   wallMs: number;
 }
 
-/** Draws per ensemble chunk: a fixed rule of the draw count (never of the worker count), so chunk ids are stable. */
+/**
+ * Draws per ensemble chunk: a fixed rule of the draw count (never of the worker count), so the chunks —
+ * and the queue's task ids made from them — are the same whoever computes them and after a restart.
+ */
 export function chunkSize(draws: number): number {
   return Math.min(16, Math.max(1, Math.ceil(draws / 32)));
 }
 
-/** The chunks [from, to) of an ensemble of `draws` draws. */
-export function ensembleChunks(draws: number): { from: number; to: number }[] {
+/** The chunks of an ensemble of `draws` draws, as lists of draw indices. */
+export function ensembleChunks(draws: number): number[][] {
   const size = chunkSize(draws);
-  const out: { from: number; to: number }[] = [];
-  for (let from = 0; from < draws; from += size) out.push({ from, to: Math.min(draws, from + size) });
+  const out: number[][] = [];
+  for (let from = 0; from < draws; from += size) out.push(Array.from({ length: Math.min(size, draws - from) }, (_, j) => from + j));
   return out;
 }
 
 let cachedKey = '';
 let cachedPlan: EnsemblePlan | null = null;
-/** The ensemble plan of a scenario (the Latin hypercube is rebuilt once per scenario and thread). */
 function planOf(scenario: Scenario): EnsemblePlan {
   const key = canonicalJson(scenario);
   if (key !== cachedKey || !cachedPlan) {
@@ -76,10 +77,10 @@ function planOf(scenario: Scenario): EnsemblePlan {
   return cachedPlan;
 }
 
-export function runPoint(task: PointTask, ctx: TaskContext): PointOutcomeMessage {
+export function runPoint(task: PointTask, ctx: TaskContext = NO_CONTEXT): PointOutcomeMessage {
   try {
-    const document = evaluateScenario(task.scenario, {
-      ensemble: 'skip',
+    const { uncertainty: _ensembleRunsSeparately, ...single } = task.scenario;
+    const document = evaluateScenario(single as Scenario, {
       shouldCancel: () => ctx.shouldCancel(),
       onProgress: (f, stage) => ctx.progress(Math.min(f, 0.999), stage === 'done' ? 'central values done' : stage),
     });
@@ -91,33 +92,24 @@ export function runPoint(task: PointTask, ctx: TaskContext): PointOutcomeMessage
   }
 }
 
-export function runChunk(task: ChunkTask, ctx: TaskContext): unknown {
-  const plan = planOf(task.scenario);
-  const out: DrawOutcome[] = [];
-  for (let i = task.from; i < task.to; i++) {
-    let cancelled = ctx.shouldCancel();
-    if (!cancelled) {
-      const d = evaluateDraw(task.scenario, plan, i, () => (cancelled = ctx.shouldCancel()));
-      if (!cancelled) out.push(d);
-    }
-    // A chunk is all or nothing: a partial chunk must never be stored as finished.
-    if (cancelled) throw new CancelledError();
-    ctx.progress((i + 1 - task.from) / (task.to - task.from), `draw ${i + 1}`);
-  }
-  return toJsonSafe(out);
-}
-
-export function runFinish(task: FinishTask, ctx: TaskContext): unknown {
-  const doc = fromJsonSafe<ResultDocument>(task.document);
+export function runFinish(task: FinishTask, ctx: TaskContext = NO_CONTEXT): unknown {
+  const single = fromJsonSafe<ResultDocument>(task.document);
   const draws = fromJsonSafe<DrawOutcome[]>(task.draws);
-  const plan = planOf(task.scenario);
-  const uncertainty = summariseEnsemble(task.scenario, plan, draws, { status: 'completed', threads: task.threads, wallMs: task.wallMs });
-  const bypass = analyseBypass(pointScenario(task.scenario), doc.options, uncertainty, () => ctx.shouldCancel());
+  const uncertainty = summariseEnsemble(task.scenario, planOf(task.scenario), draws, { status: 'completed', threads: task.threads, wallMs: task.wallMs });
+  const bypass = analyseBypass(buildProblem(resolve(task.scenario)), single.options, uncertainty, () => ctx.shouldCancel());
   if (ctx.shouldCancel()) throw new CancelledError();
-  const { cautions, ...rest } = doc;
-  return toJsonSafe({ ...rest, uncertainty, ...(bypass ? { bypass } : {}), cautions });
+  const document: ResultDocument = {
+    ...documentHeader(task.scenario, single.runAt),
+    model: single.model,
+    baseline: single.baseline,
+    options: single.options,
+    ...(single.mosaics?.length ? { mosaics: single.mosaics } : {}),
+    uncertainty,
+    ...(bypass ? { bypass } : {}),
+    cautions: single.cautions,
+  };
+  return toJsonSafe(document);
 }
 
 registerTask('evaluation-point', runPoint);
-registerTask('ensemble-chunk', runChunk);
 registerTask('evaluation-finish', runFinish);

@@ -10,11 +10,10 @@
 import { setMaxListeners } from 'node:events';
 import { MessageChannel } from 'node:worker_threads';
 import { availableParallelism } from 'node:os';
-import { createRequire } from 'node:module';
-import { pathToFileURL } from 'node:url';
 import { Piscina } from 'piscina';
 import { CancelledError, type MapOptions, type TaskKind, type TaskRunner } from './task-runner.ts';
 import type { PoolTask } from './pool-worker.ts';
+import { workerExecArgv } from './worker-loader.ts';
 
 /** Time a cancelled task gets to stop by itself before its thread is terminated [ms]. */
 export const CANCEL_GRACE_MS = 400;
@@ -34,12 +33,8 @@ export function defaultThreadCount(): number {
   return Math.max(1, availableParallelism());
 }
 
-/** Node options for worker threads: TypeScript sources need the tsx loader (inherited under tsx, added under vitest). */
-export function workerExecArgv(): string[] {
-  const inherited = process.execArgv;
-  if (inherited.some((a) => a.includes('tsx'))) return inherited;
-  return [...inherited, '--import', pathToFileURL(createRequire(import.meta.url).resolve('tsx')).href];
-}
+/** The same, under the name the analysis uses. */
+export const defaultThreads = defaultThreadCount;
 
 export interface PoolRunner extends TaskRunner {
   /** Tasks running or waiting for a thread now. */

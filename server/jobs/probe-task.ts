@@ -4,7 +4,7 @@
  * come back in order, and that cancel and stalled-worker retries behave (a probe with `ignoreCancel`
  * stands for a long computation that does not poll).
  */
-import { CancelledError } from './task-runner.ts';
+import { CancelledError, NO_CONTEXT } from './task-runner.ts';
 import { registerTask } from './tasks.ts';
 
 export interface ProbeTask {
@@ -20,7 +20,7 @@ export interface ProbeResult {
   pid: number;
 }
 
-registerTask('runner-probe', (p: ProbeTask, ctx): ProbeResult => {
+registerTask('runner-probe', (p: ProbeTask, ctx = NO_CONTEXT): ProbeResult => {
   if (p.fail) throw new Error(p.fail);
   const ms = p.spinMs ?? 0;
   const t0 = Date.now();

@@ -81,5 +81,5 @@ export class CancelledError extends Error {
   }
 }
 
-/** A task handler: pure function of its payload (may be async); the context carries cancel and progress. */
-export type TaskHandler<P = unknown, R = unknown> = (payload: P, ctx: TaskContext) => R | Promise<R>;
+/** A task handler: pure function of its payload (may be async); the context (cancel, progress) is optional. */
+export type TaskHandler<P = unknown, R = unknown> = (payload: P, ctx?: TaskContext) => R | Promise<R>;

@@ -155,3 +155,14 @@ export function reactionStiffness(g: PointGrowth, hostKillRate: number, uMax = 2
   }
   return s + hostKillRate * uMax;
 }
+
+/** Growth-rate scale of the pest [1/yr]: the rate parameter that sets how fast local dynamics run. */
+export function growthRateScale(g: PointGrowth): number {
+  switch (g.form) {
+    case 'logistic':
+    case 'allee-cubic':
+      return g.rate;
+    case 'mate-finding':
+      return Math.max(g.birthRate, g.deathRate, 1e-6);
+  }
+}

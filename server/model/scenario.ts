@@ -165,6 +165,17 @@ export const TransportSchema = z.strictObject({
   bandWidthKm: valueSchema(FIELDS.bandWidthKm).optional(),
 });
 
+/** Provenance of parameters fitted to survey records: the sentence the briefing shows beside them. */
+export const CalibrationNoteSchema = z.strictObject({
+  sentence: z.string().min(1, { error: 'must not be empty' }).max(400, { error: 'must be at most 400 characters' }),
+  /** Dotted paths of the fitted parameters, e.g. "pest.diffusionHost". */
+  paths: z.array(z.string().max(100)).max(12, { error: 'at most 12 paths' }).default([]),
+  records: z.number().int().gte(0).optional(),
+  detections: z.number().int().gte(0).optional(),
+  firstYear: z.number().int().optional(),
+  lastYear: z.number().int().optional(),
+});
+
 /** Current version of the scenario file format. */
 export const SCENARIO_VERSION = 1;
 
@@ -189,6 +200,8 @@ const ScenarioObjectSchema = z.strictObject({
   mosaics: z.array(MosaicSchema).max(6, { error: 'at most 6 mosaics per scenario' }).optional(),
   uncertainty: UncertaintySchema.optional(),
   transport: TransportSchema.optional(),
+  /** Where fitted ranges came from (written by the survey fit, server/analysis/calibration/fit.ts); shown in the briefing's parameter table. */
+  calibration: CalibrationNoteSchema.optional(),
 });
 
 /** Segment end positions [km] (originKm, then the running sum of lengths). */

@@ -45,8 +45,7 @@ export function makeGrid(
     if (!(length > 0)) {
       throw new RangeError(`breakpoints must increase: [${breaksKm[k]}, ${breaksKm[k + 1]}]`);
     }
-    // Tolerance guards against 10.000000000000002 / 0.1 rounding up to an extra cell.
-    const n = Math.max(minCellsPerSegment, Math.ceil(length / targetCellKm - 1e-9));
+    const n = cellsIn(length, targetCellKm, minCellsPerSegment);
     cellsPerSegment[k] = n;
     nCells += n;
   }
@@ -74,6 +73,18 @@ export function makeGrid(
     centersKm[c] = 0.5 * (facesKm[c] + facesKm[c + 1]);
   }
   return { nCells, facesKm, centersKm, widthsKm, segmentAtCells, firstCellOfSegment };
+}
+
+/** Cells in one interval of {@link makeGrid} (the tolerance guards against 10.000000000000002 / 0.1 rounding up to an extra cell). */
+function cellsIn(lengthKm: number, targetCellKm: number, minCellsPerSegment: number): number {
+  return Math.max(minCellsPerSegment, Math.ceil(lengthKm / targetCellKm - 1e-9));
+}
+
+/** Number of cells {@link makeGrid} would make, without making the grid. */
+export function countCells(breaksKm: ArrayLike<number>, targetCellKm: number, minCellsPerSegment = 4): number {
+  let n = 0;
+  for (let k = 0; k + 1 < breaksKm.length; k++) n += cellsIn(breaksKm[k + 1] - breaksKm[k], targetCellKm, minCellsPerSegment);
+  return n;
 }
 
 /** Index of the cell containing position x [km] (faces belong to the cell on their right; the last face to the last cell). */

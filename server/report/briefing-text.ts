@@ -5,8 +5,8 @@
  * tests can check them directly.
  */
 import type { OptionResult, ResultDocument, RunResult, VerdictKind } from '../analysis/result.ts';
-import { CAUTIONS, MODEL_LIMITS, allCautions } from '../analysis/cautions.ts';
-import { stemsRemoved } from '../analysis/layout.ts';
+import { CAUTIONS, MODEL_LIMITS, allCautions } from '../analysis/evaluate/cautions.ts';
+import { stemsRemoved } from '../problem/layout.ts';
 import { valueAt } from '../model/errors.ts';
 import { FIELDS, type FieldSpec } from '../model/fields.ts';
 import { centralValue, isDistribution, listUncertain } from '../model/quantity.ts';
@@ -197,7 +197,9 @@ export function parameterRows(scenario: Scenario, raw?: unknown, used?: RunResul
   const add = (group: string, path: (string | number)[], spec: FieldSpec | null, label?: string, unit?: string) => {
     const v = valueAt(scenario, path);
     if (v === undefined) return;
-    rows.push({ group, label: label ?? spec?.label ?? String(path[path.length - 1]), value: quantityText(v), unit: unit ?? (spec?.unit || '–'), source: sourceText(spec, path, v, ctx) });
+    // A value fitted to survey records says so ("fitted to 37 detections, 2019–2025"; analysis/calibration/fit.ts).
+    const fitted = scenario.calibration?.paths.includes(path.join('.')) ? scenario.calibration.sentence : undefined;
+    rows.push({ group, label: label ?? spec?.label ?? String(path[path.length - 1]), value: quantityText(v), unit: unit ?? (spec?.unit || '–'), source: fitted ?? sourceText(spec, path, v, ctx) });
   };
   const pest = 'Pest profile';
   add(pest, ['pest', 'diffusionHost'], FIELDS.diffusionHost);

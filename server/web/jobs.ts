@@ -13,8 +13,6 @@
  * after a restart.
  */
 import { randomUUID } from 'node:crypto';
-import { createRequire } from 'node:module';
-import { pathToFileURL } from 'node:url';
 import { LimitError, type Problem } from '../model/errors.ts';
 import type { Scenario } from '../model/scenario.ts';
 import { CancelledError, DETACH, type TaskRunner } from '../jobs/task-runner.ts';
@@ -53,10 +51,8 @@ export interface JobView {
   trouble: string | null;
 }
 
-/** The tsx loader, so worker threads can load TypeScript files (also under vitest). */
-export function tsxLoaderUrl(): string {
-  return pathToFileURL(createRequire(import.meta.url).resolve('tsx')).href;
-}
+/** The tsx loader, so worker threads can load TypeScript files (briefings use it). */
+export { tsxLoaderUrl } from '../jobs/worker-loader.ts';
 
 export const TERMINAL: ReadonlySet<JobStatus> = new Set(['done', 'cancelled', 'failed']);
 

@@ -1,13 +1,13 @@
 /**
  * Limits on what the web app will compute for one request: grid cells, horizon, options per scenario
- * and wall time. The engine has its own hard limits (MAX_CELLS, MAX_STEPS in analysis/discretise.ts);
+ * and wall time. The engine has its own hard limits (MAX_CELLS, MAX_STEPS in problem/discretise.ts);
  * these are the (usually tighter) limits of a shared server. Every limit breach is a LimitError naming
  * the field, the value and the limit.
  */
 import { LimitError, type Problem } from '../model/errors.ts';
-import { pointScenario, type Scenario } from '../model/scenario.ts';
-import { buildLayout } from '../analysis/layout.ts';
-import { discretise } from '../analysis/discretise.ts';
+import type { Scenario } from '../model/scenario.ts';
+import { plannedRuns, type PlannedRun } from '../analysis/evaluate/planned-runs.ts';
+import { MAX_STEPS } from '../problem/resolution.ts';
 
 export interface WebLimits {
   /** Largest grid of any one run (baseline or option) [cells]. */
@@ -31,9 +31,9 @@ export const DEFAULT_LIMITS: WebLimits = {
 };
 
 /**
- * Checks a validated scenario against the limits before it is queued.
- * The grid size is found by building each layout's grid (cheap next to a run), so the count is the one the
- * run would use.
+ * Checks a validated scenario against the limits before it is queued: every full-layout run the evaluation
+ * will make (baseline, options, bypass runs, mosaic patterns, ensemble draws; see analysis/planned-runs.ts)
+ * is counted with the run's own resolution policy, so the count quoted is the one the run would use.
  * @throws LimitError listing every limit the scenario breaks
  */
 export function checkLimits(scenario: Scenario, limits: WebLimits): void {
@@ -54,22 +54,32 @@ export function checkLimits(scenario: Scenario, limits: WebLimits): void {
     });
   }
   if (problems.length === 0) {
-    const point = pointScenario(scenario);
-    const layouts = [undefined, ...(point.barrier?.options ?? [])];
-    for (const option of layouts) {
-      // discretise throws its own LimitError above the engine's hard limits.
-      const nCells = discretise(point, buildLayout(point, option)).grid.nCells;
-      if (nCells > limits.maxCells) {
-        problems.push({
-          path: 'numerics.cellM',
-          value: point.numerics.cellM ?? 'automatic',
-          message:
-            `gives ${nCells} cells${option ? ` with option "${option.name}"` : ''}; this server allows at most ${limits.maxCells}. ` +
-            'Set a larger cell size or use a shorter transect',
-        });
-        break;
-      }
+    const runs = plannedRuns(scenario);
+    const largest = runs.reduce((a, b) => (b.nCells > a.nCells ? b : a));
+    if (largest.nCells > limits.maxCells) {
+      problems.push({
+        path: 'numerics.cellM',
+        value: scenario.numerics?.cellM ?? 'automatic',
+        message:
+          `gives ${largest.nCells} cells; this server allows at most ${limits.maxCells} (largest run: ${largest.label}). ` +
+          'Set a larger cell size or use a shorter transect',
+      });
+    }
+    // The engine's own step-count limit, for the evaluation's runs over the horizon.
+    const longest = runs.filter((r) => r.years <= scenario.horizonYears).reduce((a, b) => (b.years / b.stepYears > a.years / a.stepYears ? b : a));
+    const steps = longest.years / longest.stepYears;
+    if (steps > MAX_STEPS) {
+      problems.push({
+        path: longest.autoStep ? 'horizonYears' : 'numerics.stepYears',
+        value: longest.autoStep ? longest.years : longest.stepYears,
+        message: `needs ${Math.round(steps)} time steps; the limit is ${MAX_STEPS}. Shorten the horizon or use a longer step`,
+      });
     }
   }
   if (problems.length) throw new LimitError(problems);
+}
+
+/** The run with the most cells among all the evaluation will make (the first of equals). */
+export function largestRun(scenario: Scenario): PlannedRun {
+  return plannedRuns(scenario).reduce((a, b) => (b.nCells > a.nCells ? b : a));
 }

@@ -10,8 +10,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { parseScenario, pointScenario } from '../../server/model/scenario.ts';
-import { analyseBaseline, analyseOption } from '../../server/analysis/barrier.ts';
-import { evaluatePoint } from '../../server/analysis/ensemble.ts';
+import { analyseBaseline, analyseOption } from '../../server/analysis/verdict/barrier.ts';
+import { evaluatePoint } from '../../server/analysis/ensemble/ensemble.ts';
 import { expectAllClose } from '../helpers/close.ts';
 
 const cubicPest = {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { frontCannotAdvance } from '../../server/analysis/barrier-growth.ts';
+import { frontCannotAdvance } from '../../server/analysis/run/barrier-growth.ts';
 import type { PointGrowth } from '../../server/model/growth.ts';
 
 describe('frontCannotAdvance: does a front move into unbroken host forest at all?', () => {

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { expectAllClose } from '../helpers/close.ts';
 import { parseScenario, pointScenario, type ScenarioInput } from '../../server/model/scenario.ts';
 import { ScenarioError } from '../../server/model/errors.ts';
-import { analyseBaseline, analyseOption, checkOption } from '../../server/analysis/barrier.ts';
+import { analyseBaseline, analyseOption, checkOption } from '../../server/analysis/verdict/barrier.ts';
 
 /** A 30 km stand, infestation at its left end, sites 14 and 22 km in, one option at km 8. */
 function synthetic(pest: Record<string, unknown>, widthM: number, horizonYears: number, extra: Partial<ScenarioInput> = {}) {

@@ -1,8 +1,8 @@
 import { describe, expect, it } from 'vitest';
 import { makeGrid } from '../../server/numerics/grid.ts';
 import { makeRng } from '../../server/numerics/rng.ts';
-import { BypassTracker, atLeastOne, makeSurvivalKernel, sourceWeights } from '../../server/analysis/bypass.ts';
-import { bypassLambda } from '../../server/analysis/ensemble.ts';
+import { BypassTracker, atLeastOne, makeSurvivalKernel, sourceWeights } from '../../server/analysis/bypass/bypass.ts';
+import { bypassLambda } from '../../server/analysis/ensemble/ensemble.ts';
 import { parseScenario, pointScenario } from '../../server/model/scenario.ts';
 import { expectAllClose } from '../helpers/close.ts';
 

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { parseScenario, parseScenarioText, pointScenario } from '../../server/model/scenario.ts';
-import { coarsened, drawScenario, drawToleranceM, evaluatePoint, planEnsemble } from '../../server/analysis/ensemble.ts';
+import { coarsened, drawScenario, drawToleranceM, evaluatePoint, planEnsemble } from '../../server/analysis/ensemble/ensemble.ts';
 import { FIELDS } from '../../server/model/fields.ts';
 import { smallEnsembleScenario } from './ensemble-fixture.ts';
 

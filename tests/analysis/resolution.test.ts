@@ -7,9 +7,9 @@
 import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { parseScenarioText, pointScenario, type PointScenario } from '../../server/model/scenario.ts';
-import { buildLayout } from '../../server/analysis/layout.ts';
-import { chooseResolution } from '../../server/analysis/discretise.ts';
-import { measuredSpreadRates, runLayout } from '../../server/analysis/simulate.ts';
+import { buildLayout } from '../../server/problem/layout.ts';
+import { chooseResolution } from '../../server/problem/discretise.ts';
+import { measuredSpreadRates, runLayout } from '../../server/analysis/run/simulate.ts';
 import { clearingSegment, hostSegment, testPest, testScenario } from '../helpers/scenario.ts';
 
 function demo(name: string): PointScenario {

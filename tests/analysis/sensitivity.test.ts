@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { makeRng } from '../../server/numerics/rng.ts';
-import { partialRankCorrelation, rankTransform, tCritical95 } from '../../server/analysis/sensitivity.ts';
+import { partialRankCorrelation, rankTransform, tCritical95 } from '../../server/analysis/sensitivity/sensitivity.ts';
 import { expectAllClose } from '../helpers/close.ts';
 import { hasPythonScipy, runPython } from '../helpers/python.ts';
 

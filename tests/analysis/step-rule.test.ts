@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { parseScenarioText, pointScenario } from '../../server/model/scenario.ts';
-import { runLayout } from '../../server/analysis/simulate.ts';
-import { buildLayout } from '../../server/analysis/layout.ts';
-import { chooseResolution } from '../../server/analysis/discretise.ts';
+import { runLayout } from '../../server/analysis/run/simulate.ts';
+import { buildLayout } from '../../server/problem/layout.ts';
+import { chooseResolution } from '../../server/problem/discretise.ts';
 
 /**
  * Accuracy cost of the automatic time step (DEVELOPERS.md "Automatic resolution"): off-host mortality is

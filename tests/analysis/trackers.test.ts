@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { makeGrid } from '../../server/numerics/grid.ts';
-import { ArrivalTracker, FrontTracker, leftFrontKm, makeProbe, probeValue, rightFrontKm } from '../../server/analysis/trackers.ts';
+import { ArrivalTracker, FrontTracker, leftFrontKm, makeProbe, probeValue, rightFrontKm } from '../../server/analysis/run/trackers.ts';
 import { expectAllClose } from '../helpers/close.ts';
 
 /**

@@ -1,7 +1,7 @@
 /** Rewrites the golden documents: `npx tsx tests/golden/update.ts` (only after a deliberate change). */
 import { readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { parseScenarioText } from '../../server/model/scenario.ts';
-import { evaluateScenario } from '../../server/analysis/evaluate.ts';
+import { evaluateScenario } from '../../server/analysis/evaluate/evaluate.ts';
 import { GOLDEN_DIR, SCENARIO_DIR, stripVolatile } from './golden.ts';
 
 for (const f of readdirSync(SCENARIO_DIR).filter((n) => n.endsWith('.json'))) {

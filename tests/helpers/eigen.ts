@@ -1,11 +1,11 @@
 /**
  * Principal eigenvalue of the engine's linearised operator, u' = L u + diag(rate) u, from the problem that
- * analysis/discretise.ts builds. In v = u/ρ the operator is W⁻¹ S with W = diag(dx ρ) > 0 and S symmetric
+ * problem/discretise.ts builds. In v = u/ρ the operator is W⁻¹ S with W = diag(dx ρ) > 0 and S symmetric
  * tridiagonal (S_ii = −G_i − G_{i+1} + dx_i ρ_i rate_i, S_{i,i+1} = G_{i+1}), so by Sylvester's law of
  * inertia the number of eigenvalues above σ equals the number of positive pivots of S − σW (a Sturm count).
  * Bisection on σ gives the largest eigenvalue to round-off, in O(n) per count.
  */
-import type { TransectProblem } from '../../server/analysis/discretise.ts';
+import type { TransectProblem } from '../../server/problem/discretise.ts';
 import { makeDiffusionOperator } from '../../server/numerics/diffusion.ts';
 
 /** Per-cell linear growth rates: the low-density rate in host cells, −mortality elsewhere. */

@@ -7,9 +7,9 @@
  * fingerprint, layout, trees removed and parameters table are consistent with it.
  */
 import { parseScenario, pointScenario, type Scenario, type ScenarioInput } from '../../server/model/scenario.ts';
-import { buildLayout, stemsRemoved } from '../../server/analysis/layout.ts';
-import { allCautions } from '../../server/analysis/cautions.ts';
-import { documentHeader } from '../../server/analysis/evaluate.ts';
+import { buildLayout, stemsRemoved } from '../../server/problem/layout.ts';
+import { allCautions } from '../../server/analysis/evaluate/cautions.ts';
+import { documentHeader } from '../../server/analysis/evaluate/evaluate.ts';
 import { type UncertaintyResult, type MosaicResult, type OptionResult, type ResultDocument, type RunResult, type SiteVerdict, type VerdictKind } from '../../server/analysis/result.ts';
 
 export interface FixtureSpec {

@@ -3,9 +3,9 @@
  * Every scenario goes through the public schema (parseScenario), so the tests also exercise validation.
  */
 import { parseScenario, pointScenario, type PointScenario, type ScenarioInput } from '../../server/model/scenario.ts';
-import { buildLayout } from '../../server/analysis/layout.ts';
-import { chooseResolution, type Resolution } from '../../server/analysis/discretise.ts';
-import { runLayout, type RunOutput, type RunRequest } from '../../server/analysis/simulate.ts';
+import { buildLayout } from '../../server/problem/layout.ts';
+import { chooseResolution, type Resolution } from '../../server/problem/discretise.ts';
+import { runLayout, type RunOutput, type RunRequest } from '../../server/analysis/run/simulate.ts';
 
 type PestInput = ScenarioInput['pest'];
 type SegmentInput = ScenarioInput['transect']['segments'][number];

@@ -7,8 +7,8 @@ import { describe, expect, it } from 'vitest';
 import { readdirSync, readFileSync } from 'node:fs';
 import { parseScenarioText, pointScenario } from '../../server/model/scenario.ts';
 import { InputError, LimitError, ScenarioError, type Problem } from '../../server/model/errors.ts';
-import { buildLayout } from '../../server/analysis/layout.ts';
-import { discretise } from '../../server/analysis/discretise.ts';
+import { buildLayout } from '../../server/problem/layout.ts';
+import { discretise } from '../../server/problem/discretise.ts';
 
 const dir = new URL('./bad-scenarios/', import.meta.url);
 

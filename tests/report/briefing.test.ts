@@ -2,7 +2,7 @@ import { describe, expect, it, beforeAll } from 'vitest';
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { renderBriefing, PAGE, footerLines, runDateText, type BriefingLayout } from '../../server/report/briefing.ts';
 import { bottomLine, baselineLine, criticalWidthText, optionRows, parameterRows, questionText, readUncertainty, splitCautions, treesOf, treesText, VERDICT_LABELS } from '../../server/report/briefing-text.ts';
-import { CAUTIONS, MODEL_LIMITS } from '../../server/analysis/cautions.ts';
+import { CAUTIONS, MODEL_LIMITS } from '../../server/analysis/evaluate/cautions.ts';
 import { parseScenario } from '../../server/model/scenario.ts';
 import { FIELDS } from '../../server/model/fields.ts';
 import { integer, years } from '../../server/report/format.ts';

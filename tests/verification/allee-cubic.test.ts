@@ -5,7 +5,7 @@
  * 43:141–158). The front is pushed, so it converges exponentially fast and a raw late-time fit is unbiased.
  */
 import { describe, expect, it } from 'vitest';
-import { fitLine, spreadRate } from '../../server/analysis/speed.ts';
+import { fitLine, spreadRate } from '../../server/analysis/run/speed.ts';
 import { expectAllClose, relErr } from '../helpers/close.ts';
 import { hostSegment, runScenario, testPest, testScenario } from '../helpers/scenario.ts';
 

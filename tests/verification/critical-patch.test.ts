@@ -11,9 +11,9 @@
  * counts and bisection on L) against the closed form.
  */
 import { describe, expect, it } from 'vitest';
-import { buildLayout } from '../../server/analysis/layout.ts';
-import { chooseResolution, discretise } from '../../server/analysis/discretise.ts';
-import { totalInsects } from '../../server/analysis/trackers.ts';
+import { buildLayout } from '../../server/problem/layout.ts';
+import { chooseResolution, discretise } from '../../server/problem/discretise.ts';
+import { totalInsects } from '../../server/analysis/run/trackers.ts';
 import type { PointScenario } from '../../server/model/scenario.ts';
 import { lowDensityRate } from '../../server/model/growth.ts';
 import { expectAllClose } from '../helpers/close.ts';

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { expectAllClose, relErr } from '../helpers/close.ts';
 import { parseScenario, pointScenario } from '../../server/model/scenario.ts';
-import { criticalWidth } from '../../server/analysis/barrier.ts';
+import { criticalWidth } from '../../server/analysis/verdict/barrier.ts';
 
 /**
  * Critical width by bisection on full-model runs against the first-integral (phase-plane) blocking

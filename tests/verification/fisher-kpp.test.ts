@@ -6,8 +6,8 @@
  * log-corrected fit removes that bias.
  */
 import { describe, expect, it } from 'vitest';
-import { spreadRate } from '../../server/analysis/speed.ts';
-import { measuredSpreadRates } from '../../server/analysis/simulate.ts';
+import { spreadRate } from '../../server/analysis/run/speed.ts';
+import { measuredSpreadRates } from '../../server/analysis/run/simulate.ts';
 import { expectAllClose, relErr } from '../helpers/close.ts';
 import { hostSegment, runScenario, testPest, testScenario } from '../helpers/scenario.ts';
 

@@ -11,7 +11,7 @@
  *   h0 = 1, m = 1, c = 1.
  */
 import { describe, expect, it } from 'vitest';
-import { spreadRate } from '../../server/analysis/speed.ts';
+import { spreadRate } from '../../server/analysis/run/speed.ts';
 import { expectAllClose, relErr } from '../helpers/close.ts';
 import { hostSegment, runScenario, testPest, testScenario } from '../helpers/scenario.ts';
 

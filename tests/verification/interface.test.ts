@@ -11,8 +11,8 @@
  * → TR-BDF2 stepper → split time loop) with a zero reaction.
  */
 import { describe, expect, it } from 'vitest';
-import { buildLayout } from '../../server/analysis/layout.ts';
-import { chooseResolution, discretise, type TransectProblem } from '../../server/analysis/discretise.ts';
+import { buildLayout } from '../../server/problem/layout.ts';
+import { chooseResolution, discretise, type TransectProblem } from '../../server/problem/discretise.ts';
 import { jumpRatio } from '../../server/model/habitat.ts';
 import { makeDiffusionOperator } from '../../server/numerics/diffusion.ts';
 import { makeCoupledStepper } from '../../server/numerics/coupled.ts';

@@ -1,11 +1,11 @@
 import { describe, expect, it } from 'vitest';
 import { relErr } from '../helpers/close.ts';
 import { parseScenario, pointScenario } from '../../server/model/scenario.ts';
-import { analyseMosaic, mosaicPatches } from '../../server/analysis/mosaic.ts';
+import { analyseMosaic, mosaicPatches } from '../../server/analysis/mosaic/mosaic.ts';
 import { blochEigenvalue, spreadingSpeed } from '../../server/numerics/dispersion.ts';
-import { runLayout } from '../../server/analysis/simulate.ts';
-import type { Piece } from '../../server/analysis/layout.ts';
-import { fitLine } from '../../server/analysis/speed.ts';
+import { runLayout } from '../../server/analysis/run/simulate.ts';
+import type { Piece } from '../../server/problem/layout.ts';
+import { fitLine } from '../../server/analysis/run/speed.ts';
 
 /** A scenario carrying only the pest (mosaic runs build their own layout). */
 function pestScenario(pest: Record<string, unknown>) {

@@ -8,9 +8,9 @@
 import { describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
-import { buildLayout } from '../../server/analysis/layout.ts';
-import { chooseResolution, type TransectProblem } from '../../server/analysis/discretise.ts';
-import { runLayout } from '../../server/analysis/simulate.ts';
+import { buildLayout } from '../../server/problem/layout.ts';
+import { chooseResolution, type TransectProblem } from '../../server/problem/discretise.ts';
+import { runLayout } from '../../server/analysis/run/simulate.ts';
 import type { PointScenario } from '../../server/model/scenario.ts';
 import { cellAverages, maxDiff } from '../helpers/solve.ts';
 import { clearingSegment, hostSegment, testPest, testScenario } from '../helpers/scenario.ts';

@@ -8,7 +8,7 @@ import { readFileSync } from 'node:fs';
 import { buildTestApp, formBody, FORM_HEADERS, QUICK_REF, waitForJob, type TestApp } from '../helpers/build-app.ts';
 import { scenarioToForm } from '../../server/web/form-state.ts';
 import { parseScenarioText } from '../../server/model/scenario.ts';
-import { evaluateScenario } from '../../server/analysis/evaluate.ts';
+import { evaluateScenario } from '../../server/analysis/evaluate/evaluate.ts';
 import type { ResultDocument } from '../../server/analysis/result.ts';
 import { TOOL } from '../../server/version.ts';
 import { readPdfText } from '../helpers/pdf.ts';

@@ -4,7 +4,7 @@
  */
 import type { FastifyInstance } from 'fastify';
 import { FIELDS, describeRange, type FieldSpec } from '../../model/fields.ts';
-import { CAUTIONS, MODEL_LIMITS } from '../../analysis/cautions.ts';
+import { CAUTIONS, MODEL_LIMITS } from '../../analysis/evaluate/cautions.ts';
 import type { WebDeps } from '../deps.ts';
 
 interface OpenApiDoc {
