@@ -10,7 +10,6 @@ import formbody from '@fastify/formbody';
 import multipart from '@fastify/multipart';
 import fastifyStatic from '@fastify/static';
 import { fastifySSE } from '@fastify/sse';
-import { cpus } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import views from './web/plugins/views.ts';
@@ -21,7 +20,9 @@ import { openStore } from './web/store.ts';
 import { loadDemos, makeCatalogue } from './web/catalogue.ts';
 import { makeJobRunner } from './web/jobs.ts';
 import { makeBriefingRenderer } from './web/briefings.ts';
-import { defaultThreads } from './analysis/ensemble/ensemble-pool.ts';
+import { makePoolRunner, defaultThreadCount } from './jobs/pool-runner.ts';
+import type { TaskRunner } from './jobs/task-runner.ts';
+import { makeStreamGate, DEFAULT_STREAM_LIMITS, type StreamLimits } from './web/streams.ts';
 import { DEFAULT_LIMITS, type WebLimits } from './web/limits.ts';
 import scenarioPages from './web/routes/scenario-pages.ts';
 import runPages from './web/routes/run-pages.ts';
@@ -39,10 +40,22 @@ export interface AppOptions {
   logger?: boolean;
   /** Limits of this server (cells, horizon, options, wall time, queue). */
   limits?: Partial<WebLimits>;
-  /** Worker threads for evaluations. Default: one less than the CPU count, at least 1. */
+  /** Evaluations computed at the same time (the rest wait in order). Default: the runner's concurrency. */
   workerThreads?: number;
-  /** Worker threads for the draws of one ensemble. Default: the CPU count. */
+  /**
+   * Worker threads of this process's one pool (every evaluation's runs and ensemble draws share them).
+   * Default: the CPU count. Ignored when `runner` is given.
+   */
   ensembleThreads?: number;
+  /**
+   * Where the work runs: a queue runner (REDIS_URL) or any other TaskRunner. Default: a local pool of
+   * `ensembleThreads` threads, closed with the app (a runner passed in is the caller's to close).
+   */
+  runner?: TaskRunner;
+  /** Caps on open progress streams. */
+  streamLimits?: Partial<StreamLimits>;
+  /** Longest time shutdown waits for running work to stop before leaving it for the next start [ms]. */
+  shutdownGraceMs?: number;
   /** Compute requests (evaluations) per client per minute. */
   computePerMinute?: number;
   /** Largest request body [bytes]. */
@@ -69,17 +82,24 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
   const limits: WebLimits = { ...DEFAULT_LIMITS, ...options.limits };
   const store = openStore(options.dataDir ?? join(process.cwd(), 'data'));
   const demos = loadDemos(options.scenariosDir ?? DEFAULT_SCENARIOS_DIR, (msg) => app.log.warn(msg));
+  const ownRunner = !options.runner;
+  const runner = options.runner ?? makePoolRunner({ threads: options.ensembleThreads ?? defaultThreadCount() });
   const jobs = makeJobRunner({
     store,
-    threads: options.workerThreads ?? Math.max(1, cpus().length - 1),
-    ensembleThreads: options.ensembleThreads ?? defaultThreads(),
+    runner,
+    concurrency: options.workerThreads ?? runner.concurrency,
     wallSeconds: limits.wallSeconds,
     maxQueued: limits.maxQueued,
     onError: (err) => app.log.error({ err }, 'evaluation failed'),
+    log: (msg) => app.log.info(msg),
   });
   const briefings = makeBriefingRenderer();
+  // Before the listener closes: no new work, progress streams ended (they would hold the close), compute stopped.
+  app.addHook('preClose', async () => {
+    await jobs.shutdown(options.shutdownGraceMs);
+  });
   app.addHook('onClose', async () => {
-    await Promise.all([jobs.close(), briefings.close()]);
+    await Promise.all([jobs.close(), briefings.close(), ownRunner ? runner.close() : Promise.resolve()]);
     store.close();
   });
 
@@ -99,6 +119,7 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
     jobs,
     limits,
     briefings,
+    streams: makeStreamGate({ ...DEFAULT_STREAM_LIMITS, ...options.streamLimits }),
     computeRateLimit: { max: computePerMinute, timeWindow: '1 minute' },
   };
   await app.register(scenarioPages, deps);

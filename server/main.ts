@@ -1,9 +1,17 @@
 /**
- * Process entry: build the app, listen, close gracefully on SIGINT/SIGTERM.
- * Environment: HOST (default 127.0.0.1), PORT (3000), DATA_DIR (./data), WORKERS (evaluation threads),
- * ENSEMBLE_THREADS (threads for the draws of one ensemble), WALL_SECONDS (longest evaluation).
+ * Process entry: choose where the work runs, build the app, listen, stop gracefully on SIGINT/SIGTERM.
+ * Environment: HOST (default 127.0.0.1), PORT (3000), DATA_DIR (./data), WORKERS (evaluations at once),
+ * ENSEMBLE_THREADS (the worker threads all computing of this process shares; default: the cores),
+ * WALL_SECONDS (longest evaluation), REDIS_URL (hand the work to queue workers, `npm run worker`, instead).
+ *
+ * Stopping (SIGTERM or Ctrl-C): no new evaluations are accepted, progress streams end, running work stops
+ * within a few seconds, and the log lists what was not finished — it stays queued in the database and
+ * resumes at the next start. A second signal exits at once.
  */
 import { buildApp } from './app.ts';
+import { makeQueueRunner } from './jobs/queue-runner.ts';
+import { redactedUrl } from './jobs/queue-config.ts';
+import type { TaskRunner } from './jobs/task-runner.ts';
 
 const host = process.env.HOST ?? '127.0.0.1';
 const port = Number(process.env.PORT ?? 3000);
@@ -23,8 +31,18 @@ function setting(name: string, wholeNumber: boolean): number | undefined {
   return x;
 }
 const wallSeconds = setting('WALL_SECONDS', false);
+/** Longest time a stop may take before the process exits anyway [ms]. */
+const STOP_LIMIT_MS = 10_000;
+
+let runner: TaskRunner | undefined;
+const redisUrl = process.env.REDIS_URL;
+if (redisUrl) {
+  runner = await makeQueueRunner({ url: redisUrl, log: (m) => console.log(m) });
+  console.log(`work goes to the queue at ${redactedUrl(redisUrl)} (${runner.where}); start workers with: REDIS_URL=... npm run worker`);
+}
 
 const app = await buildApp({
+  runner,
   logger: true,
   dataDir: process.env.DATA_DIR ?? 'data',
   workerThreads: setting('WORKERS', true),
@@ -41,10 +59,32 @@ try {
       : `Cannot listen on ${host}:${port}: ${(err as Error).message}`,
   );
   await app.close();
+  await runner?.close();
   process.exit(1);
 }
+let stopping = false;
 for (const signal of ['SIGINT', 'SIGTERM'] as const) {
-  process.once(signal, () => {
-    void app.close().then(() => process.exit(0));
+  process.on(signal, () => {
+    if (stopping) {
+      console.error(`${signal} again: exiting now`);
+      process.exit(1);
+    }
+    stopping = true;
+    app.log.info(`${signal}: stopping (no new evaluations; running work stops within a few seconds)`);
+    const hard = setTimeout(() => {
+      console.error(`the stop took longer than ${STOP_LIMIT_MS / 1000} s: exiting; unfinished evaluations resume at the next start`);
+      process.exit(1);
+    }, STOP_LIMIT_MS);
+    hard.unref();
+    void app
+      .close()
+      .then(() => runner?.close())
+      .then(() => process.exit(0));
   });
 }
+// Started by a wrapper (npm, a shell) that went away without passing its signal on: stop as on SIGTERM
+// rather than keep serving as an orphan nobody can stop with Ctrl-C.
+const parentPid = process.ppid;
+setInterval(() => {
+  if (!stopping && process.ppid !== parentPid) process.emit('SIGTERM');
+}, 1_000).unref();

@@ -2,7 +2,7 @@
  * The inline runner: runs tasks one after another on this thread. The reference every other runner must
  * match bit for bit, and what tests and small evaluations use.
  */
-import { CancelledError, type MapOptions, type TaskKind, type TaskRunner } from './task-runner.ts';
+import { CancelledError, type MapOptions, type TaskContext, type TaskKind, type TaskRunner } from './task-runner.ts';
 import { taskHandler } from './tasks.ts';
 
 export function makeInlineRunner(): TaskRunner {
@@ -14,7 +14,9 @@ export function makeInlineRunner(): TaskRunner {
       const results: R[] = [];
       for (let i = 0; i < payloads.length; i++) {
         if (opts.signal?.aborted) throw new CancelledError();
-        const r = (await handler(payloads[i])) as R;
+        const index = i;
+        const ctx: TaskContext = { shouldCancel: () => opts.signal?.aborted ?? false, progress: (f, stage) => opts.onProgress?.(index, f, stage) };
+        const r = (await handler(payloads[i], ctx)) as R;
         results.push(r);
         opts.onResult?.(i, r);
       }

@@ -1,58 +1,127 @@
 /**
- * A TaskRunner on this machine's worker threads (piscina), one task per payload. An adapter that keeps the
- * ensemble's worker pool behind the runner interface until the jobs layer's own local-pool runner replaces
- * it; it keeps the runner rules (results in payload order whatever order tasks finish in, cancel stops
- * pending tasks, results finished before a cancel still reach onResult).
+ * The local pool runner: every task of this process runs on ONE pool of worker threads (piscina), whatever
+ * asked for it — the central-value runs of several evaluations and the draws of their ensembles share the
+ * same thread budget, so the machine is never oversubscribed by pools inside pools.
+ *
+ * Cancel: the batch's shared flag is set at once (tasks poll it between and inside runs, and tasks not yet
+ * started stop before they begin); a task still running CANCEL_GRACE_MS later has its thread terminated, so
+ * a cancel or a wall-time stop acts within about a second whatever the grid.
  */
-import { availableParallelism } from 'node:os';
 import { setMaxListeners } from 'node:events';
+import { MessageChannel } from 'node:worker_threads';
+import { availableParallelism } from 'node:os';
 import { Piscina } from 'piscina';
 import { CancelledError, type MapOptions, type TaskKind, type TaskRunner } from './task-runner.ts';
-import { workerExecArgv } from './worker-loader.ts';
 import type { PoolTask } from './pool-worker.ts';
+import { workerExecArgv } from './worker-loader.ts';
 
-/** Number of worker threads to use by default: the cores available to this process. */
-export function defaultThreads(): number {
+/** Time a cancelled task gets to stop by itself before its thread is terminated [ms]. */
+export const CANCEL_GRACE_MS = 400;
+
+export interface PoolRunnerOptions {
+  /** Worker threads (the process's whole budget). Default: the cores available. */
+  threads?: number;
+  /** Keep idle threads this long [ms] (default 30 s). */
+  idleTimeoutMs?: number;
+  /** Threads started at once and kept (default 0: started on demand). A queue worker keeps all of them. */
+  minThreads?: number;
+
+}
+
+/** The cores available to this process. */
+export function defaultThreadCount(): number {
   return Math.max(1, availableParallelism());
 }
 
-export function makePoolRunner(opts: { threads?: number } = {}): TaskRunner {
-  const threads = Math.max(1, opts.threads ?? defaultThreads());
-  const pool = new Piscina({
+/** The same, under the name the analysis uses. */
+export const defaultThreads = defaultThreadCount;
+
+export interface PoolRunner extends TaskRunner {
+  /** Tasks running or waiting for a thread now. */
+  pending(): number;
+}
+
+export function makePoolRunner(opts: PoolRunnerOptions = {}): PoolRunner {
+  const threads = Math.max(1, Math.floor(opts.threads ?? defaultThreadCount()));
+  const pool = new Piscina<PoolTask, unknown>({
     filename: new URL('./pool-worker.ts', import.meta.url).href,
-    minThreads: threads,
+    minThreads: Math.min(threads, Math.max(0, Math.floor(opts.minThreads ?? 0))),
     maxThreads: threads,
-    idleTimeout: 1000,
+    idleTimeout: opts.idleTimeoutMs ?? 30_000,
     execArgv: workerExecArgv(),
+    // Tasks wait in the pool's queue (FIFO) for a free thread; the budget is the thread count.
+    maxQueue: Infinity,
   });
+  let inFlight = 0;
+  let closed = false;
+
   return {
     where: `this machine, ${threads} worker thread${threads === 1 ? '' : 's'}`,
     concurrency: threads,
+    pending: () => inFlight,
     async map<P, R>(kind: TaskKind, payloads: readonly P[], o: MapOptions<R> = {}): Promise<R[]> {
-      const abort = new AbortController();
-      // One listener per queued task: lift the default limit of 10 (not a leak).
-      setMaxListeners(0, abort.signal);
-      const stop = () => abort.abort();
+      if (closed) throw new Error('the worker pool is closed');
       if (o.signal?.aborted) throw new CancelledError();
+      const cancel = new SharedArrayBuffer(4);
+      const flag = new Int32Array(cancel);
+      const hard = new AbortController();
+      setMaxListeners(0, hard.signal); // one listener per task of the batch (not a leak)
+      let hardTimer: NodeJS.Timeout | undefined;
+      let failed: unknown;
+      const stop = () => {
+        if (Atomics.load(flag, 0) !== 0) return;
+        Atomics.store(flag, 0, 1);
+        hardTimer = setTimeout(() => hard.abort(), CANCEL_GRACE_MS);
+        hardTimer.unref();
+      };
       o.signal?.addEventListener('abort', stop, { once: true });
       const results: R[] = new Array(payloads.length);
       try {
-        await Promise.all(
-          payloads.map((payload, i) =>
-            pool.run({ kind, payload } satisfies PoolTask, { signal: abort.signal }).then((r: R) => {
-              results[i] = r;
-              o.onResult?.(i, r);
-            }),
-          ),
+        const settled = await Promise.allSettled(
+          payloads.map(async (payload, index) => {
+            let port1: MessagePort | undefined;
+            const task: PoolTask = { kind, payload, cancel };
+            const transferList = [];
+            if (o.onProgress) {
+              const ch = new MessageChannel();
+              port1 = ch.port1 as unknown as MessagePort;
+              ch.port1.on('message', (m: { fraction: number; stage: string }) => {
+                if (Atomics.load(flag, 0) === 0) o.onProgress?.(index, m.fraction, m.stage);
+              });
+              task.port = ch.port2;
+              transferList.push(ch.port2);
+            }
+            inFlight++;
+            try {
+              const r = (await pool.run(task, { signal: hard.signal, transferList })) as R;
+              results[index] = r;
+              o.onResult?.(index, r);
+            } catch (e) {
+              // The first real failure stops the rest of the batch.
+              if (!o.signal?.aborted && failed === undefined) {
+                failed = e;
+                stop();
+              }
+              throw e;
+            } finally {
+              inFlight--;
+              (port1 as unknown as { close(): void } | undefined)?.close();
+            }
+          }),
         );
-      } catch (e) {
-        if (abort.signal.aborted) throw new CancelledError();
-        throw e;
+        if (o.signal?.aborted) throw new CancelledError();
+        if (failed !== undefined) throw failed;
+        const rejected = settled.find((s) => s.status === 'rejected') as PromiseRejectedResult | undefined;
+        if (rejected) throw rejected.reason;
+        return results;
       } finally {
+        if (hardTimer) clearTimeout(hardTimer);
         o.signal?.removeEventListener('abort', stop);
       }
-      return results;
     },
-    close: () => pool.destroy(),
+    async close() {
+      closed = true;
+      await pool.destroy();
+    },
   };
 }

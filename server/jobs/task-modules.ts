@@ -1,5 +1,8 @@
 /**
- * The modules that register task kinds (registerTask). A worker entry imports this list before taking work,
- * so a task kind means the same handler on every thread and machine.
+ * The modules that register task kinds (registerTask). Every worker entry (pool thread, queue worker
+ * process) imports this list before taking work, so a kind means the same handler on every thread and
+ * machine. Add a module here when it registers a new kind.
  */
 import '../analysis/ensemble/chunks.ts';
+import './evaluation-tasks.ts';
+import './probe-task.ts';

@@ -26,6 +26,31 @@ export interface MapOptions<R> {
    * derives task ids from it and the payload index, so a retried or resubmitted batch is idempotent.
    */
   key?: string;
+  /**
+   * Stable names of the tasks, one per payload (e.g. fingerprint + chunk index when only the missing chunks
+   * of a batch are resubmitted). Default: `${key}:${index}`. A distributed runner uses them as job ids.
+   */
+  taskKeys?: readonly string[];
+  /** Progress reported from inside a running task (its payload index, share done 0–1, a short label). */
+  onProgress?: (index: number, fraction: number, stage: string) => void;
+}
+
+/** What a running task may ask of the runner that executes it. */
+export interface TaskContext {
+  /** True once the batch was cancelled (poll it in long loops; a runner may also stop the task hard). */
+  shouldCancel(): boolean;
+  /** Reports the share done (0–1) and a short label; runners may throttle these messages. */
+  progress(fraction: number, stage: string): void;
+}
+
+/** A context that never cancels and drops progress (inline calls, tests). */
+export const NO_CONTEXT: TaskContext = { shouldCancel: () => false, progress: () => {} };
+
+/** State of the machinery behind a runner, for the run page ("queue unavailable, retrying"). */
+export interface RunnerHealth {
+  ok: boolean;
+  /** Plain words: where the work runs now, or what is wrong and what the runner does about it. */
+  message: string;
 }
 
 export interface TaskRunner {
@@ -37,7 +62,16 @@ export interface TaskRunner {
   map<P, R>(kind: TaskKind, payloads: readonly P[], opts?: MapOptions<R>): Promise<R[]>;
   /** Releases threads, connections and listeners. */
   close(): Promise<void>;
+  /** Optional: whether the runner can take work now (a queue may be unreachable for a while). */
+  health?(): RunnerHealth;
 }
+
+/**
+ * Abort reason meaning "the caller goes away, the work may go on": a server shutting down aborts with it.
+ * `map` still rejects at once, but a distributed runner leaves queued and running tasks in place, for the
+ * restarted caller to collect (their ids are deterministic); a local runner stops them as for a cancel.
+ */
+export const DETACH = 'detach';
 
 /** Thrown by `map` when its signal was aborted before every task finished. */
 export class CancelledError extends Error {
@@ -47,5 +81,5 @@ export class CancelledError extends Error {
   }
 }
 
-/** A task handler: pure function of its payload (may be async). */
-export type TaskHandler<P = unknown, R = unknown> = (payload: P) => R | Promise<R>;
+/** A task handler: pure function of its payload (may be async); the context (cancel, progress) is optional. */
+export type TaskHandler<P = unknown, R = unknown> = (payload: P, ctx?: TaskContext) => R | Promise<R>;

@@ -3,6 +3,7 @@ import type { Catalogue } from './catalogue.ts';
 import type { JobRunner } from './jobs.ts';
 import type { WebLimits } from './limits.ts';
 import type { BriefingRenderer } from './briefings.ts';
+import type { StreamGate } from './streams.ts';
 
 /** What route plugins need, passed as plugin options (no globals). */
 export interface WebDeps {
@@ -11,6 +12,8 @@ export interface WebDeps {
   jobs: JobRunner;
   limits: WebLimits;
   briefings: BriefingRenderer;
+  /** Caps on open progress streams (per evaluation, per client). */
+  streams: StreamGate;
   /** Route config that switches the compute rate limit on. */
   computeRateLimit: { max: number; timeWindow: string };
 }

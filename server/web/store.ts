@@ -9,12 +9,13 @@ import { join } from 'node:path';
 import { randomUUID } from 'node:crypto';
 import type { Scenario } from '../model/scenario.ts';
 import type { ResultDocument } from '../analysis/result.ts';
+import { createJobTables, makeJobStore, type JobStore } from './job-store.ts';
 
 /** File name of the database inside the data folder. */
 export const DATABASE_FILE = 'barrier-evaluator.sqlite';
 
 /** Schema version (PRAGMA user_version); bump with a migration step when a table changes. */
-const SCHEMA_VERSION = 1;
+const SCHEMA_VERSION = 2;
 
 export interface SavedScenario {
   id: number;
@@ -75,6 +76,8 @@ export interface Store {
   listResults(filter?: { scenarioRef?: string; limit?: number }): StoredResultSummary[];
   getResult(id: string): StoredResult | undefined;
   deleteResult(id: string): boolean;
+  /** Durable web jobs (accepted evaluations and their finished pieces). */
+  jobs: JobStore;
   close(): void;
 }
 
@@ -178,6 +181,7 @@ export function openStore(dataDir: string): Store {
       return row ? toResult(row) : undefined;
     },
     deleteResult: (id) => q.deleteResult.run(id).changes > 0,
+    jobs: makeJobStore(db),
     close: () => db.close(),
   };
 }
@@ -205,5 +209,7 @@ function migrate(db: Database.Database): void {
     );
     CREATE INDEX IF NOT EXISTS results_by_scenario ON results (scenario_ref, created_at);
   `);
+  // Version 2: durable web jobs.
+  createJobTables(db);
   db.pragma(`user_version = ${SCHEMA_VERSION}`);
 }

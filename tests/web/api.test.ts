@@ -250,7 +250,10 @@ describe('cancel and wall-time limit', () => {
     const done = await waitForJob(s.app, r.json().id);
     expect(done.status).toBe('failed');
     expect(done.message).toMatch(/Stopped after 1.5 s, the longest time this server spends on one evaluation/);
-    expect((done.problems as { path: string }[])[0].path).toBe('horizonYears');
+    // The time step set in the scenario (0.0005 yr: 80 000 steps per run) is what makes it long, and is named.
+    const p = (done.problems as { path: string; message: string }[])[0];
+    expect(p.path).toBe('numerics.stepYears');
+    expect(p.message).toContain('80000 steps per run');
   });
 });
 

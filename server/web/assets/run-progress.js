@@ -8,16 +8,27 @@
   var pct = root.querySelector('[data-percent]');
   var status = root.querySelector('[data-status]');
   var stage = root.querySelector('[data-stage]');
+  var stageWrap = root.querySelector('[data-stage-wrap]');
+  var timeLeft = root.querySelector('[data-time-left]');
+  var where = root.querySelector('[data-where]');
+  var trouble = root.querySelector('[data-trouble]');
+  var resumed = root.querySelector('[data-resumed]');
   var message = root.querySelector('[data-message]');
   var cancel = root.querySelector('[data-cancel]');
 
   function update(d) {
+    // The bar shows the work done: a cancelled run keeps the share it reached.
     if (bar) bar.value = d.fraction;
     if (pct) pct.textContent = d.percentText;
     if (status) status.textContent = d.statusText;
     if (stage) stage.textContent = d.stage;
+    if (stageWrap) stageWrap.hidden = d.finished;
+    if (timeLeft) timeLeft.textContent = d.timeLeftText || '';
+    if (where) where.textContent = d.where;
+    if (trouble) trouble.textContent = d.trouble || '';
+    if (resumed) { resumed.hidden = !d.resumed; resumed.textContent = d.resumedText || ''; }
     if (message) message.textContent = d.message || '';
-    if (cancel && d.finished) cancel.hidden = true;
+    if (cancel && (d.finished || d.status === 'cancelling')) cancel.hidden = true;
   }
 
   var source = new EventSource(root.getAttribute('data-events'));
@@ -27,10 +38,12 @@
     source.close();
     update(d);
     if (d.resultUrl) window.location.assign(d.resultUrl);
+    // The server is stopping: the job is kept; try again once it is back.
+    else if (d.serverStopping) window.setTimeout(function () { window.location.reload(); }, 5000);
     else window.location.reload();
   });
   source.onerror = function () {
-    // Lost the stream (server restart, proxy): fall back to reloading the page.
+    // Lost the stream (server restart, proxy, too many open streams): fall back to reloading the page.
     source.close();
     window.setTimeout(function () { window.location.reload(); }, 2000);
   };

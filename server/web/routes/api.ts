@@ -12,7 +12,7 @@ import { LimitError } from '../../model/errors.ts';
 import { checkLimits } from '../limits.ts';
 import { savedId } from '../catalogue.ts';
 import { conflict, notFound } from '../plugins/errors.ts';
-import { jobEvents, jobPayload, unknownJob } from './run-pages.ts';
+import { jobPayload, sendJobEvents, unknownJob } from './run-pages.ts';
 import { briefingName, download } from './result-pages.ts';
 import type { WebDeps } from '../deps.ts';
 
@@ -37,9 +37,15 @@ const JobSchema = z.object({
   fraction: z.number(),
   percentText: z.string(),
   stage: z.string(),
+  timeLeftText: z.string().describe('Estimated time left while running, in words ("about 3 min left"); empty when not known'),
+  where: z.string().describe('Where the work runs ("this machine, 2 worker threads" or "N queue workers")'),
+  trouble: z.string().nullable().describe('What is wrong behind the runner, if anything ("queue unavailable, retrying")'),
+  resumed: z.boolean().describe('Taken up again after a server restart'),
+  resumedText: z.string(),
   message: z.string(),
   problems: z.array(ProblemSchema),
   finished: z.boolean(),
+  serverStopping: z.boolean().describe('The server is stopping; the evaluation is kept and resumes at its next start'),
   resultUrl: z.string().nullable().describe('Page of the result once done; the JSON is at /api/results/{resultId}'),
   resultId: z.string().nullable(),
 });
@@ -82,7 +88,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
   const withResultId = (id: string) => {
     const job = jobs.get(id);
     if (!job) throw unknownJob();
-    return { ...jobPayload(job), resultId: job.resultId };
+    return { ...jobPayload(job, jobs.stopping), resultId: job.resultId };
   };
 
   // ---- scenarios ------------------------------------------------------------------------------
@@ -202,7 +208,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
     },
     async (req, reply) => {
       if (!jobs.get(req.params.id)) throw unknownJob();
-      await reply.sse.send(jobEvents(jobs, req.params.id));
+      await sendJobEvents(deps, req, reply, req.params.id);
     },
   );
 

@@ -2,53 +2,90 @@
  * Run pages: progress of a background evaluation (server-sent events for the page script; a plain
  * refresh without JavaScript), cancel, and the hand-over to the result page.
  */
-import type { FastifyInstance } from 'fastify';
+import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import { TERMINAL, type JobRunner, type JobView } from '../jobs.ts';
 import { notFound } from '../plugins/errors.ts';
+import { percent } from '../../report/format.ts';
+import type { StreamGate } from '../streams.ts';
+import type { WebDeps } from '../deps.ts';
 
-/** Jobs live in memory: after a restart (or long after they finished) the server no longer knows them. */
+/** Jobs are kept in the database; an id it does not know was never accepted here, or finished long ago. */
 export const unknownJob = () =>
   Object.assign(notFound('This evaluation'), {
-    message: 'This evaluation is not known to the server (it may have finished long ago, or the server was restarted). Finished results are listed under Results.',
+    message: 'This evaluation is not known to the server (it may have finished long ago and been cleared). Finished results are listed under Results.',
   });
-import { percent } from '../../report/format.ts';
-import type { WebDeps } from '../deps.ts';
 
 type IdParams = { Params: { id: string } };
 
-const STATUS_WORDS: Record<JobView['status'], string> = {
-  queued: 'Waiting for a free worker',
-  running: 'Running',
-  cancelling: 'Stopping',
-  done: 'Finished',
-  cancelled: 'Cancelled',
-  failed: 'Stopped with a problem',
-};
+/** The status in words: what the person waiting needs to know. */
+export function statusText(job: JobView): string {
+  switch (job.status) {
+    case 'queued':
+      return job.ahead > 0 ? `Waiting for a free worker (${job.ahead} evaluation${job.ahead === 1 ? '' : 's'} ahead)` : 'Starting';
+    case 'running':
+      return 'Running';
+    case 'cancelling':
+      return 'Stopping';
+    case 'done':
+      return 'Finished';
+    case 'cancelled':
+      return 'Cancelled';
+    case 'failed':
+      return 'Stopped with a problem';
+  }
+}
+
+/** "about 3 min left" from seconds (rounded up to what a person plans with). */
+export function timeLeftText(seconds: number | null): string {
+  if (seconds === null || !Number.isFinite(seconds)) return '';
+  if (seconds < 10) return 'a few seconds left';
+  if (seconds < 90) return `about ${Math.ceil(seconds / 10) * 10} s left`;
+  if (seconds < 5400) return `about ${Math.ceil(seconds / 60)} min left`;
+  return `about ${(seconds / 3600).toFixed(1)} h left`;
+}
 
 /** The job as the progress page and its script show it. */
-export function jobPayload(job: JobView) {
+export function jobPayload(job: JobView, serverStopping = false) {
   return {
     id: job.id,
     status: job.status,
-    statusText: STATUS_WORDS[job.status],
+    statusText: statusText(job),
     fraction: job.fraction,
     percentText: percent(job.fraction),
     stage: job.stage,
-    message: job.message,
+    timeLeftText: job.status === 'running' ? timeLeftText(job.secondsLeft) : '',
+    where: job.where,
+    trouble: job.trouble,
+    resumed: job.resumed > 0,
+    resumedText: job.resumed > 0 ? 'Resumed after a restart of the server: the work finished before it was kept.' : '',
+    message: serverStopping && !TERMINAL.has(job.status) ? 'The server is stopping; this evaluation is kept and resumes when it starts again.' : job.message,
     problems: job.problems,
     finished: TERMINAL.has(job.status),
+    serverStopping: serverStopping && !TERMINAL.has(job.status),
     resultUrl: job.resultId ? `/results/${job.resultId}` : null,
   };
 }
 
-/** Async stream of SSE messages for one job: its state now, then at every change until it finishes. */
+/** Async stream of SSE messages for one job: its state now, then at every change until it finishes (or the server stops). */
 export async function* jobEvents(jobs: JobRunner, id: string): AsyncGenerator<{ id: string; event: string; data: unknown }> {
   let job = jobs.get(id);
   let n = 0;
   while (job) {
-    yield { id: String(n++), event: TERMINAL.has(job.status) ? 'end' : 'progress', data: jobPayload(job) };
-    if (TERMINAL.has(job.status)) return;
+    const end = TERMINAL.has(job.status) || jobs.stopping;
+    yield { id: String(n++), event: end ? 'end' : 'progress', data: jobPayload(job, jobs.stopping) };
+    if (end) return;
     job = await jobs.nextChange(id);
+  }
+}
+
+/** Streams a job's events within the stream caps; the slot is freed when the client goes away. */
+export async function sendJobEvents(deps: { jobs: JobRunner; streams: StreamGate }, req: FastifyRequest, reply: FastifyReply, id: string) {
+  const release = deps.streams.open(id, req.ip);
+  reply.raw.once('close', release);
+  try {
+    await reply.sse.send(jobEvents(deps.jobs, id));
+  } finally {
+    release();
   }
 }
 
@@ -64,9 +101,10 @@ export default async function runPages(app: FastifyInstance, deps: WebDeps) {
     const job = jobOr404(req.params.id);
     if (job.status === 'done' && job.resultId) return reply.redirect(`/results/${job.resultId}`, 303);
     const scenarioLink = job.scenarioRef ? `/scenarios/${encodeURIComponent(job.scenarioRef)}` : '';
+    const payload = jobPayload(job, jobs.stopping);
     return reply.page('run', {
-      title: `${STATUS_WORDS[job.status]}: ${job.title}`,
-      job: jobPayload(job),
+      title: `${payload.statusText}: ${job.title}`,
+      job: payload,
       jobTitle: job.title,
       scenarioLink,
       editLink: scenarioLink ? `${scenarioLink}/edit` : '',
@@ -79,7 +117,7 @@ export default async function runPages(app: FastifyInstance, deps: WebDeps) {
 
   app.get<IdParams>('/runs/:id/events', { sse: 'only' }, async (req, reply) => {
     jobOr404(req.params.id);
-    await reply.sse.send(jobEvents(jobs, req.params.id));
+    await sendJobEvents(deps, req, reply, req.params.id);
   });
 
   app.post<IdParams>('/runs/:id/cancel', async (req, reply) => {

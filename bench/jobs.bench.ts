@@ -1,0 +1,102 @@
+/**
+ * Jobs bench: a 1000-draw ensemble on the local pool (1 and 2 threads) and on the queue (1 and 2 queue
+ * worker processes of one thread each, Redis on 127.0.0.1 started here and stopped by PID), in one run,
+ * interleaved (pool 1, queue 1, queue 2, pool 2, then again) so drifting machine load hits all alike.
+ * Reports the 2-worker speed-up of the queue (target ≥ 1.8× on two free cores) and the queue's overhead
+ * against the pool at equal worker count (target ≤ 10 %), and checks that the four give the same document.
+ * Workers and pool threads are started and warmed before the clock starts (start-up is not part of a run).
+ *
+ * The ensemble: the small test transect without barrier options (each draw is one baseline run of a few
+ * tens of ms), so a run takes tens of seconds. Needs redis-server (Debian package); says SKIPPED without.
+ */
+import { loadavg } from 'node:os';
+import { randomUUID } from 'node:crypto';
+import { parseScenario } from '../server/model/scenario.ts';
+import { makePoolRunner } from '../server/jobs/pool-runner.ts';
+import { makeQueueRunner } from '../server/jobs/queue-runner.ts';
+import { runEvaluation } from '../server/jobs/evaluation-job.ts';
+import type { TaskRunner } from '../server/jobs/task-runner.ts';
+import { smallEnsembleScenario } from '../tests/analysis/ensemble/ensemble-fixture.ts';
+import { comparable } from '../tests/jobs/compare.ts';
+import { hasRedisServer, startQueueWorker, startRedis, type WorkerProcess } from '../tests/helpers/redis.ts';
+
+const DRAWS = Number(process.env.BENCH_DRAWS ?? 1000);
+const ROUNDS = Number(process.env.BENCH_ROUNDS ?? 2);
+
+if (!hasRedisServer) {
+  console.log('SKIPPED jobs bench: redis-server is not installed (Debian package redis-server)');
+  process.exit(0);
+}
+
+const scenario = parseScenario(
+  smallEnsembleScenario({
+    uncertainty: { draws: DRAWS, seed: 1, criticalWidth: false },
+    transport: undefined,
+    barrier: undefined,
+    horizonYears: 20,
+    numerics: { cellM: 25, stepYears: 0.05 },
+  }),
+);
+
+async function timed(runner: TaskRunner): Promise<{ seconds: number; doc: string }> {
+  const t0 = performance.now();
+  const out = await runEvaluation(scenario, runner);
+  const seconds = (performance.now() - t0) / 1000;
+  if (out.kind !== 'done') throw new Error('evaluation did not finish');
+  return { seconds, doc: comparable(out.document) };
+}
+
+const redis = await startRedis();
+process.env.QUEUE_NAME = `bench-${randomUUID().slice(0, 8)}`;
+const workers: WorkerProcess[] = [];
+const times: Record<string, number[]> = { pool1: [], queue1: [], queue2: [], pool2: [] };
+const docs = new Set<string>();
+const load: number[] = [loadavg()[0]];
+try {
+  const queue = await makeQueueRunner({ url: redis.url });
+  // Threads started and kept, as a queue worker keeps its own: no run pays for loading the code.
+  const pool1 = makePoolRunner({ threads: 1, minThreads: 1, idleTimeoutMs: 3_600_000 });
+  const pool2 = makePoolRunner({ threads: 2, minThreads: 2, idleTimeoutMs: 3_600_000 });
+  const warm = (r: TaskRunner) => r.map('runner-probe', [{ spinMs: 300 }, { spinMs: 300 }]);
+  await Promise.all([warm(pool1), warm(pool2)]);
+  const env = { REDIS_URL: redis.url, QUEUE_NAME: process.env.QUEUE_NAME, THREADS: '1' };
+  workers.push(await startQueueWorker(env));
+  await warm(queue);
+  for (let round = 0; round < ROUNDS; round++) {
+    let r = await timed(pool1);
+    times.pool1.push(r.seconds);
+    docs.add(r.doc);
+    r = await timed(queue); // one worker
+    times.queue1.push(r.seconds);
+    docs.add(r.doc);
+    const second = await startQueueWorker(env);
+    await warm(queue);
+    r = await timed(queue); // two workers
+    times.queue2.push(r.seconds);
+    docs.add(r.doc);
+    await second.kill();
+    r = await timed(pool2);
+    times.pool2.push(r.seconds);
+    docs.add(r.doc);
+    load.push(loadavg()[0]);
+    console.log(`round ${round + 1}: pool 1 thread ${times.pool1.at(-1)!.toFixed(2)} s, queue 1 worker ${times.queue1.at(-1)!.toFixed(2)} s, queue 2 workers ${times.queue2.at(-1)!.toFixed(2)} s, pool 2 threads ${times.pool2.at(-1)!.toFixed(2)} s`);
+  }
+  await Promise.all([queue.close(), pool1.close(), pool2.close()]);
+} finally {
+  await Promise.allSettled(workers.map((w) => w.kill()));
+  await redis.stop();
+}
+
+const median = (xs: number[]) => {
+  const s = [...xs].sort((a, b) => a - b);
+  return s.length % 2 ? s[(s.length - 1) / 2] : (s[s.length / 2 - 1] + s[s.length / 2]) / 2;
+};
+const ratio = (a: number[], b: number[]) => median(a.map((x, i) => x / b[i]));
+const speedup = ratio(times.queue1, times.queue2);
+const over1 = ratio(times.queue1, times.pool1) - 1;
+const over2 = ratio(times.queue2, times.pool2) - 1;
+console.log(`\n${DRAWS}-draw ensemble, ${ROUNDS} round(s); 1-minute load average of the machine during the bench: ${load.map((x) => x.toFixed(1)).join(' → ')} (2 cores)`);
+console.log(`queue, 2 workers vs 1: speed-up ${speedup.toFixed(2)}× (target ≥ 1.8× on two free cores)`);
+console.log(`queue vs local pool, 1 worker: overhead ${(100 * over1).toFixed(1)} %; 2 workers: ${(100 * over2).toFixed(1)} % (target ≤ 10 %)`);
+console.log(`same document from all four: ${docs.size === 1 ? 'yes' : `NO (${docs.size} different)`}`);
+if (docs.size !== 1) process.exitCode = 1;

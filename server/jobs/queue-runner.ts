@@ -1,0 +1,245 @@
+/**
+ * The distributed runner: tasks become BullMQ jobs in Redis and are taken by `npm run worker` processes on
+ * any machine with the code and the same REDIS_URL.
+ *
+ * - Job ids are the task keys (tool version + scenario fingerprint + piece), so a piece resubmitted after a
+ *   retry or a server restart is computed once; the tool version travels in the job and a worker of another
+ *   version refuses it with a message naming both.
+ * - Results, failures and progress come through one QueueEvents stream (no listener per job); a reconcile
+ *   pass every few seconds (and whenever the connection comes back) reads the state of every outstanding
+ *   job, so an event missed while Redis was away is never waited for in vain, and a job that an emptied
+ *   Redis lost is added again: accepted work is never lost.
+ * - Cancel removes waiting jobs and tells workers (pub/sub) to stop running ones.
+ * - A worker killed mid-task loses its lock; another worker's stalled-job check puts the task back.
+ */
+import { randomUUID } from 'node:crypto';
+import { Queue, QueueEvents, type JobsOptions } from 'bullmq';
+import type { Redis } from 'ioredis';
+import { TOOL } from '../version.ts';
+import { fromJsonSafe, toJsonSafe } from './json-safe.ts';
+import { cancelChannel, jobIdOf, queueName, redactedUrl, redisConnection } from './queue-config.ts';
+import { CancelledError, DETACH, type MapOptions, type RunnerHealth, type TaskKind, type TaskRunner } from './task-runner.ts';
+
+/** What a queue job carries. */
+export interface QueueJobData {
+  kind: string;
+  /** JSON-safe payload (json-safe.ts). */
+  payload: unknown;
+  /** Version of the tool that made the job; workers of another version refuse it. */
+  toolVersion: string;
+}
+
+export interface QueueRunnerOptions {
+  /** redis://[user:password@]host:port[/db] */
+  url: string;
+  /** Evaluations the web server lets run at once (their tasks spread over the workers). Default 4. */
+  concurrency?: number;
+  /** Interval of the reconcile pass [ms] (default 3 s). */
+  reconcileMs?: number;
+  log?: (message: string) => void;
+}
+
+interface Waiter {
+  resolve: (r: unknown) => void;
+  reject: (e: unknown) => void;
+  onProgress?: (fraction: number, stage: string) => void;
+  data: QueueJobData;
+}
+
+const JOB_OPTIONS: JobsOptions = {
+  // Failures of a computation are deterministic: no retries (stalled workers are handled separately).
+  attempts: 1,
+  // Kept a while so a restarted server can still collect results it had not stored yet.
+  removeOnComplete: { age: 3_600 },
+  removeOnFail: { age: 3_600 },
+};
+
+export interface QueueRunner extends TaskRunner {
+  /** Queue workers seen at the last check. */
+  workers(): number;
+}
+
+export async function makeQueueRunner(opts: QueueRunnerOptions): Promise<QueueRunner> {
+  const name = queueName();
+  const shownUrl = redactedUrl(opts.url);
+  const conn = redisConnection(opts.url, 'barrier-web-queue');
+  const eventsConn = redisConnection(opts.url, 'barrier-web-events');
+  const pub: Redis = redisConnection(opts.url, 'barrier-web-cancel');
+  const queue = new Queue<QueueJobData>(name, { connection: conn });
+  const events = new QueueEvents(name, { connection: eventsConn });
+  const waiters = new Map<string, Waiter[]>();
+  let healthy = true;
+  let problem = '';
+  let workerCount = 0;
+  let closed = false;
+
+  const setTrouble = (what: string) => {
+    if (healthy) opts.log?.(`queue unavailable (${what}), retrying`);
+    healthy = false;
+    problem = what;
+  };
+  for (const c of [conn, eventsConn, pub]) {
+    c.on('error', (e: Error) => setTrouble(`Redis at ${shownUrl}: ${e.message}`));
+    c.on('close', () => !closed && setTrouble(`Redis at ${shownUrl} closed the connection`));
+    c.on('ready', () => {
+      if (!healthy && conn.status === 'ready' && eventsConn.status === 'ready') {
+        healthy = true;
+        opts.log?.(`queue at ${shownUrl} reachable again`);
+        void reconcile();
+      }
+    });
+  }
+  // Errors are reported through health(); the emitters must have a listener so they never throw.
+  queue.on('error', () => {});
+  events.on('error', () => {});
+
+  const settle = (id: string, f: (w: Waiter) => void) => {
+    const ws = waiters.get(id);
+    if (!ws) return;
+    waiters.delete(id);
+    for (const w of ws) f(w);
+  };
+  const parseReturn = (v: unknown) => fromJsonSafe(typeof v === 'string' ? JSON.parse(v) : v);
+  events.on('completed', ({ jobId, returnvalue }) => settle(jobId, (w) => w.resolve(parseReturn(returnvalue))));
+  events.on('failed', ({ jobId, failedReason }) => settle(jobId, (w) => w.reject(new Error(failedReason))));
+  events.on('progress', ({ jobId, data }) => {
+    const d = data as { fraction?: number; stage?: string };
+    if (typeof d?.fraction === 'number') for (const w of waiters.get(jobId) ?? []) w.onProgress?.(d.fraction, d.stage ?? '');
+  });
+
+  const add = async (ids: string[], datas: QueueJobData[]) => {
+    // A job of the same id left failed (an earlier cancel or refusal) would block the add: remove it first.
+    const states = await Promise.all(ids.map((id) => queue.getJobState(id)));
+    await Promise.all(ids.map((id, i) => (states[i] === 'failed' ? queue.remove(id).catch(() => 0) : 0)));
+    await queue.addBulk(ids.map((id, i) => ({ name: datas[i].kind, data: datas[i], opts: { ...JOB_OPTIONS, jobId: id } })));
+  };
+
+  let reconciling = false;
+  /** Reads the state of every outstanding job: collects missed results, re-adds jobs Redis lost. */
+  const reconcile = async () => {
+    if (reconciling || closed) return;
+    reconciling = true;
+    try {
+      workerCount = await queue.getWorkersCount();
+      const ids = [...waiters.keys()];
+      const lost: string[] = [];
+      for (const id of ids) {
+        const state = await queue.getJobState(id);
+        if (state === 'completed' || state === 'failed') {
+          const job = await queue.getJob(id);
+          if (!job) continue;
+          if (state === 'completed') settle(id, (w) => w.resolve(parseReturn(job.returnvalue)));
+          else settle(id, (w) => w.reject(new Error(job.failedReason)));
+        } else if (state === 'unknown') lost.push(id);
+      }
+      if (lost.length) {
+        const datas = lost.map((id) => waiters.get(id)?.[0]?.data).filter((d): d is QueueJobData => d !== undefined);
+        if (datas.length === lost.length) {
+          opts.log?.(`re-adding ${lost.length} task(s) the queue no longer held (Redis restarted empty?)`);
+          await add(lost, datas);
+        }
+      }
+    } catch {
+      // Unreachable: health() says so; the next pass tries again.
+    } finally {
+      reconciling = false;
+    }
+  };
+  const timer = setInterval(() => void reconcile(), opts.reconcileMs ?? 3_000);
+  timer.unref();
+  await events.waitUntilReady().catch(() => {});
+  void reconcile();
+
+  return {
+    get where() {
+      return `${workerCount} queue worker${workerCount === 1 ? '' : 's'} (Redis at ${shownUrl})`;
+    },
+    concurrency: Math.max(1, opts.concurrency ?? 4),
+    workers: () => workerCount,
+    health(): RunnerHealth {
+      if (!healthy) return { ok: false, message: `Queue unavailable, retrying (${problem}). Accepted work is kept.` };
+      if (workerCount === 0) return { ok: false, message: 'No queue worker is connected: the work waits in the queue until one starts (npm run worker).' };
+      return { ok: true, message: `${workerCount} queue workers` };
+    },
+    async map<P, R>(kind: TaskKind, payloads: readonly P[], o: MapOptions<R> = {}): Promise<R[]> {
+      if (o.signal?.aborted) throw new CancelledError();
+      const base = o.key ?? randomUUID();
+      const ids = payloads.map((_, i) => jobIdOf(o.taskKeys?.[i] ?? `${base}:${i}`));
+      const datas: QueueJobData[] = payloads.map((p) => ({ kind, payload: toJsonSafe(p), toolVersion: TOOL.version }));
+      const own: Waiter[] = [];
+      const promises = ids.map(
+        (id, i) =>
+          new Promise<unknown>((resolve, reject) => {
+            const w: Waiter = { resolve, reject, data: datas[i], onProgress: o.onProgress ? (f, s) => o.onProgress!(i, f, s) : undefined };
+            own[i] = w;
+            waiters.set(id, [...(waiters.get(id) ?? []), w]);
+          }),
+      );
+      const mine = new Set(ids);
+      let cancelled = false;
+      /** Rejects this batch's outstanding tasks (other batches waiting on the same ids keep waiting). */
+      const dropOwn = () => {
+        const open: string[] = [];
+        ids.forEach((id, i) => {
+          const ws = waiters.get(id);
+          if (!ws || !ws.includes(own[i])) return;
+          open.push(id);
+          const rest = ws.filter((w) => w !== own[i]);
+          if (rest.length) waiters.set(id, rest);
+          else waiters.delete(id);
+          own[i].reject(new CancelledError());
+        });
+        return open;
+      };
+      const stopOpen = () => {
+        cancelled = true;
+        const open = dropOwn();
+        for (const id of open) void queue.remove(id).catch(() => 0); // waiting jobs go; active ones are locked by their worker
+        void pub.publish(cancelChannel(name), JSON.stringify(open)).catch(() => 0);
+      };
+      const onAbort = () => {
+        if (o.signal?.reason !== DETACH) return stopOpen();
+        // The caller is stopping: stop waiting, leave the tasks to the workers for its next start.
+        cancelled = true;
+        dropOwn();
+      };
+      o.signal?.addEventListener('abort', onAbort, { once: true });
+      try {
+        // Adding waits (retrying) while Redis is away; the reconcile pass re-adds whatever is lost later.
+        await add(ids, datas).catch(() => {});
+        void reconcile();
+        const results: R[] = new Array(payloads.length);
+        let failure: unknown;
+        await Promise.all(
+          promises.map((p, i) =>
+            p.then(
+              (r) => {
+                results[i] = r as R;
+                if (!cancelled) o.onResult?.(i, r as R);
+              },
+              (e) => {
+                if (failure === undefined) failure = e;
+                // The first failure stops the rest of the batch.
+                if (!cancelled && !(e instanceof CancelledError)) stopOpen();
+              },
+            ),
+          ),
+        );
+        if (o.signal?.aborted) throw new CancelledError();
+        if (failure !== undefined) throw failure;
+        for (const id of mine) void queue.remove(id).catch(() => 0); // stored by the caller; free Redis
+        return results;
+      } finally {
+        o.signal?.removeEventListener('abort', onAbort);
+      }
+    },
+    async close() {
+      closed = true;
+      clearInterval(timer);
+      for (const id of [...waiters.keys()]) settle(id, (w) => w.reject(new CancelledError('the web server is stopping')));
+      // Closing waits for Redis; when it is away, give up after a moment and drop the connections.
+      await Promise.race([Promise.allSettled([events.close(), queue.close()]), new Promise((r) => setTimeout(r, 2_000).unref())]);
+      for (const c of [conn, eventsConn, pub]) c.disconnect();
+    },
+  };
+}
