@@ -4,6 +4,7 @@ import { evaluateScenario, type EvaluateOptions } from './evaluate.ts';
 import { runEnsembleParallel } from './ensemble-pool.ts';
 import { analyseBypass, singleRunShare } from './uncertainty.ts';
 import type { ResultDocument } from './result.ts';
+import { finiteOrRefused } from './finite-guard.ts';
 
 /**
  * evaluateScenario with the ensemble on a worker pool sized to the cores (or `threads`). The document is
@@ -11,6 +12,11 @@ import type { ResultDocument } from './result.ts';
  * Progress and cancel go through the same callbacks.
  */
 export async function evaluateScenarioParallel(scenario: Scenario, opts: EvaluateOptions & { threads?: number } = {}): Promise<ResultDocument> {
+  // Non-finite numbers never become a verdict (analysis/finite-guard.ts).
+  return finiteOrRefused(() => evaluateUnguarded(scenario, opts));
+}
+
+async function evaluateUnguarded(scenario: Scenario, opts: EvaluateOptions & { threads?: number }): Promise<ResultDocument> {
   if (!scenario.uncertainty) return evaluateScenario(scenario, opts);
   const share = singleRunShare(scenario);
   const doc = evaluateScenario(scenario, {

@@ -1,5 +1,6 @@
 import { makeDiffusionOperator, type DiffusionOperator } from '../numerics/diffusion.ts';
 import { makeCoupledStepper } from '../numerics/coupled.ts';
+import { checkFiniteCoefficients } from '../numerics/finite.ts';
 import { runTimeLoop, type FieldStepper, type Observer, type SolverResult } from '../numerics/time-loop.ts';
 import type { PointScenario } from '../model/scenario.ts';
 import { discretise, type Resolution, type TransectProblem } from './discretise.ts';
@@ -76,6 +77,7 @@ export function runLayout(req: RunRequest): RunOutput {
   const problem = req.problem ?? discretise(s, req.pieces, req.resolution);
   const tEnd = req.tEnd ?? s.horizonYears;
   const { grid } = problem;
+  checkFiniteCoefficients(problem); // refuses coefficients that would turn the run into NaN (numerics/finite.ts)
   const { stepper } = makeEngineStepper(problem);
   const u = Float64Array.from(req.initialDensity ? req.initialDensity(problem) : problem.u0);
   if (u.length !== grid.nCells) throw new RangeError(`initialDensity gave ${u.length} values for ${grid.nCells} cells`);

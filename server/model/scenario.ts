@@ -3,6 +3,7 @@ import { FIELDS, describeRange } from './fields.ts';
 import { PestSchema, NON_HOST_PEST_FIELDS } from './pest.ts';
 import { quantitySchema, valueSchema, resolveQuantities, type Resolved } from './quantity.ts';
 import { ScenarioError, problemsFromZod, formatPath, type Problem } from './errors.ts';
+import { JsonTextError, parseJsonText } from './json-text.ts';
 
 /** Habitat types a transect segment can have. */
 export const HABITATS = ['host-forest', 'clearing', 'non-host-forest'] as const;
@@ -326,16 +327,27 @@ export function parseScenario(input: unknown): Scenario {
   return r.data;
 }
 
-/** Parses scenario JSON text; a syntax error becomes a ScenarioError with the position. */
+/**
+ * Parses scenario JSON text (model/json-text.ts: a byte-order mark is dropped; a syntax error is reported with
+ * its line and column; duplicate keys, `__proto__`/`constructor`/`prototype` keys and numbers that would
+ * change on reading are refused), then validates it.
+ * @throws ScenarioError listing every problem
+ */
 export function parseScenarioText(text: string): Scenario {
   let raw: unknown;
   try {
-    raw = JSON.parse(text);
+    raw = parseJsonText(text);
   } catch (e) {
-    const start = text.trim().slice(0, 40);
-    throw new ScenarioError([
-      { path: '', value: start === '' ? '(empty file)' : start, message: `is not valid JSON (${(e as Error).message}); a scenario file is one JSON object` },
-    ]);
+    if (!(e instanceof JsonTextError)) throw e;
+    throw new ScenarioError(
+      e.problems.map((p) =>
+        p.path === '' && p.value === '(empty)'
+          ? { ...p, value: '(empty file)', message: `${p.message}; a scenario file is one JSON object` }
+          : p.path === ''
+            ? { ...p, message: `${p.message}; a scenario file is one JSON object` }
+            : p,
+      ),
+    );
   }
   return parseScenario(raw);
 }

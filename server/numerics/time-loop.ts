@@ -1,5 +1,6 @@
 import type { DiffusionCounters, DiffusionStepper } from './diffusion.ts';
 import type { ReactionCounters, ReactionStepper } from './reaction.ts';
+import { checkFiniteState } from './finite.ts';
 
 /** The fields at the end of a step, as observers see them (do not mutate). */
 export interface FieldState {
@@ -119,6 +120,8 @@ export function runTimeLoop(stepper: FieldStepper, u: Float64Array, h: Float64Ar
       break;
     }
     if (k % pollEvery === 0) {
+      // Non-finite values never become a verdict: the run stops here with the time and the cell (numerics/finite.ts).
+      checkFiniteState(u, h, tNext);
       onProgress?.(tNext / tEnd);
       if (shouldCancel?.()) {
         status = 'cancelled';
@@ -127,6 +130,7 @@ export function runTimeLoop(stepper: FieldStepper, u: Float64Array, h: Float64Ar
       }
     }
   }
+  checkFiniteState(u, h, state.t);
   for (const o of observers) o.finalize?.(state);
   const counters = stepper.counters();
   return {

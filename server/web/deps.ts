@@ -13,4 +13,6 @@ export interface WebDeps {
   briefings: BriefingRenderer;
   /** Route config that switches the compute rate limit on. */
   computeRateLimit: { max: number; timeWindow: string };
+  /** Route config for form and scenario-writing posts: their own rate limit (a person never reaches it). */
+  formPost: { rateLimit: { max: number; timeWindow: string }; rateLimitWhat: string };
 }

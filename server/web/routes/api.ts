@@ -92,7 +92,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
 
   api.post(
     '/api/scenarios',
-    { schema: { tags: ['scenarios'], summary: 'Save a new scenario', body: ScenarioSchema, response: { 201: ScenarioEntry, ...errors } } },
+    { config: deps.formPost, schema: { tags: ['scenarios'], summary: 'Save a new scenario', body: ScenarioSchema, response: { 201: ScenarioEntry, ...errors } } },
     async (req, reply) => {
       const saved = store.createScenario(req.body as Scenario);
       reply.code(201).header('location', `/api/scenarios/${saved.id}`);
@@ -112,6 +112,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
   api.put(
     '/api/scenarios/:ref',
     {
+      config: deps.formPost,
       schema: {
         tags: ['scenarios'],
         summary: 'Replace a saved scenario (demo scenarios are read-only)',
@@ -131,7 +132,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
 
   api.delete(
     '/api/scenarios/:ref',
-    { schema: { tags: ['scenarios'], summary: 'Delete a saved scenario', params: RefParams, response: { 204: z.undefined(), 409: ErrorSchema, ...errors } } },
+    { config: deps.formPost, schema: { tags: ['scenarios'], summary: 'Delete a saved scenario', params: RefParams, response: { 204: z.undefined(), 409: ErrorSchema, ...errors } } },
     async (req, reply) => {
       const e = entryOr404(req.params.ref);
       const id = savedId(e.ref);
