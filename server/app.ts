@@ -18,7 +18,7 @@ import security from './web/plugins/security.ts';
 import errors, { frameworkErrors } from './web/plugins/errors.ts';
 import openapi from './web/plugins/openapi.ts';
 import jsonBody from './web/plugins/json-body.ts';
-import { openStore } from './web/store.ts';
+import { openStore, type StoreOptions } from './web/store.ts';
 import { loadDemos, makeCatalogue } from './web/catalogue.ts';
 import { makeJobRunner } from './web/jobs.ts';
 import { makeBriefingRenderer } from './web/briefings.ts';
@@ -47,6 +47,8 @@ export interface AppOptions {
   computePerMinute?: number;
   /** Form posts and scenario writes per client per minute. */
   formPerMinute?: number;
+  /** Free-space threshold and (for tests) a database size cap: see StoreOptions in web/store.ts. */
+  storage?: StoreOptions;
   /** Host names besides 127.0.0.1, localhost and ::1 that requests may be addressed to (see security.ts). */
   allowedHosts?: readonly string[];
   /** Largest request body [bytes]. */
@@ -73,7 +75,8 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
     frameworkErrors: (err, req, reply) => frameworkErrors(err, req, reply, (name, data) => app.view(name, data)),
   });
   const limits: WebLimits = { ...DEFAULT_LIMITS, ...options.limits };
-  const store = openStore(options.dataDir ?? join(process.cwd(), 'data'));
+  // Throws DataDirError (one message naming DATA_DIR) when the folder cannot be written.
+  const store = openStore(options.dataDir ?? join(process.cwd(), 'data'), options.storage);
   const demos = loadDemos(options.scenariosDir ?? DEFAULT_SCENARIOS_DIR, (msg) => app.log.warn(msg));
   const jobs = makeJobRunner({
     store,

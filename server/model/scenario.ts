@@ -4,6 +4,7 @@ import { PestSchema, NON_HOST_PEST_FIELDS } from './pest.ts';
 import { quantitySchema, valueSchema, resolveQuantities, type Resolved } from './quantity.ts';
 import { ScenarioError, problemsFromZod, formatPath, type Problem } from './errors.ts';
 import { JsonTextError, parseJsonText } from './json-text.ts';
+import { textField } from './text.ts';
 
 /** Habitat types a transect segment can have. */
 export const HABITATS = ['host-forest', 'clearing', 'non-host-forest'] as const;
@@ -16,7 +17,7 @@ const optionalFrom = valueSchema(FIELDS.positionKm).optional();
 
 export const HostForestSegmentSchema = z.strictObject({
   habitat: z.literal('host-forest'),
-  name: z.string().max(80).optional(),
+  name: textField(80).optional(),
   /** Start [km]; optional, checked against the end of the previous segment when given. */
   fromKm: optionalFrom,
   lengthKm: valueSchema(FIELDS.lengthKm),
@@ -28,7 +29,7 @@ export const HostForestSegmentSchema = z.strictObject({
 
 export const OtherSegmentSchema = z.strictObject({
   habitat: z.enum(['clearing', 'non-host-forest']),
-  name: z.string().max(80).optional(),
+  name: textField(80).optional(),
   fromKm: optionalFrom,
   lengthKm: valueSchema(FIELDS.lengthKm),
 });
@@ -56,12 +57,12 @@ export const TransectSchema = z.strictObject({
 });
 
 export const SiteSchema = z.strictObject({
-  name: z.string().min(1, { error: 'must not be empty' }).max(80),
+  name: textField(80, { required: true }),
   atKm: valueSchema(FIELDS.positionKm),
 });
 
 export const BarrierOptionSchema = z.strictObject({
-  name: z.string().min(1, { error: 'must not be empty' }).max(80),
+  name: textField(80, { required: true }),
   /** Start of the clearing along the transect [km]. */
   fromKm: valueSchema(FIELDS.positionKm),
   widthM: valueSchema(FIELDS.widthM),
@@ -73,7 +74,7 @@ export const BarrierSchema = z.strictObject({
   lengthKm: valueSchema(FIELDS.barrierLengthKm),
   costPerStem: valueSchema(FIELDS.costPerStem).optional(),
   /** Currency or unit printed next to costs, e.g. "EUR" (free text). */
-  costUnit: z.string().max(12).optional(),
+  costUnit: textField(12).optional(),
   options: z.array(BarrierOptionSchema).max(8, { error: 'at most 8 options per scenario' }).default([]),
   /** Tolerance of the critical-width bracket [m]; 10 m when absent (applied by the analysis). */
   toleranceM: valueSchema(FIELDS.widthToleranceM).optional(),
@@ -87,7 +88,7 @@ export const BarrierSchema = z.strictObject({
 
 /** A periodic thinning pattern (strip thinning): host-forest strips alternating with host-free strips. */
 export const MosaicSchema = z.strictObject({
-  name: z.string().min(1, { error: 'must not be empty' }).max(80),
+  name: textField(80, { required: true }),
   /** Host-forest strip width along the direction of spread [m]. */
   forestM: valueSchema(FIELDS.widthM),
   /** Host-free strip width [m]. */
@@ -171,9 +172,9 @@ export const SCENARIO_VERSION = 1;
 
 const ScenarioObjectSchema = z.strictObject({
   version: z.literal(SCENARIO_VERSION, { error: `must be ${SCENARIO_VERSION}` }).default(SCENARIO_VERSION),
-  title: z.string().min(1, { error: 'must not be empty' }).max(300, { error: 'must be at most 300 characters' }),
-  description: z.string().max(4000).default(''),
-  region: z.string().max(200).optional(),
+  title: textField(300, { required: true }),
+  description: textField(4000, { multiline: true }).default(''),
+  region: textField(200).optional(),
   pest: PestSchema,
   transect: TransectSchema,
   infestation: z.strictObject({

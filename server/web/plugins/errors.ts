@@ -34,6 +34,7 @@ const HTTP_TITLES: Record<number, string> = {
   414: 'Address too long',
   415: 'Unsupported content',
   421: 'Unknown host name',
+  422: 'Cannot be drawn',
   429: 'Too many requests',
   500: 'Something went wrong on our side',
   503: 'Busy',
@@ -59,9 +60,10 @@ export default fp(
       if (err instanceof InputError) {
         const n = err.problems.length;
         // An input error may carry 503 (a full queue: retry later), 413 (a form with more inputs than any of this
-        // app's) or 507 (no room left to store it); anything else is the input's fault.
+        // app's), 422 (valid, but a briefing cannot draw its text) or 507 (no room left to store it); anything
+        // else is the input's fault.
         const carried = (err as { statusCode?: number }).statusCode;
-        const status = carried === 503 || carried === 413 || carried === 507 ? carried : 400;
+        const status = carried === 503 || carried === 413 || carried === 422 || carried === 507 ? carried : 400;
         if (status === 503) reply.header('retry-after', '60');
         return send(req, reply, status, {
           error: err.code,

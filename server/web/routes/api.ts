@@ -154,7 +154,13 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
           'Answers 202 with the job; poll GET /api/evaluations/{id} (or listen to /api/evaluations/{id}/events) until `finished`, ' +
           'then fetch /api/results/{resultId}. Limits on cells, horizon, options and wall time answer 400 with the field concerned.',
         body: EvaluationRequest,
-        response: { 202: JobSchema, 429: ErrorSchema, 503: ErrorSchema.describe('The queue is full; retry after the Retry-After seconds'), ...errors },
+        response: {
+          202: JobSchema,
+          429: ErrorSchema,
+          503: ErrorSchema.describe('The queue is full; retry after the Retry-After seconds'),
+          507: ErrorSchema.describe('The disk holding the data folder is (nearly) full; nothing was started'),
+          ...errors,
+        },
       },
     },
     async (req, reply) => {
@@ -168,6 +174,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
         if (entry || !(e instanceof LimitError)) throw e;
         throw new LimitError(e.problems.map((p) => ({ ...p, path: `scenario.${p.path}` })));
       }
+      store.checkSpace();
       const job = jobs.submit({ scenario, scenarioRef: entry?.ref ?? null });
       reply.code(202).header('location', `/api/evaluations/${job.id}`);
       return withResultId(job.id);

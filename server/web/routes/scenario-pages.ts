@@ -145,6 +145,8 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
         if (e instanceof InputError) return renderForm(reply, t, state, e.problems, 400);
         throw e;
       }
+      // A nearly full disk is refused before the run, not after it (507 naming DATA_DIR).
+      store.checkSpace();
     }
     const id = t.entry && !t.entry.readOnly ? savedId(t.entry.ref) : undefined;
     const ref = id !== undefined && store.updateScenario(id, scenario) ? String(id) : String(store.createScenario(scenario).id);
@@ -188,6 +190,7 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
   app.post<RefParams>('/scenarios/:ref/run', { config: { rateLimit: deps.computeRateLimit } }, async (req, reply) => {
     const entry = entryOr404(req.params.ref);
     checkLimits(entry.scenario, limits);
+    store.checkSpace();
     const job = jobs.submit({ scenario: entry.scenario, scenarioRef: entry.ref });
     return reply.redirect(`/runs/${job.id}`, 303);
   });
@@ -238,16 +241,32 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
     if (!req.isMultipart()) {
       return listPage(reply, { uploadProblems: [{ path: 'file', value: undefined, message: 'choose a scenario file (.json) to upload' }] }, 400);
     }
-    const file = await req.file({ limits: { fileSize: UPLOAD_LIMIT_BYTES, files: 1 } });
+    // A truncated or malformed upload (cut off mid-file, no boundary, a damaged part header) is the sender's
+    // fault: 400 with what to do, never a 500.
+    const damaged = (e: unknown) => {
+      req.log.info({ err: e }, 'damaged upload');
+      return listPage(
+        reply,
+        { uploadProblems: [{ path: 'file', value: undefined, message: `the upload arrived incomplete or damaged (${(e as Error).message}); choose the file and upload it again` }] },
+        400,
+      );
+    };
+    let file: Awaited<ReturnType<typeof req.file>>;
+    try {
+      file = await req.file({ limits: { fileSize: UPLOAD_LIMIT_BYTES, files: 1 } });
+    } catch (e) {
+      return damaged(e);
+    }
     if (!file) return listPage(reply, { uploadProblems: [{ path: 'file', value: undefined, message: 'choose a scenario file (.json) to upload' }] }, 400);
-    const tooLarge = () => listPage(reply, { uploadProblems: [{ path: 'file', value: file.filename, message: `is larger than ${UPLOAD_LIMIT_BYTES / 1e6} MB, the most this server accepts` }] }, 413);
+    const filename = file.filename;
+    const tooLarge = () => listPage(reply, { uploadProblems: [{ path: 'file', value: filename, message: `is larger than ${UPLOAD_LIMIT_BYTES / 1e6} MB, the most this server accepts` }] }, 413);
     let buffer: Buffer;
     try {
       buffer = await file.toBuffer();
     } catch (e) {
       // The multipart reader throws once the file passes the size limit.
       if ((e as { code?: string }).code === 'FST_REQ_FILE_TOO_LARGE') return tooLarge();
-      throw e;
+      return damaged(e);
     }
     if (file.file.truncated) return tooLarge();
     let scenario: Scenario;
