@@ -42,8 +42,8 @@ function readBackValues(scenario: Scenario, read: string | undefined): string {
     const path = name.replace('~', '.').split(/[.[\]]+/).filter(Boolean).map((k) => (/^\d+$/.test(k) ? Number(k) : k));
     const v = valueAt(scenario, path);
     const unit = inputUnit(name) ? ` ${inputUnit(name)}` : '';
-    if (typeof v === 'number') items.push(`${name} = ${v}${unit}`);
-    else if (Array.isArray(v) && v.every((x) => typeof x === 'number')) items.push(`${name} = ${v.join(', ')}${unit}`);
+    if (typeof v === 'number') items.push(`${name}: ${v}${unit}`);
+    else if (Array.isArray(v) && v.every((x) => typeof x === 'number')) items.push(`${name}: ${v.join(', ')}${unit}`);
   }
   return items.length ? ` Numbers read from what you typed: ${items.join('; ')}.` : '';
 }
