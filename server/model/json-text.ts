@@ -143,11 +143,11 @@ function scan(text: string, problems: Problem[]): void {
     const path = stack.length ? childPath(stack[stack.length - 1]) : '';
     const c = text[i];
     if (c === '{' || c === '[') {
+      if (stack.length >= MAX_JSON_DEPTH) throw new Stop(i, `the text is nested more than ${MAX_JSON_DEPTH} levels deep; a scenario is about six`);
       i++;
       ws();
       if (text[i] === (c === '{' ? '}' : ']')) i++;
       else {
-        if (stack.length >= MAX_JSON_DEPTH) throw new Stop(i - 1, `the text is nested more than ${MAX_JSON_DEPTH} levels deep; a scenario is about six`);
         const f: Frame = { obj: c === '{', path, keys: c === '{' ? new Map() : null, key: '', index: 0 };
         stack.push(f);
         if (f.obj) readKey(f);
