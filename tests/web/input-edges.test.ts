@@ -145,3 +145,25 @@ describe('uploads', () => {
     expect((await t.app.inject('/scenarios')).statusCode).toBe(200);
   });
 });
+
+describe('tiny widths (regression: saved with 201, then 500 from makeGrid "breakpoints must increase")', () => {
+  it('are refused at save and at run by the API, the form and the CLI, naming the field', async () => {
+    const raw = JSON.parse(quickText);
+    raw.barrier.options[0].widthM = 1e-12;
+    const save = await t.app.inject({ method: 'POST', url: '/api/scenarios', headers: { 'content-type': 'application/json' }, payload: JSON.stringify(raw) });
+    expect(save.statusCode).toBe(400);
+    expect(save.json().problems).toEqual([{ path: 'barrier.options[0].widthM', value: 1e-12, message: 'must be ≥ 1 and ≤ 100000 m' }]);
+    const run = await t.app.inject({ method: 'POST', url: '/api/evaluations', headers: { 'content-type': 'application/json' }, payload: JSON.stringify({ scenario: raw }) });
+    expect(run.statusCode).toBe(400);
+    expect(run.json().problems[0].path).toBe('scenario.barrier.options[0].widthM');
+    const file = join(dir, 'tiny.json');
+    writeFileSync(file, JSON.stringify(raw));
+    const err: string[] = [];
+    const spy = vi.spyOn(process.stderr, 'write').mockImplementation((s) => (err.push(String(s)), true));
+    const code = await main([file, '--quiet']);
+    spy.mockRestore();
+    expect(code).toBe(1);
+    expect(err.join('')).toContain('barrier.options[0].widthM = 1e-12: must be ≥ 1 and ≤ 100000 m');
+    expect(err.join('')).not.toContain('RangeError');
+  });
+});
