@@ -16,7 +16,8 @@ import views from './web/plugins/views.ts';
 import security from './web/plugins/security.ts';
 import errors, { frameworkErrors } from './web/plugins/errors.ts';
 import openapi from './web/plugins/openapi.ts';
-import { openStore } from './web/store.ts';
+import jsonBody from './web/plugins/json-body.ts';
+import { openStore, type StoreOptions } from './web/store.ts';
 import { loadDemos, makeCatalogue } from './web/catalogue.ts';
 import { makeJobRunner } from './web/jobs.ts';
 import { makeBriefingRenderer } from './web/briefings.ts';
@@ -58,6 +59,12 @@ export interface AppOptions {
   shutdownGraceMs?: number;
   /** Compute requests (evaluations) per client per minute. */
   computePerMinute?: number;
+  /** Form posts and scenario writes per client per minute. */
+  formPerMinute?: number;
+  /** Free-space threshold and (for tests) a database size cap: see StoreOptions in web/store.ts. */
+  storage?: StoreOptions;
+  /** Host names besides 127.0.0.1, localhost and ::1 that requests may be addressed to (see security.ts). */
+  allowedHosts?: readonly string[];
   /** Largest request body [bytes]. */
   bodyLimit?: number;
   /** Cache compiled templates (default true; false reloads templates on every request). */
@@ -69,6 +76,8 @@ export const ASSETS_DIR = fileURLToPath(new URL('./web/assets/', import.meta.url
 /** Default request body limit [bytes]: a scenario of hundreds of segments is well below it. */
 export const DEFAULT_BODY_LIMIT = 1_048_576;
 export const DEFAULT_COMPUTE_PER_MINUTE = 30;
+/** Form posts per client per minute: four a second for a minute, far beyond a person clicking row buttons. */
+export const DEFAULT_FORM_PER_MINUTE = 240;
 
 export async function buildApp(options: AppOptions = {}): Promise<FastifyInstance> {
   const bodyLimit = options.bodyLimit ?? DEFAULT_BODY_LIMIT;
@@ -80,7 +89,8 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
     frameworkErrors: (err, req, reply) => frameworkErrors(err, req, reply, (name, data) => app.view(name, data)),
   });
   const limits: WebLimits = { ...DEFAULT_LIMITS, ...options.limits };
-  const store = openStore(options.dataDir ?? join(process.cwd(), 'data'));
+  // Throws DataDirError (one message naming DATA_DIR) when the folder cannot be written.
+  const store = openStore(options.dataDir ?? join(process.cwd(), 'data'), options.storage);
   const demos = loadDemos(options.scenariosDir ?? DEFAULT_SCENARIOS_DIR, (msg) => app.log.warn(msg));
   const ownRunner = !options.runner;
   const runner = options.runner ?? makePoolRunner({ threads: options.ensembleThreads ?? defaultThreadCount() });
@@ -104,7 +114,8 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
   });
 
   const computePerMinute = options.computePerMinute ?? DEFAULT_COMPUTE_PER_MINUTE;
-  await app.register(security, { computePerMinute });
+  await app.register(security, { computePerMinute, allowedHosts: options.allowedHosts });
+  await app.register(jsonBody);
   await app.register(formbody, { bodyLimit });
   await app.register(multipart, { limits: { fileSize: bodyLimit, files: 1, fields: 10, parts: 12 } });
   await app.register(fastifySSE, { heartbeatInterval: 15_000 });
@@ -121,6 +132,7 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
     briefings,
     streams: makeStreamGate({ ...DEFAULT_STREAM_LIMITS, ...options.streamLimits }),
     computeRateLimit: { max: computePerMinute, timeWindow: '1 minute' },
+    formPost: { rateLimit: { max: options.formPerMinute ?? DEFAULT_FORM_PER_MINUTE, timeWindow: '1 minute' }, rateLimitWhat: 'form posts' },
   };
   await app.register(scenarioPages, deps);
   await app.register(runPages, deps);

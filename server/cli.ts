@@ -1,14 +1,20 @@
 /**
  * Command line: `npm run evaluate -- <scenario.json> [--json] [--out FILE] [--pdf FILE]`.
- * Calls the same analysis as the web routes; writes output files atomically (temporary file, then rename).
+ * Calls the same analysis as the web routes. Output files are written atomically (a hidden temporary file in
+ * the same folder, then a rename); `--pdf` with `--out` are written as one pair (both temporaries first, then
+ * a small journal, then both renames), and a run killed midway is cleaned up or completed by the next run
+ * that writes to the same folder. Text from the scenario is never written raw to the terminal.
  */
-import { accessSync, constants, readFileSync, renameSync, statSync, writeFileSync, rmSync } from 'node:fs';
+import { accessSync, closeSync, constants, existsSync, fsyncSync, openSync, readdirSync, readFileSync, renameSync, statSync, writeSync, rmSync } from 'node:fs';
 import { dirname, basename, join } from 'node:path';
 import { parseScenarioText } from './model/scenario.ts';
 import { InputError, formatProblems } from './model/errors.ts';
 import { evaluateScenarioParallel } from './analysis/evaluate/evaluate.ts';
+import { parseJsonText } from './model/json-text.ts';
+import { NON_FINITE_CODE } from './numerics/finite.ts';
 import { textSummary } from './report/text-summary.ts';
 import { renderBriefing } from './report/briefing.ts';
+import { briefingTextProblems } from './report/pdf/fonts.ts';
 
 const USAGE = `usage: npm run evaluate -- <scenario.json> [--json] [--out FILE] [--pdf FILE]
   --json        print the result document (JSON) instead of the readable summary
@@ -16,10 +22,13 @@ const USAGE = `usage: npm run evaluate -- <scenario.json> [--json] [--out FILE] 
   --pdf FILE    also write the PDF briefing to FILE (alone, without --json/--out, nothing else is printed)
   --quiet       no progress bar
   --threads N   worker threads for an ensemble (default: all cores)
+  --help, -h    show this help
   Ctrl-C during an ensemble stops it, reports the draws done so far and exits with 130; a second Ctrl-C quits.`;
 
 export interface CliArgs {
   file: string;
+  /** Only print the usage. */
+  help?: boolean;
   json: boolean;
   out?: string;
   /** Write the PDF briefing here. */
@@ -34,6 +43,7 @@ export function parseArgs(argv: string[]): CliArgs {
   const args: Partial<CliArgs> = { json: false, quiet: false };
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i];
+    if (a === '--help' || a === '-h') return { file: '', json: false, quiet: true, help: true };
     if (a === '--json') args.json = true;
     else if (a === '--quiet') args.quiet = true;
     else if (a === '--out') {
@@ -50,7 +60,7 @@ export function parseArgs(argv: string[]): CliArgs {
       if (!Number.isInteger(n) || n < 1 || n > 256) throw new InputError('USAGE', [{ path: '--threads', value: v, message: 'needs a whole number from 1 to 256' }]);
       args.threads = n;
     } else if (a.startsWith('--')) {
-      throw new InputError('USAGE', [{ path: a, value: a, message: 'is not a known option (--json, --out FILE, --pdf FILE, --quiet, --threads N)' }]);
+      throw new InputError('USAGE', [{ path: a, value: a, message: 'is not a known option (--json, --out FILE, --pdf FILE, --quiet, --threads N, --help)' }]);
     } else if (args.file === undefined) args.file = a;
     else throw new InputError('USAGE', [{ path: 'arguments', value: a, message: 'only one scenario file may be given' }]);
   }
@@ -58,16 +68,112 @@ export function parseArgs(argv: string[]): CliArgs {
   return args as CliArgs;
 }
 
+/** Hidden temporary file of an output, in the output's folder: `.<name>.<pid>.tmp`. */
+function tempName(path: string): string {
+  return join(dirname(path), `.${basename(path)}.${process.pid}.tmp`);
+}
+
+/** Writes data and flushes it to the disk before returning. */
+function writeDurably(path: string, data: string | Uint8Array): void {
+  const fd = openSync(path, 'w');
+  try {
+    const bytes = typeof data === 'string' ? Buffer.from(data, 'utf8') : data;
+    let off = 0;
+    while (off < bytes.length) off += writeSync(fd, bytes, off, bytes.length - off);
+    fsyncSync(fd);
+  } finally {
+    closeSync(fd);
+  }
+}
+
 /** Writes text to a file via a temporary file in the same folder, so a failed run leaves nothing half-written. */
 export function writeAtomically(path: string, data: string | Uint8Array): void {
-  const tmp = join(dirname(path), `.${basename(path)}.${process.pid}.tmp`);
+  writeTogether([{ path, data }]);
+}
+
+/**
+ * Writes several output files as one unit: every temporary file is written and flushed first; then a
+ * journal naming the renames is written (`.<first name>.<pid>.pair`), then the renames, then the journal is
+ * removed. Killed before the journal exists, the old files stay as they were (and the next run removes the
+ * temporaries); killed after, the next run finds the journal and completes the renames (recoverOutputs).
+ */
+export function writeTogether(files: readonly { path: string; data: string | Uint8Array }[]): void {
+  const temps = files.map((f) => tempName(f.path));
+  const journal = files.length > 1 ? join(dirname(files[0].path), `.${basename(files[0].path)}.${process.pid}.pair`) : undefined;
   try {
-    writeFileSync(tmp, data);
-    renameSync(tmp, path);
+    files.forEach((f, i) => writeDurably(temps[i], f.data));
+    if (journal) {
+      writeDurably(`${journal}.tmp`, JSON.stringify({ renames: files.map((f, i) => [temps[i], f.path]) }));
+      renameSync(`${journal}.tmp`, journal);
+    }
+    files.forEach((f, i) => renameSync(temps[i], f.path));
+    if (journal) rmSync(journal, { force: true });
   } catch (e) {
-    rmSync(tmp, { force: true });
+    for (const t of temps) rmSync(t, { force: true });
+    if (journal) rmSync(`${journal}.tmp`, { force: true });
+    if (journal && existsSync(journal)) recoverJournal(journal);
     throw e;
   }
+}
+
+/** True when a process with this id is running (so its temporaries are not stale). */
+function alive(pid: number): boolean {
+  if (pid === process.pid) return true;
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (e) {
+    return (e as NodeJS.ErrnoException).code === 'EPERM';
+  }
+}
+
+/** Completes the renames a journal lists (their temporaries were complete before it was written), then removes it. */
+function recoverJournal(journal: string): void {
+  try {
+    const { renames } = JSON.parse(readFileSync(journal, 'utf8')) as { renames: [string, string][] };
+    for (const [from, to] of renames) if (existsSync(from)) renameSync(from, to);
+  } catch {
+    // A journal that cannot be read was never complete (it is renamed into place whole): nothing to finish.
+  }
+  rmSync(journal, { force: true });
+}
+
+/**
+ * Cleans up after an earlier run killed while writing into the folders of these outputs: completes the pair
+ * writes whose journal exists, then removes hidden temporaries of processes that no longer run.
+ * @returns the names of what was completed or removed (for a note on standard error)
+ */
+export function recoverOutputs(paths: readonly string[]): string[] {
+  const done: string[] = [];
+  for (const folder of new Set(paths.map((p) => dirname(p)))) {
+    let names: string[];
+    try {
+      names = readdirSync(folder);
+    } catch {
+      continue;
+    }
+    const stale = (n: string, ext: string) => {
+      const m = new RegExp(`^\\..+\\.(\\d+)\\.${ext}$`).exec(n);
+      return m !== null && !alive(Number(m[1]));
+    };
+    for (const n of names.filter((x) => stale(x, 'pair'))) {
+      recoverJournal(join(folder, n));
+      done.push(`completed the interrupted write recorded in ${join(folder, n)}`);
+    }
+    for (const n of readdirSync(folder).filter((x) => stale(x, 'tmp') || stale(x, 'pair\\.tmp'))) {
+      rmSync(join(folder, n), { force: true });
+      done.push(`removed ${join(folder, n)}, left by an interrupted run`);
+    }
+  }
+  return done;
+}
+
+/**
+ * Text safe to print on a terminal: control characters (except line breaks and tabs) and direction marks
+ * shown as `\u{…}` escapes, so no scenario text can move the cursor, ring the bell or recolour the screen.
+ */
+export function terminalSafe(s: string): string {
+  return s.replace(/[\u0000-\u0008\u000b-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/gu, (c) => `\\u{${c.codePointAt(0)!.toString(16)}}`);
 }
 
 /**
@@ -94,15 +200,16 @@ export function unwritableReason(path: string): string | undefined {
   return undefined;
 }
 
-/** A write of an output file failed (after the evaluation); the message names the option and the file. */
+/** A write of an output file failed (after the evaluation); the message names the options and the files. */
 class OutputError extends Error {}
 
-function writeOutput(option: string, path: string, data: string | Uint8Array): void {
+function writeOutputs(files: readonly { option: string; path: string; data: string | Uint8Array }[]): void {
   try {
-    writeAtomically(path, data);
+    writeTogether(files);
   } catch (e) {
     const err = e as NodeJS.ErrnoException;
-    throw new OutputError(`cannot write ${option} ${path}: ${err.code ?? err.message}; nothing was written there`);
+    const what = files.map((f) => `${f.option} ${f.path}`).join(' and ');
+    throw new OutputError(`cannot write ${what}: ${err.code ?? err.message}; ${files.length > 1 ? 'neither file was changed' : 'nothing was written there'}`);
   }
 }
 
@@ -140,32 +247,77 @@ const READ_ERRORS: Record<string, string> = {
 };
 
 /** Runs the CLI; resolves to the exit code (0 ok, 1 invalid scenario or failed run, 2 usage). */
+/** JSON text with the characters JSON.stringify leaves raw (DEL, C1 controls, direction marks) escaped as \\uXXXX. */
+function jsonSafe(text: string): string {
+  return text.replace(/[\u007f-\u009f\u202a-\u202e\u2066-\u2069]/gu, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
+}
+
+/**
+ * Runs fn with SIGTERM and SIGHUP held: writes are synchronous, so a signal arriving meanwhile is handled
+ * after them; the process then exits (143 / 129) with the files complete instead of half-written.
+ */
+async function withSignalsHeld<T>(fn: () => T): Promise<T> {
+  let received: NodeJS.Signals | undefined;
+  const hold = (sig: NodeJS.Signals) => {
+    received ??= sig;
+  };
+  const signals: NodeJS.Signals[] = ['SIGTERM', 'SIGHUP'];
+  for (const sig of signals) process.on(sig, hold);
+  try {
+    return fn();
+  } finally {
+    // Let a signal that arrived during the writes reach its handler before the handlers are removed.
+    await new Promise((r) => setImmediate(r));
+    for (const sig of signals) process.off(sig, hold);
+    if (received) {
+      process.stderr.write(`stopped by ${received}; the output files were completed first\n`);
+      process.exit(received === 'SIGTERM' ? 143 : 129);
+    }
+  }
+}
+
+/** Runs the CLI; resolves to the exit code (0 ok, 1 invalid scenario or failed run, 2 usage). */
 export async function main(argv: string[]): Promise<number> {
+  const err = (s: string) => process.stderr.write(terminalSafe(s));
   let args: CliArgs;
   try {
     args = parseArgs(argv);
   } catch (e) {
-    process.stderr.write(`${(e as Error).message}\n${USAGE}\n`);
+    err(`${(e as Error).message}\n${USAGE}\n`);
     return 2;
   }
+  if (args.help) {
+    process.stdout.write(`${USAGE}\n`);
+    return 0;
+  }
+  const outputs = [args.out, args.pdf].filter((p): p is string => p !== undefined);
   for (const [option, path] of [['--out', args.out], ['--pdf', args.pdf]] as const) {
     const reason = path === undefined ? undefined : unwritableReason(path);
     if (reason) {
-      process.stderr.write(`cannot write ${option} ${path}: ${reason}; nothing was written\n`);
+      err(`cannot write ${option} ${path}: ${reason}; nothing was written\n`);
       return 1;
     }
   }
+  for (const note of recoverOutputs(outputs)) err(`note: ${note}\n`);
   let text: string;
   try {
     text = readFileSync(args.file, 'utf8');
   } catch (e) {
     const code = (e as NodeJS.ErrnoException).code;
     const why = code && READ_ERRORS[code] ? `${code} (${READ_ERRORS[code]})` : (code ?? (e as Error).message);
-    process.stderr.write(`cannot read scenario file ${args.file}: ${why}\n`);
+    err(`cannot read scenario file ${args.file}: ${why}\n`);
     return 1;
   }
   try {
     const scenario = parseScenarioText(text);
+    if (args.pdf) {
+      // Refused before the run: text the briefing's fonts cannot draw (report/pdf/fonts.ts).
+      const unsupported = briefingTextProblems(scenario);
+      if (unsupported.length) {
+        err(`cannot write --pdf ${args.pdf}:\n${formatProblems(unsupported).replace(/^/gm, '  ')}\nnothing was written\n`);
+        return 1;
+      }
+    }
     // Ctrl-C stops an ensemble cleanly (the draws done so far are reported); a second Ctrl-C quits.
     let cancelled = false;
     let firstSigintAt = 0;
@@ -191,29 +343,29 @@ export async function main(argv: string[]): Promise<number> {
     } finally {
       process.off('SIGINT', onSigint);
     }
-    if (args.pdf) {
-      const pdf = await renderBriefing(doc, { scenario, rawInput: JSON.parse(text) as unknown });
-      writeOutput('--pdf', args.pdf, pdf);
-      if (!args.json && !args.out) {
-        process.stderr.write(`briefing written to ${args.pdf}\n`);
-        return 0;
-      }
-    }
-    const output = args.json ? `${JSON.stringify(doc, null, 1)}\n` : `${textSummary(doc)}\n`;
-    if (args.out) writeOutput('--out', args.out, output);
-    else process.stdout.write(output);
+    const files: { option: string; path: string; data: string | Uint8Array }[] = [];
+    if (args.pdf) files.push({ option: '--pdf', path: args.pdf, data: await renderBriefing(doc, { scenario, rawInput: parseJsonText(text) }) });
+    const output = args.json ? jsonSafe(`${JSON.stringify(doc, null, 1)}\n`) : terminalSafe(`${textSummary(doc)}\n`);
+    if (args.out) files.push({ option: '--out', path: args.out, data: output });
+    if (files.length) await withSignalsHeld(() => writeOutputs(files));
+    if (args.pdf && !args.json && !args.out) err(`briefing written to ${args.pdf}\n`);
+    else if (!args.out) process.stdout.write(output);
     // Interrupted: the partial result is written, and the exit code says it is partial.
     return cancelled ? 130 : 0;
   } catch (e) {
+    if (e instanceof InputError && e.code === NON_FINITE_CODE) {
+      err(`evaluation stopped, no result: ${e.message}\n`);
+      return 1;
+    }
     if (e instanceof InputError) {
-      process.stderr.write(`${args.file} is not a valid scenario:\n${formatProblems(e.problems).replace(/^/gm, '  ')}\n`);
+      err(`${args.file} is not a valid scenario:\n${formatProblems(e.problems).replace(/^/gm, '  ')}\n`);
       return 1;
     }
     if (e instanceof OutputError) {
-      process.stderr.write(`${e.message}\n`);
+      err(`${e.message}\n`);
       return 1;
     }
-    process.stderr.write(`evaluation failed: ${(e as Error).message}\n`);
+    err(`evaluation failed: ${(e as Error).message}\n`);
     return 1;
   }
 }

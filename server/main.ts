@@ -7,11 +7,16 @@
  * Stopping (SIGTERM or Ctrl-C): no new evaluations are accepted, progress streams end, running work stops
  * within a few seconds, and the log lists what was not finished — it stays queued in the database and
  * resumes at the next start. A second signal exits at once.
+ * ALLOWED_HOSTS (host names besides the loopback ones that requests may be addressed to, comma-separated).
+ * A setting out of range or a DATA_DIR that cannot be written stops the start with one line naming it.
  */
+import type { FastifyInstance } from 'fastify';
 import { buildApp } from './app.ts';
 import { makeQueueRunner } from './jobs/queue-runner.ts';
 import { redactedUrl } from './jobs/queue-config.ts';
 import type { TaskRunner } from './jobs/task-runner.ts';
+import { DataDirError } from './web/store.ts';
+import { normaliseHost } from './web/plugins/security.ts';
 
 const host = process.env.HOST ?? '127.0.0.1';
 const port = Number(process.env.PORT ?? 3000);
@@ -41,14 +46,40 @@ if (redisUrl) {
   console.log(`work goes to the queue at ${redactedUrl(redisUrl)} (${runner.where}); start workers with: REDIS_URL=... npm run worker`);
 }
 
-const app = await buildApp({
-  runner,
-  logger: true,
-  dataDir: process.env.DATA_DIR ?? 'data',
-  workerThreads: setting('WORKERS', true),
-  ensembleThreads: setting('ENSEMBLE_THREADS', true),
-  limits: wallSeconds !== undefined ? { wallSeconds } : {},
-});
+/**
+ * Host names requests may be addressed to besides 127.0.0.1, localhost and ::1 (DNS-rebinding guard,
+ * web/plugins/security.ts): ALLOWED_HOSTS, plus HOST when it is one specific name or address.
+ */
+function allowedHosts(): string[] {
+  const listed = (process.env.ALLOWED_HOSTS ?? '').split(',').map((h) => h.trim()).filter(Boolean);
+  for (const h of listed) {
+    if (normaliseHost(h) === undefined) {
+      console.error(`ALLOWED_HOSTS must be host names or IP addresses separated by commas (found ${JSON.stringify(h)})`);
+      process.exit(1);
+    }
+  }
+  const wildcard = ['0.0.0.0', '::', '[::]', ''];
+  return wildcard.includes(host) ? listed : [...listed, host];
+}
+
+let app: FastifyInstance;
+try {
+  app = await buildApp({
+    runner,
+    logger: true,
+    dataDir: process.env.DATA_DIR ?? 'data',
+    workerThreads: setting('WORKERS', true),
+    ensembleThreads: setting('ENSEMBLE_THREADS', true),
+    limits: wallSeconds !== undefined ? { wallSeconds } : {},
+    allowedHosts: allowedHosts(),
+  });
+} catch (err) {
+  if (err instanceof DataDirError) {
+    console.error(err.message);
+    process.exit(1);
+  }
+  throw err;
+}
 try {
   await app.listen({ host, port });
 } catch (err) {

@@ -71,10 +71,10 @@ describe('evaluate command (in process)', () => {
 
   it('each kind of bad input exits 1 and prints one line per problem with path, value and range', async () => {
     const cases: [string, string][] = [
-      ['edge-preference-above-one.json', 'pest.edgePreferenceOpen = 1.2: must be > 0 and < 1'],
+      ['edge-preference-above-one.json', 'pest.edgePreferenceOpen = 1.2: must be ≥ 0.000001 and ≤ 0.999999'],
       ['horizon-too-long.json', 'horizonYears = 10000: must be > 0 and ≤ 500 yr'],
       ['overlapping-segments.json', 'transect.segments[1].fromKm = 8: overlaps the previous segment'],
-      ['zero-length-segment.json', 'transect.segments[1].lengthKm = 0: must be > 0 and ≤ 5000 km'],
+      ['zero-length-segment.json', 'transect.segments[1].lengthKm = 0: must be ≥ 0.001 and ≤ 5000 km'],
       ['unknown-field.json', 'pest.diffusionForest = 0.5: is not a known field'],
       ['not-json.json', 'is not valid JSON'],
       ['unknown-growth-form.json', 'pest.growth.form = "gompertz": must be one of "logistic", "allee-cubic", "mate-finding"'],

@@ -86,10 +86,10 @@ export const FIELDS = {
   edgePreferenceOpen: {
     label: 'Edge preference, host forest vs open',
     unit: '',
-    min: 0,
-    minExclusive: true,
-    max: 1,
-    maxExclusive: true,
+    // Between 1e-6 and 1 − 1e-6: an edge weight (1 − a)/a beyond 1e6 either way is no longer an edge preference but a
+    // wall, and at the float limit (a = 5e-324) the weight is infinite and the run turns into NaN.
+    min: 1e-6,
+    max: 0.999999,
     typical: '0.5–0.95',
     help:
       'Probability that an insect standing at a forest/open edge steps back into host forest. ' +
@@ -101,10 +101,10 @@ export const FIELDS = {
   edgePreferenceNonHost: {
     label: 'Edge preference, host vs non-host forest',
     unit: '',
-    min: 0,
-    minExclusive: true,
-    max: 1,
-    maxExclusive: true,
+    // Between 1e-6 and 1 − 1e-6: an edge weight (1 − a)/a beyond 1e6 either way is no longer an edge preference but a
+    // wall, and at the float limit (a = 5e-324) the weight is infinite and the run turns into NaN.
+    min: 1e-6,
+    max: 0.999999,
     typical: '0.5–0.9',
     help: 'Probability that an insect at a host/non-host forest edge steps into host forest.',
     defaultValue: 0.5,
@@ -242,8 +242,8 @@ export const FIELDS = {
   lengthKm: {
     label: 'Length',
     unit: 'km',
-    min: 0,
-    minExclusive: true,
+    // 1 m: a shorter piece has no physical meaning on a transect in km, and near 1e-12 km the grid breakpoints merge.
+    min: 0.001,
     max: 5000,
     typical: '0.05–100',
     help: 'Length of this stretch along the transect.',
@@ -313,8 +313,8 @@ export const FIELDS = {
   widthM: {
     label: 'Width',
     unit: 'm',
-    min: 0,
-    minExclusive: true,
+    // 1 m: a narrower clearing has no physical meaning, and near 1e-12 m its cells vanish in round-off.
+    min: 1,
     max: 100000,
     typical: '50–2000',
     help: 'Width of the host-free clearing along the transect.',

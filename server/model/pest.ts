@@ -1,4 +1,5 @@
 import { z } from 'zod';
+import { textField } from './text.ts';
 import { FIELDS } from './fields.ts';
 import { quantitySchema, valueSchema } from './quantity.ts';
 
@@ -52,10 +53,10 @@ export const GrowthSchema = z.discriminatedUnion('form', [
 
 /** The pest profile: how the insect moves, breeds, dies and kills hosts. */
 export const PestSchema = z.strictObject({
-  name: z.string().min(1, { error: 'must not be empty' }).max(120, { error: 'must be at most 120 characters' }),
+  name: textField(120, { required: true }),
   /** True when the numbers are made up for a demonstration; printed on every output. */
   illustrative: z.boolean().default(false),
-  notes: z.string().max(4000).optional(),
+  notes: textField(4000, { multiline: true }).optional(),
   diffusionHost: quantitySchema(FIELDS.diffusionHost),
   diffusionOpen: quantitySchema(FIELDS.diffusionOpen),
   diffusionNonHost: quantitySchema(FIELDS.diffusionNonHost).optional(),

@@ -3,6 +3,8 @@ import { FIELDS, describeRange } from './fields.ts';
 import { PestSchema, NON_HOST_PEST_FIELDS } from './pest.ts';
 import { quantitySchema, valueSchema, resolveQuantities, type Resolved } from './quantity.ts';
 import { ScenarioError, problemsFromZod, formatPath, type Problem } from './errors.ts';
+import { JsonTextError, parseJsonText } from './json-text.ts';
+import { textField } from './text.ts';
 
 /** Habitat types a transect segment can have. */
 export const HABITATS = ['host-forest', 'clearing', 'non-host-forest'] as const;
@@ -15,7 +17,7 @@ const optionalFrom = valueSchema(FIELDS.positionKm).optional();
 
 export const HostForestSegmentSchema = z.strictObject({
   habitat: z.literal('host-forest'),
-  name: z.string().max(80).optional(),
+  name: textField(80).optional(),
   /** Start [km]; optional, checked against the end of the previous segment when given. */
   fromKm: optionalFrom,
   lengthKm: valueSchema(FIELDS.lengthKm),
@@ -27,7 +29,7 @@ export const HostForestSegmentSchema = z.strictObject({
 
 export const OtherSegmentSchema = z.strictObject({
   habitat: z.enum(['clearing', 'non-host-forest']),
-  name: z.string().max(80).optional(),
+  name: textField(80).optional(),
   fromKm: optionalFrom,
   lengthKm: valueSchema(FIELDS.lengthKm),
 });
@@ -55,12 +57,12 @@ export const TransectSchema = z.strictObject({
 });
 
 export const SiteSchema = z.strictObject({
-  name: z.string().min(1, { error: 'must not be empty' }).max(80),
+  name: textField(80, { required: true }),
   atKm: valueSchema(FIELDS.positionKm),
 });
 
 export const BarrierOptionSchema = z.strictObject({
-  name: z.string().min(1, { error: 'must not be empty' }).max(80),
+  name: textField(80, { required: true }),
   /** Start of the clearing along the transect [km]. */
   fromKm: valueSchema(FIELDS.positionKm),
   widthM: valueSchema(FIELDS.widthM),
@@ -72,7 +74,7 @@ export const BarrierSchema = z.strictObject({
   lengthKm: valueSchema(FIELDS.barrierLengthKm),
   costPerStem: valueSchema(FIELDS.costPerStem).optional(),
   /** Currency or unit printed next to costs, e.g. "EUR" (free text). */
-  costUnit: z.string().max(12).optional(),
+  costUnit: textField(12).optional(),
   options: z.array(BarrierOptionSchema).max(8, { error: 'at most 8 options per scenario' }).default([]),
   /** Tolerance of the critical-width bracket [m]; 10 m when absent (applied by the analysis). */
   toleranceM: valueSchema(FIELDS.widthToleranceM).optional(),
@@ -86,7 +88,7 @@ export const BarrierSchema = z.strictObject({
 
 /** A periodic thinning pattern (strip thinning): host-forest strips alternating with host-free strips. */
 export const MosaicSchema = z.strictObject({
-  name: z.string().min(1, { error: 'must not be empty' }).max(80),
+  name: textField(80, { required: true }),
   /** Host-forest strip width along the direction of spread [m]. */
   forestM: valueSchema(FIELDS.widthM),
   /** Host-free strip width [m]. */
@@ -181,9 +183,9 @@ export const SCENARIO_VERSION = 1;
 
 const ScenarioObjectSchema = z.strictObject({
   version: z.literal(SCENARIO_VERSION, { error: `must be ${SCENARIO_VERSION}` }).default(SCENARIO_VERSION),
-  title: z.string().min(1, { error: 'must not be empty' }).max(300, { error: 'must be at most 300 characters' }),
-  description: z.string().max(4000).default(''),
-  region: z.string().max(200).optional(),
+  title: textField(300, { required: true }),
+  description: textField(4000, { multiline: true }).default(''),
+  region: textField(200).optional(),
   pest: PestSchema,
   transect: TransectSchema,
   infestation: z.strictObject({
@@ -339,16 +341,27 @@ export function parseScenario(input: unknown): Scenario {
   return r.data;
 }
 
-/** Parses scenario JSON text; a syntax error becomes a ScenarioError with the position. */
+/**
+ * Parses scenario JSON text (model/json-text.ts: a byte-order mark is dropped; a syntax error is reported with
+ * its line and column; duplicate keys, `__proto__`/`constructor`/`prototype` keys and numbers that would
+ * change on reading are refused), then validates it.
+ * @throws ScenarioError listing every problem
+ */
 export function parseScenarioText(text: string): Scenario {
   let raw: unknown;
   try {
-    raw = JSON.parse(text);
+    raw = parseJsonText(text);
   } catch (e) {
-    const start = text.trim().slice(0, 40);
-    throw new ScenarioError([
-      { path: '', value: start === '' ? '(empty file)' : start, message: `is not valid JSON (${(e as Error).message}); a scenario file is one JSON object` },
-    ]);
+    if (!(e instanceof JsonTextError)) throw e;
+    throw new ScenarioError(
+      e.problems.map((p) =>
+        p.path === '' && p.value === '(empty)'
+          ? { ...p, value: '(empty file)', message: `${p.message}; a scenario file is one JSON object` }
+          : p.path === ''
+            ? { ...p, message: `${p.message}; a scenario file is one JSON object` }
+            : p,
+      ),
+    );
   }
   return parseScenario(raw);
 }

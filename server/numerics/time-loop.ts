@@ -8,6 +8,7 @@ import type { ReactionCounters, ReactionStepper } from './reaction.ts';
 import { fixedStepController, type StepController } from './controller.ts';
 import { splitStepper, type FieldStepper } from './stepper.ts';
 import type { FieldState, Observer } from './observers.ts';
+import { checkFiniteState } from './finite.ts';
 
 export type { FieldStepper, StepReport } from './stepper.ts';
 export { splitStepper } from './stepper.ts';
@@ -99,6 +100,8 @@ export function runTimeLoop(stepper: FieldStepper, u: Float64Array, h: Float64Ar
       break;
     }
     if (accepted % pollEvery === 0) {
+      // Non-finite values never become a verdict: the run stops here with the time and the cell (numerics/finite.ts).
+      checkFiniteState(u, h, state.t);
       onProgress?.(state.t / tEnd);
       if (shouldCancel?.()) {
         status = 'cancelled';
@@ -107,6 +110,7 @@ export function runTimeLoop(stepper: FieldStepper, u: Float64Array, h: Float64Ar
       }
     }
   }
+  checkFiniteState(u, h, state.t);
   for (const o of observers) o.finalize?.(state);
   const counters = stepper.counters();
   return {

@@ -7,6 +7,8 @@ import type { ResultDocument } from '../analysis/result.ts';
 import type { Scenario } from '../model/scenario.ts';
 import type { BriefingTask } from './briefing-worker.ts';
 import { tsxLoaderUrl } from './jobs.ts';
+import { InputError } from '../model/errors.ts';
+import { briefingTextProblems } from '../report/pdf/fonts.ts';
 
 /** Longest a briefing may take before the request is answered with an error [ms]. */
 const BRIEFING_TIMEOUT_MS = 60_000;
@@ -26,6 +28,9 @@ export function makeBriefingRenderer(): BriefingRenderer {
   });
   return {
     async render(document, scenario) {
+      // Text the briefing's fonts cannot draw is refused by field, before any drawing (report/pdf/fonts.ts).
+      const unsupported = briefingTextProblems(scenario);
+      if (unsupported.length) throw Object.assign(new InputError('TEXT_NOT_DRAWABLE', unsupported), { statusCode: 422 });
       const bytes = await pool.run({ document, scenario, creationDate: new Date().toISOString() }, { signal: AbortSignal.timeout(BRIEFING_TIMEOUT_MS) });
       return Buffer.from(bytes.buffer, bytes.byteOffset, bytes.byteLength);
     },

@@ -16,4 +16,6 @@ export interface WebDeps {
   streams: StreamGate;
   /** Route config that switches the compute rate limit on. */
   computeRateLimit: { max: number; timeWindow: string };
+  /** Route config for form and scenario-writing posts: their own rate limit (a person never reaches it). */
+  formPost: { rateLimit: { max: number; timeWindow: string }; rateLimitWhat: string };
 }

@@ -4,12 +4,13 @@
  * scenario it was computed from and the tool version that computed it.
  */
 import Database from 'better-sqlite3';
-import { mkdirSync } from 'node:fs';
+import { accessSync, constants, mkdirSync, statfsSync } from 'node:fs';
 import { join } from 'node:path';
 import { randomUUID } from 'node:crypto';
 import type { Scenario } from '../model/scenario.ts';
 import type { ResultDocument } from '../analysis/result.ts';
 import { createJobTables, makeJobStore, type JobStore } from './job-store.ts';
+import { InputError } from '../model/errors.ts';
 
 /** File name of the database inside the data folder. */
 export const DATABASE_FILE = 'barrier-evaluator.sqlite';
@@ -65,6 +66,49 @@ interface ResultRow {
   document: string;
 }
 
+/** Free space below which new evaluations are refused (a result document of a large run is a few MB) [bytes]. */
+export const DEFAULT_MIN_FREE_BYTES = 64 * 1024 * 1024;
+
+export interface StoreOptions {
+  /** Refuse new evaluations when the data folder's disk has less free space than this [bytes]. */
+  minFreeBytes?: number;
+  /** Largest database size in pages (SQLite max_page_count); tests set it small to produce a full disk. */
+  maxPageCount?: number;
+}
+
+/** The data folder cannot be used at start (missing permissions, not a folder, a read-only database file). */
+export class DataDirError extends Error {
+  readonly code = 'DATA_DIR_UNUSABLE';
+  constructor(dataDir: string, reason: string) {
+    super(
+      `DATA_DIR ${JSON.stringify(dataDir)} cannot be used: ${reason}. Set DATA_DIR to a folder this user can write ` +
+        '(it is created when missing), or fix the permissions of this one.',
+    );
+    this.name = 'DataDirError';
+  }
+}
+
+/** Nothing more can be stored (a full disk, a read-only database): answered 507 with what to do. */
+export class StorageFullError extends InputError {
+  readonly statusCode = 507;
+  constructor(message: string) {
+    super('STORAGE_FULL', [{ path: 'storage', value: undefined, message }], message);
+    this.name = 'StorageFullError';
+  }
+}
+
+/** SQLite result codes that mean "cannot store", not "bad request". */
+function storageFailure(e: unknown, dataDir: string): StorageFullError | undefined {
+  const code = (e as { code?: string }).code ?? '';
+  if (code === 'SQLITE_FULL') {
+    return new StorageFullError(`the disk holding the data folder (DATA_DIR ${dataDir}) is full: nothing was saved. Free some space, or delete old results, and try again`);
+  }
+  if (code.startsWith('SQLITE_READONLY') || code.startsWith('SQLITE_IOERR') || code.startsWith('SQLITE_CANTOPEN')) {
+    return new StorageFullError(`the database in the data folder (DATA_DIR ${dataDir}) cannot be written (${code}): nothing was saved. Check the disk and the folder's permissions`);
+  }
+  return undefined;
+}
+
 export interface Store {
   listScenarios(): SavedScenarioSummary[];
   getScenario(id: number): SavedScenario | undefined;
@@ -78,6 +122,11 @@ export interface Store {
   deleteResult(id: string): boolean;
   /** Durable web jobs (accepted evaluations and their finished pieces). */
   jobs: JobStore;
+  /**
+   * Refuses new work when the data folder's disk is nearly full, so a long evaluation is not computed only to
+   * fail at saving. @throws StorageFullError naming DATA_DIR and the space left
+   */
+  checkSpace(): void;
   close(): void;
 }
 
@@ -85,12 +134,18 @@ export interface Store {
  * Opens (and on first start creates) the database in `dataDir`.
  * @param dataDir - folder for the database file; created with its parents when missing
  */
-export function openStore(dataDir: string): Store {
-  mkdirSync(dataDir, { recursive: true });
-  const db = new Database(join(dataDir, DATABASE_FILE));
-  db.pragma('journal_mode = WAL');
-  db.pragma('foreign_keys = ON');
-  migrate(db);
+export function openStore(dataDir: string, opts: StoreOptions = {}): Store {
+  const db = openDatabase(dataDir);
+  if (opts.maxPageCount !== undefined) db.pragma(`max_page_count = ${Math.floor(opts.maxPageCount)}`);
+  const minFree = opts.minFreeBytes ?? DEFAULT_MIN_FREE_BYTES;
+  /** Runs a write; a full disk or unwritable database becomes a StorageFullError. */
+  const writing = <T>(fn: () => T): T => {
+    try {
+      return fn();
+    } catch (e) {
+      throw storageFailure(e, dataDir) ?? e;
+    }
+  };
 
   const now = () => new Date().toISOString();
   const toScenario = (r: ScenarioRow): SavedScenario => ({
@@ -143,14 +198,14 @@ export function openStore(dataDir: string): Store {
     },
     createScenario(scenario) {
       const t = now();
-      const info = q.insertScenario.run(scenario.title, JSON.stringify(scenario), t, t);
+      const info = writing(() => q.insertScenario.run(scenario.title, JSON.stringify(scenario), t, t));
       return { id: Number(info.lastInsertRowid), title: scenario.title, scenario, createdAt: t, updatedAt: t };
     },
     updateScenario(id, scenario) {
-      const info = q.updateScenario.run(scenario.title, JSON.stringify(scenario), now(), id);
+      const info = writing(() => q.updateScenario.run(scenario.title, JSON.stringify(scenario), now(), id));
       return info.changes ? this.getScenario(id) : undefined;
     },
-    deleteScenario: (id) => q.deleteScenario.run(id).changes > 0,
+    deleteScenario: (id) => writing(() => q.deleteScenario.run(id).changes > 0),
     saveResult({ scenarioRef, scenario, document }) {
       const r: StoredResult = {
         id: randomUUID(),
@@ -162,7 +217,7 @@ export function openStore(dataDir: string): Store {
         createdAt: now(),
         document,
       };
-      q.insertResult.run(r.id, r.scenarioRef, r.title, JSON.stringify(scenario), r.toolName, r.toolVersion, r.createdAt, JSON.stringify(document));
+      writing(() => q.insertResult.run(r.id, r.scenarioRef, r.title, JSON.stringify(scenario), r.toolName, r.toolVersion, r.createdAt, JSON.stringify(document)));
       return r;
     },
     listResults(filter = {}) {
@@ -180,10 +235,62 @@ export function openStore(dataDir: string): Store {
       const row = q.getResult.get(id);
       return row ? toResult(row) : undefined;
     },
-    deleteResult: (id) => q.deleteResult.run(id).changes > 0,
+    deleteResult: (id) => writing(() => q.deleteResult.run(id).changes > 0),
     jobs: makeJobStore(db),
+    checkSpace() {
+      let free: number;
+      try {
+        const fs = statfsSync(dataDir);
+        free = Number(fs.bavail) * Number(fs.bsize);
+      } catch {
+        return; // No figure to go on (an unusual file system): the save itself still reports a full disk.
+      }
+      if (free < minFree) {
+        throw new StorageFullError(
+          `the disk holding the data folder (DATA_DIR ${dataDir}) has only ${(free / 1048576).toFixed(1)} MB free, less than the ` +
+            `${(minFree / 1048576).toFixed(0)} MB an evaluation may need to store its result; free some space or delete old results first`,
+        );
+      }
+    },
     close: () => db.close(),
   };
+}
+
+/**
+ * Opens the database and proves it writable (a write transaction), so a data folder that cannot be used stops
+ * the start with one message naming DATA_DIR instead of failing at the first save.
+ * @throws DataDirError naming the folder and the reason
+ */
+function openDatabase(dataDir: string): Database.Database {
+  const reason = (e: unknown) => {
+    const err = e as NodeJS.ErrnoException;
+    const code = err.code ?? '';
+    if (code === 'EACCES' || code === 'EPERM') return `permission denied (${code})`;
+    if (code === 'ENOTDIR' || code === 'EEXIST') return `it is not a folder (${code})`;
+    if (code === 'EROFS') return 'it is on a read-only file system (EROFS)';
+    if (code === 'ENOSPC' || code === 'SQLITE_FULL') return `the disk is full (${code})`;
+    if (code.startsWith('SQLITE_READONLY')) return `the database file ${DATABASE_FILE} in it is read-only (${code})`;
+    if (code.startsWith('SQLITE_CANTOPEN')) return `the database file ${DATABASE_FILE} in it cannot be opened (${code})`;
+    return code ? `${code}: ${err.message}` : err.message;
+  };
+  try {
+    mkdirSync(dataDir, { recursive: true });
+    accessSync(dataDir, constants.W_OK | constants.X_OK);
+  } catch (e) {
+    throw new DataDirError(dataDir, reason(e));
+  }
+  let db: Database.Database | undefined;
+  try {
+    db = new Database(join(dataDir, DATABASE_FILE));
+    db.pragma('journal_mode = WAL');
+    db.pragma('foreign_keys = ON');
+    migrate(db);
+    db.exec('BEGIN IMMEDIATE; COMMIT');
+    return db;
+  } catch (e) {
+    db?.close();
+    throw new DataDirError(dataDir, reason(e));
+  }
 }
 
 function migrate(db: Database.Database): void {

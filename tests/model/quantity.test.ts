@@ -93,7 +93,7 @@ describe('quantity schemas and tree walks', () => {
     expect(s.safeParse(0.5).success).toBe(true);
     const r = s.safeParse(1);
     expect(r.success).toBe(false);
-    expect(r.error!.issues[0].message).toBe('must be > 0 and < 1');
+    expect(r.error!.issues[0].message).toBe('must be ≥ 0.000001 and ≤ 0.999999');
     const q = quantitySchema(FIELDS.diffusionHost);
     expect(q.safeParse({ dist: 'triangular', min: 1, mode: 3, max: 2 }).success).toBe(false);
     expect(q.safeParse({ dist: 'lognormal', median: 1, spread: 0.5 }).success).toBe(false);

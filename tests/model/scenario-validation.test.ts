@@ -5,7 +5,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { readdirSync, readFileSync } from 'node:fs';
-import { parseScenarioText, pointScenario } from '../../server/model/scenario.ts';
+import { parseScenario, parseScenarioText, pointScenario } from '../../server/model/scenario.ts';
 import { InputError, LimitError, ScenarioError, type Problem } from '../../server/model/errors.ts';
 import { buildLayout } from '../../server/problem/layout.ts';
 import { discretise } from '../../server/problem/discretise.ts';
@@ -30,15 +30,15 @@ const corpus: Record<string, Expected & { valueIs?: typeof MISSING }> = {
   'missing-transect.json': { path: 'transect', valueIs: MISSING, message: /is required/ },
   'missing-title.json': { path: 'title', valueIs: MISSING, message: /is required/ },
   'negative-diffusion.json': { path: 'pest.diffusionOpen', value: -0.5, message: /must be > 0 and ≤ 1000 km²\/yr/ },
-  'edge-preference-above-one.json': { path: 'pest.edgePreferenceOpen', value: 1.2, message: /must be > 0 and < 1/ },
-  'edge-preference-zero.json': { path: 'pest.edgePreferenceOpen', value: 0, message: /must be > 0 and < 1/ },
+  'edge-preference-above-one.json': { path: 'pest.edgePreferenceOpen', value: 1.2, message: /must be ≥ 0.000001 and ≤ 0.999999/ },
+  'edge-preference-zero.json': { path: 'pest.edgePreferenceOpen', value: 0, message: /must be ≥ 0.000001 and ≤ 0.999999/ },
   'overlapping-segments.json': { path: 'transect.segments[1].fromKm', value: 8, message: /overlaps the previous segment.*must start at 10 km/ },
   'gap-between-segments.json': { path: 'transect.segments[1].fromKm', value: 12, message: /leaves a gap.*must start at 10 km/ },
-  'zero-length-segment.json': { path: 'transect.segments[1].lengthKm', value: 0, message: /must be > 0 and ≤ 5000 km/ },
+  'zero-length-segment.json': { path: 'transect.segments[1].lengthKm', value: 0, message: /must be ≥ 0.001 and ≤ 5000 km/ },
   'horizon-too-long.json': { path: 'horizonYears', value: 10000, message: /must be > 0 and ≤ 500 yr/ },
   'unknown-field.json': { path: 'pest.diffusionForest', value: 0.5, message: /not a known field/ },
   'unknown-top-level-field.json': { path: 'horizon', value: 30, message: /not a known field/ },
-  'not-json.json': { path: '', value: "{ title: 'Ossenvale', horizonYears: 30, ", message: /not valid JSON/ },
+  'not-json.json': { path: '', value: "{ title: 'Ossenvale', …", message: /not valid JSON at line 1, column 3: expected a field name in double quotes/ },
   'empty-file.json': { path: '', value: '(empty file)', message: /not valid JSON/ },
   'nan-like-value.json': { path: '', message: /not valid JSON/ },
   'top-level-array.json': { path: '', value: [1, 2, 3], message: /expected object/ },
@@ -51,7 +51,7 @@ const corpus: Record<string, Expected & { valueIs?: typeof MISSING }> = {
   'unknown-growth-form.json': { path: 'pest.growth.form', value: 'gompertz', message: /one of "logistic", "allee-cubic", "mate-finding"/ },
   'wrong-type.json': { path: 'pest.diffusionHost', value: 'fast', message: /must be > 0 and ≤ 1000 km²\/yr \(a number\), or a distribution/ },
   'distribution-min-above-max.json': { path: 'pest.diffusionHost.max', value: 1, message: /greater than min \(2\)/ },
-  'lognormal-on-bounded-field.json': { path: 'pest.edgePreferenceOpen.dist', value: 'lognormal', message: /not allowed for a field with range > 0 and < 1/ },
+  'lognormal-on-bounded-field.json': { path: 'pest.edgePreferenceOpen.dist', value: 'lognormal', message: /not allowed for a field with range ≥ 0.000001 and ≤ 0.999999/ },
   'detection-level-one.json': { path: 'detectionLevel', value: 1, message: /must be > 0 and < 1/ },
   'non-host-fields-missing.json': { path: 'pest.diffusionNonHost', valueIs: MISSING, message: /required because .* non-host forest \(> 0 and ≤ 1000 km²\/yr\)/ },
   'barrier-overlaps-infestation.json': { path: 'barrier.options[0].fromKm', value: 1, message: /overlaps the current infestation/ },
@@ -62,7 +62,7 @@ const corpus: Record<string, Expected & { valueIs?: typeof MISSING }> = {
   'no-host-in-infestation.json': { path: 'infestation', value: { fromKm: 0.5, toKm: 2.5 }, message: /overlap at least one host-forest segment/ },
   'wrong-version.json': { path: 'version', value: 2, message: /one of 1/ },
   'cell-size-too-small.json': { path: 'numerics.cellM', value: 0.1, message: /must be ≥ 0.5 and ≤ 5000 m/ },
-  'negative-barrier-width.json': { path: 'barrier.options[0].widthM', value: -300, message: /must be > 0 and ≤ 100000 m/ },
+  'negative-barrier-width.json': { path: 'barrier.options[0].widthM', value: -300, message: /must be ≥ 1 and ≤ 100000 m/ },
   'too-many-cells.json': { path: 'numerics.cellM', value: 1, message: /limit is 200000.*at least 26 m/, limit: true },
   'too-many-time-steps.json': { path: 'numerics.stepYears', value: 1e-5, message: /50000000 time steps; the limit is 2000000/, limit: true },
 };
@@ -113,21 +113,30 @@ describe('scenario validation: bad files name the field, the value and the allow
     throw new Error('the edited fixture parsed without an error');
   };
 
-  it('a deeply nested value is reported by path without overflowing the stack (regression: 5000 nested arrays gave a 500)', () => {
+  it('a deeply nested value is refused by the JSON reader, and by path in an object, without overflowing the stack (regression: 5000 nested arrays gave a 500)', () => {
     const deep = `${'['.repeat(5000)}1${']'.repeat(5000)}`;
     const error = fixtureError((text) => text.replace(/^\{/, `{"extra": ${deep},`));
-    const problems = error.problems;
+    expect(error.problems).toEqual([expect.objectContaining({ path: '', message: expect.stringMatching(/^is not valid JSON at line 1, column \d+: the text is nested more than 64 levels deep/) })]);
+    // An object built in code goes straight to the schema: still reported by path, the value kept to a readable depth.
+    const raw = JSON.parse(readFileSync(new URL('../fixtures/quick-scenario.json', import.meta.url), 'utf8').replace(/^\{/, `{"extra": ${deep},`));
+    let problems: Problem[] = [];
+    try {
+      parseScenario(raw);
+    } catch (e) {
+      problems = (e as ScenarioError).problems;
+    }
     expect(problems.map((p) => p.path)).toEqual(['extra']);
     expect(problems[0].message).toBe('is not a known field (check the spelling)');
-    // The value is kept to a readable depth, so it can be printed and sent back as JSON.
     expect(() => JSON.stringify(problems)).not.toThrow();
-    expect(error.message).toContain('extra = [[[');
   });
 
-  it('a number too large for a double is reported as Infinity, not null (regression)', () => {
+  it('a number too large for a double is refused by name and position, never read as Infinity or null (regression)', () => {
     const error = fixtureError((text) => text.replace(/"horizonYears": [0-9.]+/, '"horizonYears": 1e309'));
-    expect(error.problems).toEqual([expect.objectContaining({ path: 'horizonYears', value: Infinity })]);
-    expect(error.message).toContain('horizonYears = Infinity: must be > 0 and ≤ 500 yr');
+    expect(error.problems).toEqual([expect.objectContaining({ path: 'horizonYears', value: '1e309', message: expect.stringMatching(/^is too large to be a number \(line \d+, column \d+\)/) })]);
+    // In an object (a number computed in code) the schema still names Infinity.
+    const raw = JSON.parse(readFileSync(new URL('../fixtures/quick-scenario.json', import.meta.url), 'utf8'));
+    raw.horizonYears = Infinity;
+    expect(() => parseScenario(raw)).toThrow('horizonYears = Infinity: must be > 0 and ≤ 500 yr');
   });
 
   it('the small valid fixture used by the CLI tests passes', () => {

@@ -138,7 +138,7 @@ describe('lists of numbers', () => {
     const problems = problemsOf(state);
     expect(problems).toEqual([expect.objectContaining({ path: 'barrier.curveWidthsM[1]', value: 'wide' })]);
     const field = formView(state, problems).sections.barrier.fields.find((f) => f.name === 'barrier.curveWidthsM')!;
-    expect(field.errors[0]).toMatch(/^entry 2: must be > 0/);
+    expect(field.errors[0]).toMatch(/^entry 2: must be ≥ 1 and ≤ 100000 m/);
     expect(field.value).toBe('100; wide');
   });
 });
@@ -195,7 +195,7 @@ describe('problems land beside their input with the typed text kept', () => {
     const view = formView(state, problems);
     const cell = view.segments.rows[1].cells.find((c) => c.name === 'transect.segments[1].lengthKm')!;
     expect(cell.value).toBe('-3');
-    expect(cell.errors[0]).toMatch(/> 0 and ≤ 5000 km/);
+    expect(cell.errors[0]).toMatch(/≥ 0.001 and ≤ 5000 km/);
   });
 
   it('a cross-field problem (site inside the infestation) is placed at the site position', () => {

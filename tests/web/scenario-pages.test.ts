@@ -97,7 +97,7 @@ describe('the scenario form', () => {
     expect(rate).toMatch(/must be &gt; 0 and ≤ 50 1\/yr/);
     const width = around(r.body, 'f-barrier-options-0-widthM', 600);
     expect(width).toContain('value="-20"');
-    expect(width).toMatch(/must be &gt; 0 and ≤ 100000 m/);
+    expect(width).toMatch(/must be ≥ 1 and ≤ 100000 m/);
     expect(r.body).toContain('href="#f-pest-growth-rate"');
     // Nothing was saved.
     expect((await t.app.inject('/api/scenarios')).json().scenarios.filter((s: { kind: string }) => s.kind === 'saved')).toHaveLength(0);

@@ -1,3 +1,4 @@
+import { finiteOrRefused } from '../finite-guard.ts';
 import { TOOL } from '../../version.ts';
 import { buildProblem, type Problem } from '../../problem/problem.ts';
 import { resolve } from '../../problem/resolve.ts';
@@ -105,6 +106,11 @@ function assemble(scenario: Scenario, p: Problem, single: SingleRuns, uncertaint
  * document is the same whatever runner is used, apart from wall times and thread counts.
  */
 export async function evaluate(scenario: Scenario, opts: EvaluateWithRunnerOptions = {}): Promise<ResultDocument> {
+  // Non-finite numbers never become a verdict (analysis/finite-guard.ts).
+  return finiteOrRefused(() => evaluateUnguarded(scenario, opts));
+}
+
+async function evaluateUnguarded(scenario: Scenario, opts: EvaluateWithRunnerOptions): Promise<ResultDocument> {
   const p = buildProblem(resolve(scenario));
   const share = singleRunShare(scenario);
   const single = singleRuns(p, share, opts);

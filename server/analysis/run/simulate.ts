@@ -1,3 +1,4 @@
+import { checkFiniteCoefficients } from '../../numerics/finite.ts';
 import { makeDiffusionOperator, type DiffusionOperator } from '../../numerics/diffusion.ts';
 import { makeCoupledStepper } from '../../numerics/coupled.ts';
 import { runTimeLoop, type FieldStepper, type Observer, type SolverResult } from '../../numerics/time-loop.ts';
@@ -78,6 +79,7 @@ export function runLayout(req: RunRequest): RunOutput {
   const problem = req.problem ?? discretise(s, req.pieces, req.resolution);
   const tEnd = req.tEnd ?? s.horizonYears;
   const { grid } = problem;
+  checkFiniteCoefficients(problem); // refuses coefficients that would turn the run into NaN (numerics/finite.ts)
   const { stepper } = makeEngineStepper(problem);
   const u = Float64Array.from(req.initialDensity ? req.initialDensity(problem) : problem.u0);
   if (u.length !== grid.nCells) throw new RangeError(`initialDensity gave ${u.length} values for ${grid.nCells} cells`);

@@ -33,9 +33,12 @@ const HTTP_TITLES: Record<number, string> = {
   413: 'Too large',
   414: 'Address too long',
   415: 'Unsupported content',
+  421: 'Unknown host name',
+  422: 'Cannot be drawn',
   429: 'Too many requests',
   500: 'Something went wrong on our side',
   503: 'Busy',
+  507: 'No room to store it',
 };
 
 async function send(req: FastifyRequest, reply: FastifyReply, status: number, body: ErrorBody) {
@@ -56,8 +59,11 @@ export default fp(
     app.setErrorHandler(async (err: unknown, req, reply) => {
       if (err instanceof InputError) {
         const n = err.problems.length;
-        // An input error may carry 503 (a full queue: retry later); anything else is the input's fault.
-        const status = (err as { statusCode?: number }).statusCode === 503 ? 503 : 400;
+        // An input error may carry 503 (a full queue: retry later), 413 (a form with more inputs than any of this
+        // app's), 422 (valid, but a briefing cannot draw its text) or 507 (no room left to store it); anything
+        // else is the input's fault.
+        const carried = (err as { statusCode?: number }).statusCode;
+        const status = carried === 503 || carried === 413 || carried === 422 || carried === 507 ? carried : 400;
         if (status === 503) reply.header('retry-after', '60');
         return send(req, reply, status, {
           error: err.code,

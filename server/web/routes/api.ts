@@ -98,7 +98,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
 
   api.post(
     '/api/scenarios',
-    { schema: { tags: ['scenarios'], summary: 'Save a new scenario', body: ScenarioSchema, response: { 201: ScenarioEntry, ...errors } } },
+    { config: deps.formPost, schema: { tags: ['scenarios'], summary: 'Save a new scenario', body: ScenarioSchema, response: { 201: ScenarioEntry, ...errors } } },
     async (req, reply) => {
       const saved = store.createScenario(req.body as Scenario);
       reply.code(201).header('location', `/api/scenarios/${saved.id}`);
@@ -118,6 +118,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
   api.put(
     '/api/scenarios/:ref',
     {
+      config: deps.formPost,
       schema: {
         tags: ['scenarios'],
         summary: 'Replace a saved scenario (demo scenarios are read-only)',
@@ -137,7 +138,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
 
   api.delete(
     '/api/scenarios/:ref',
-    { schema: { tags: ['scenarios'], summary: 'Delete a saved scenario', params: RefParams, response: { 204: z.undefined(), 409: ErrorSchema, ...errors } } },
+    { config: deps.formPost, schema: { tags: ['scenarios'], summary: 'Delete a saved scenario', params: RefParams, response: { 204: z.undefined(), 409: ErrorSchema, ...errors } } },
     async (req, reply) => {
       const e = entryOr404(req.params.ref);
       const id = savedId(e.ref);
@@ -159,7 +160,13 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
           'Answers 202 with the job; poll GET /api/evaluations/{id} (or listen to /api/evaluations/{id}/events) until `finished`, ' +
           'then fetch /api/results/{resultId}. Limits on cells, horizon, options and wall time answer 400 with the field concerned.',
         body: EvaluationRequest,
-        response: { 202: JobSchema, 429: ErrorSchema, 503: ErrorSchema.describe('The queue is full; retry after the Retry-After seconds'), ...errors },
+        response: {
+          202: JobSchema,
+          429: ErrorSchema,
+          503: ErrorSchema.describe('The queue is full; retry after the Retry-After seconds'),
+          507: ErrorSchema.describe('The disk holding the data folder is (nearly) full; nothing was started'),
+          ...errors,
+        },
       },
     },
     async (req, reply) => {
@@ -173,6 +180,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
         if (entry || !(e instanceof LimitError)) throw e;
         throw new LimitError(e.problems.map((p) => ({ ...p, path: `scenario.${p.path}` })));
       }
+      store.checkSpace();
       const job = jobs.submit({ scenario, scenarioRef: entry?.ref ?? null });
       reply.code(202).header('location', `/api/evaluations/${job.id}`);
       return withResultId(job.id);

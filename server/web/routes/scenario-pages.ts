@@ -5,8 +5,9 @@
  */
 import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import { parseScenario, parseScenarioText, type Scenario } from '../../model/scenario.ts';
-import { InputError, ScenarioError, type Problem } from '../../model/errors.ts';
-import { applyRowAction, formStateFromBody, formToScenario, parseRowAction, ROW_GROUPS, rowIndices, scenarioToForm, type FormState } from '../form-state.ts';
+import { InputError, ScenarioError, valueAt, type Problem } from '../../model/errors.ts';
+import { applyRowAction, formStateFromBody, formToScenario, parseRowAction, ROW_GROUPS, rowIndices, scenarioToForm, type FormNote, type FormState } from '../form-state.ts';
+import { inputUnit } from '../form-read.ts';
 import { formView, inputId, newScenarioTemplate } from '../view-models/scenario-form.ts';
 import { scenarioListItem, scenarioView } from '../view-models/scenario-view.ts';
 import { resultListItem } from '../view-models/result-view.ts';
@@ -18,6 +19,34 @@ import type { WebDeps } from '../deps.ts';
 import { download } from './result-pages.ts';
 
 type RefParams = { Params: { ref: string } };
+
+/** Most numbers listed as "read as" after a save. */
+const MAX_READ_BACK = 8;
+
+/** The notes of numbers read other than as typed, as one sentence after a notice. */
+function readBackText(notes: readonly FormNote[]): string {
+  if (!notes.length) return '';
+  return ` Read as: ${notes.slice(0, MAX_READ_BACK).map((n) => `${n.path}: ${n.message}`).join('; ')}${notes.length > MAX_READ_BACK ? '; …' : ''}.`;
+}
+
+/**
+ * The saved values of the inputs listed in `read` (input names, space-separated), so the page shows back how
+ * a number typed with grouping, a decimal comma or a unit was read. Only the saved scenario's own values are
+ * printed; the query merely names which inputs.
+ */
+function readBackValues(scenario: Scenario, read: string | undefined): string {
+  if (typeof read !== 'string' || read === '') return '';
+  const items: string[] = [];
+  for (const name of read.split(' ').slice(0, MAX_READ_BACK)) {
+    if (!/^[A-Za-z][\w.[\]~]{0,119}$/.test(name)) continue;
+    const path = name.replace('~', '.').split(/[.[\]]+/).filter(Boolean).map((k) => (/^\d+$/.test(k) ? Number(k) : k));
+    const v = valueAt(scenario, path);
+    const unit = inputUnit(name) ? ` ${inputUnit(name)}` : '';
+    if (typeof v === 'number') items.push(`${name}: ${v}${unit}`);
+    else if (Array.isArray(v) && v.every((x) => typeof x === 'number')) items.push(`${name}: ${v.join(', ')}${unit}`);
+  }
+  return items.length ? ` Numbers read from what you typed: ${items.join('; ')}.` : '';
+}
 
 /** Largest scenario file accepted by upload [bytes]. */
 export const UPLOAD_LIMIT_BYTES = 1_000_000;
@@ -94,17 +123,21 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
       const focus = at >= 0 && at < rows.length ? `${group.prefix}[${at}].${group.columns[rowAction.group === 'segments' ? 2 : 0].path}` : undefined;
       return renderForm(reply, t, next, [], 200, { focus });
     }
-    const { input, problems: formProblems } = formToScenario(state);
+    const { input, problems: formProblems, notes } = formToScenario(state);
     let scenario: Scenario | undefined;
     const problems = [...formProblems];
     try {
       scenario = parseScenario(input);
     } catch (e) {
       if (!(e instanceof ScenarioError)) throw e;
-      problems.push(...e.problems);
+      // A number the form refused (ambiguous "1,200", a foreign unit) is reported once, in the form's words.
+      const refused = new Set(formProblems.map((p) => p.path.replace(/~.*$/, '')));
+      problems.push(...e.problems.filter((p) => !refused.has(p.path) && ![...refused].some((r) => p.path.startsWith(`${r}.`))));
     }
     if (problems.length || !scenario) return renderForm(reply, t, state, problems, 400);
-    if (actionText === 'check' && !run) return renderForm(reply, t, state, [], 200, { notice: 'No problems found. The scenario has not been saved yet.' });
+    if (actionText === 'check' && !run) {
+      return renderForm(reply, t, state, [], 200, { notice: `No problems found. The scenario has not been saved yet.${readBackText(notes)}` });
+    }
     if (run) {
       try {
         checkLimits(scenario, limits);
@@ -112,6 +145,8 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
         if (e instanceof InputError) return renderForm(reply, t, state, e.problems, 400);
         throw e;
       }
+      // A nearly full disk is refused before the run, not after it (507 naming DATA_DIR).
+      store.checkSpace();
     }
     const id = t.entry && !t.entry.readOnly ? savedId(t.entry.ref) : undefined;
     const ref = id !== undefined && store.updateScenario(id, scenario) ? String(id) : String(store.createScenario(scenario).id);
@@ -119,11 +154,13 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
       const job = jobs.submit({ scenario, scenarioRef: ref });
       return reply.redirect(`/runs/${job.id}`, 303);
     }
-    return reply.redirect(`/scenarios/${ref}?saved=1`, 303);
+    // Numbers read other than as typed ("1 200 m" as 1200) are shown back on the scenario page.
+    const read = notes.length ? `&read=${encodeURIComponent([...new Set(notes.map((n) => n.path))].slice(0, MAX_READ_BACK).join(' '))}` : '';
+    return reply.redirect(`/scenarios/${ref}?saved=1${read}`, 303);
   };
 
   app.get('/scenarios/new', async (_req, reply) => renderForm(reply, {}, scenarioToForm(newScenarioTemplate()), [], 200));
-  app.post('/scenarios/new', async (req, reply) => handleForm(req, reply, {}, false));
+  app.post('/scenarios/new', { config: deps.formPost }, async (req, reply) => handleForm(req, reply, {}, false));
   app.post('/scenarios/new/run', { config: { rateLimit: deps.computeRateLimit } }, async (req, reply) => handleForm(req, reply, {}, true));
 
   app.get<RefParams>('/scenarios/:ref/edit', async (req, reply) => {
@@ -132,7 +169,7 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
       notice: entry.readOnly ? 'This is a demo scenario: saving creates your own copy and leaves the demo unchanged.' : '',
     });
   });
-  app.post<RefParams>('/scenarios/:ref/edit', async (req, reply) => handleForm(req, reply, { entry: entryOr404(req.params.ref) }, false));
+  app.post<RefParams>('/scenarios/:ref/edit', { config: deps.formPost }, async (req, reply) => handleForm(req, reply, { entry: entryOr404(req.params.ref) }, false));
   app.post<RefParams>('/scenarios/:ref/edit/run', { config: { rateLimit: deps.computeRateLimit } }, async (req, reply) =>
     handleForm(req, reply, { entry: entryOr404(req.params.ref) }, true),
   );
@@ -144,7 +181,7 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
     return reply.page('scenario', {
       title: entry.title,
       s: scenarioView(entry),
-      notice: q.saved ? 'Saved.' : '',
+      notice: q.saved ? `Saved.${readBackValues(entry.scenario, q.read)}` : '',
       results: store.listResults({ scenarioRef: entry.ref, limit: 20 }).map(resultListItem),
       limits,
     });
@@ -153,6 +190,7 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
   app.post<RefParams>('/scenarios/:ref/run', { config: { rateLimit: deps.computeRateLimit } }, async (req, reply) => {
     const entry = entryOr404(req.params.ref);
     checkLimits(entry.scenario, limits);
+    store.checkSpace();
     const job = jobs.submit({ scenario: entry.scenario, scenarioRef: entry.ref });
     return reply.redirect(`/runs/${job.id}`, 303);
   });
@@ -181,7 +219,7 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
     const entry = entryOr404(req.params.ref);
     return jsonPage(reply, entry, JSON.stringify(entry.scenario, null, 2), [], 200);
   });
-  app.post<RefParams>('/scenarios/:ref/json', async (req, reply) => {
+  app.post<RefParams>('/scenarios/:ref/json', { config: deps.formPost }, async (req, reply) => {
     const entry = entryOr404(req.params.ref);
     const body = (req.body ?? {}) as Record<string, unknown>;
     const text = typeof body.text === 'string' ? body.text : '';
@@ -199,20 +237,36 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
   });
 
   // ---- upload, duplicate, delete --------------------------------------------------------------
-  app.post('/scenarios/upload', async (req, reply) => {
+  app.post('/scenarios/upload', { config: deps.formPost }, async (req, reply) => {
     if (!req.isMultipart()) {
       return listPage(reply, { uploadProblems: [{ path: 'file', value: undefined, message: 'choose a scenario file (.json) to upload' }] }, 400);
     }
-    const file = await req.file({ limits: { fileSize: UPLOAD_LIMIT_BYTES, files: 1 } });
+    // A truncated or malformed upload (cut off mid-file, no boundary, a damaged part header) is the sender's
+    // fault: 400 with what to do, never a 500.
+    const damaged = (e: unknown) => {
+      req.log.info({ err: e }, 'damaged upload');
+      return listPage(
+        reply,
+        { uploadProblems: [{ path: 'file', value: undefined, message: `the upload arrived incomplete or damaged (${(e as Error).message}); choose the file and upload it again` }] },
+        400,
+      );
+    };
+    let file: Awaited<ReturnType<typeof req.file>>;
+    try {
+      file = await req.file({ limits: { fileSize: UPLOAD_LIMIT_BYTES, files: 1 } });
+    } catch (e) {
+      return damaged(e);
+    }
     if (!file) return listPage(reply, { uploadProblems: [{ path: 'file', value: undefined, message: 'choose a scenario file (.json) to upload' }] }, 400);
-    const tooLarge = () => listPage(reply, { uploadProblems: [{ path: 'file', value: file.filename, message: `is larger than ${UPLOAD_LIMIT_BYTES / 1e6} MB, the most this server accepts` }] }, 413);
+    const filename = file.filename;
+    const tooLarge = () => listPage(reply, { uploadProblems: [{ path: 'file', value: filename, message: `is larger than ${UPLOAD_LIMIT_BYTES / 1e6} MB, the most this server accepts` }] }, 413);
     let buffer: Buffer;
     try {
       buffer = await file.toBuffer();
     } catch (e) {
       // The multipart reader throws once the file passes the size limit.
       if ((e as { code?: string }).code === 'FST_REQ_FILE_TOO_LARGE') return tooLarge();
-      throw e;
+      return damaged(e);
     }
     if (file.file.truncated) return tooLarge();
     let scenario: Scenario;
@@ -226,7 +280,7 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
     return reply.redirect(`/scenarios/${saved.id}?saved=1`, 303);
   });
 
-  app.post<RefParams>('/scenarios/:ref/duplicate', async (req, reply) => {
+  app.post<RefParams>('/scenarios/:ref/duplicate', { config: deps.formPost }, async (req, reply) => {
     const entry = entryOr404(req.params.ref);
     const title = `Copy of ${entry.scenario.title}`.slice(0, 300);
     const saved = store.createScenario({ ...entry.scenario, title });
@@ -245,7 +299,7 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
       back: `/scenarios/${encodeURIComponent(entry.ref)}`,
     });
   });
-  app.post<RefParams>('/scenarios/:ref/delete', async (req, reply) => {
+  app.post<RefParams>('/scenarios/:ref/delete', { config: deps.formPost }, async (req, reply) => {
     const entry = entryOr404(req.params.ref);
     const id = savedId(entry.ref);
     if (entry.readOnly || id === undefined) throw conflict('Demo scenarios cannot be deleted.');
