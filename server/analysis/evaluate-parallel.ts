@@ -4,6 +4,7 @@ import { evaluateScenario, type EvaluateOptions } from './evaluate.ts';
 import { runEnsembleParallel } from './ensemble-pool.ts';
 import { analyseBypass, singleRunShare } from './uncertainty.ts';
 import type { ResultDocument } from './result.ts';
+import { recommendWidth } from './recommended-width.ts';
 
 /**
  * evaluateScenario with the ensemble on a worker pool sized to the cores (or `threads`). The document is
@@ -25,6 +26,6 @@ export async function evaluateScenarioParallel(scenario: Scenario, opts: Evaluat
   });
   const bypass = analyseBypass(pointScenario(scenario), doc.options, uncertainty, opts.shouldCancel);
   opts.onProgress?.(1, 'done');
-  const { cautions, ...rest } = doc;
-  return { ...rest, uncertainty, ...(bypass ? { bypass } : {}), cautions };
+  const { cautions, recommendedWidth: _single, ...rest } = doc;
+  return { ...rest, uncertainty, ...(bypass ? { bypass } : {}), recommendedWidth: recommendWidth({ options: doc.options, uncertainty, bypass }), cautions };
 }

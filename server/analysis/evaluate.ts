@@ -9,6 +9,7 @@ import { allCautions } from './cautions.ts';
 import { RESULT_VERSION, type OptionResult, type ResultDocument, type UncertaintyResult } from './result.ts';
 import { runEnsemble } from './ensemble.ts';
 import { analyseBypass, singleRunShare } from './uncertainty.ts';
+import { recommendWidth } from './recommended-width.ts';
 
 export interface EvaluateOptions {
   /** Polled during runs; returning true cancels (the result then carries status 'cancelled'). */
@@ -96,6 +97,7 @@ export function evaluateScenario(scenario: Scenario, opts: EvaluateOptions = {})
     ...(mosaics.length ? { mosaics } : {}),
     ...(uncertainty ? { uncertainty } : {}),
     ...(bypass ? { bypass } : {}),
+    recommendedWidth: recommendWidth({ options: optionResults, uncertainty, bypass }),
     cautions: allCautions(),
   };
 }

@@ -10,6 +10,7 @@ import { applyRowAction, formStateFromBody, formToScenario, parseRowAction, ROW_
 import { formView, inputId, newScenarioTemplate } from '../view-models/scenario-form.ts';
 import { scenarioListItem, scenarioView } from '../view-models/scenario-view.ts';
 import { resultListItem } from '../view-models/result-view.ts';
+import { listWithVerdicts } from './result-pages.ts';
 import { problemItems } from '../view-models/problems.ts';
 import { checkLimits } from '../limits.ts';
 import { savedId, type CatalogueEntry } from '../catalogue.ts';
@@ -145,7 +146,7 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
       title: entry.title,
       s: scenarioView(entry),
       notice: q.saved ? 'Saved.' : '',
-      results: store.listResults({ scenarioRef: entry.ref, limit: 20 }).map(resultListItem),
+      results: listWithVerdicts(store, store.listResults({ scenarioRef: entry.ref, limit: 20 })).map(resultListItem),
       limits,
     });
   });
