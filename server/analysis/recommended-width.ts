@@ -25,9 +25,9 @@ export const ROUND_TO_M = 50;
 
 const finite = (x: unknown): x is number => typeof x === 'number' && Number.isFinite(x);
 
-/** Rounds up to the next multiple of `step` (a tiny tolerance keeps 1 000.0000001 at 1 000). */
+/** Rounds up to the next multiple of `step` (a tolerance of a millionth of a step keeps round-off such as 1 000.0000001 at 1 000). */
 export function roundUpTo(x: number, step: number): number {
-  return Math.ceil(x / step - 1e-9) * step;
+  return Math.ceil(x / step - 1e-6) * step;
 }
 
 /**

@@ -60,9 +60,10 @@ export function transportNote(doc: Doc, k: number): TransportNote | null {
   const T = years(doc.horizonYears).replace(/\.0$/, '');
   const short = `${percent(p, 0)} within ${T} yr`;
   const where = over === 'ensemble' ? 'over the ensemble' : 'at the central values';
+  const wider = Number.isFinite(b.probabilityIf100mWider) ? ` (${percent(b.probabilityIf100mWider, 0)} with the clearing 100 m wider)` : '';
   const sentence = b.transportDecides
-    ? `Transport, not the width, decides: people carrying the pest (firewood, logs, nursery stock) give a ${percent(p, 0)} chance of an established colony beyond the clearing within ${T} years (${where}); a wider clearing does not change this. Movement controls set by the regulator are the tool for that risk.`
-    : `People carrying the pest past the clearing: ${percent(p, 0)} chance of an established colony beyond it within ${T} years (${where}).`;
+    ? `${percent(p, 0)} chance that infested firewood, logs or nursery stock found a colony beyond the clearing within ${T} years (${where})${wider}. Transport, not the width, decides: movement controls set by the regulator are the tool for that risk.`
+    : `${percent(p, 0)} chance that infested wood carried past the clearing founds a colony beyond it within ${T} years (${where})${wider}.`;
   return { short, sentence, decides: b.transportDecides, probability: p };
 }
 
@@ -118,7 +119,11 @@ export function headline(doc: Doc): string {
   const held = doc.options.map((o, k) => ({ o: o as LooseOption, k })).filter(({ o }) => o.verdict?.kind === 'holds');
   const speeds = doc.options.map((o, k) => ({ o: o as LooseOption, k })).filter(({ o }) => o.verdict?.kind === 'speeds-up');
   const parts: string[] = [];
-  if (held.length) parts.push(`${held.map(({ o, k }) => `${optionKey(k)} (${integer(o.widthM)} m)`).join(' and ')} ${held.length === 1 ? 'holds' : 'hold'} the front.`);
+  if (held.length) {
+    const narrow = rec.widthM !== null ? held.filter(({ o }) => o.widthM < rec.widthM!) : [];
+    parts.push(`${held.map(({ o, k }) => `${optionKey(k)} (${integer(o.widthM)} m)`).join(' and ')} ${held.length === 1 ? 'holds' : 'hold'} the front in the model.`);
+    if (narrow.length) parts.push(`${narrow.map(({ k }) => optionKey(k)).join(' and ')} ${narrow.length === 1 ? 'is' : 'are'} narrower than the recommended minimum of ${integer(rec.widthM!)} m, which adds a safety margin.`);
+  }
   else if (rec.basis === 'no-width-stops') parts.push('No clearing width stops this pest in the model; clearings only delay it.');
   else parts.push('No option was shown to hold the front.');
   if (speeds.length) parts.push(`${speeds.map(({ k }) => optionKey(k)).join(', ')} would SPEED the pest up.`);
@@ -188,6 +193,8 @@ export interface SiteEvent {
   kind: SiteEventKind;
   /** Cell text: what happens at the site with this option. */
   text: string;
+  /** Two short lines for narrow table cells (the briefing): "year 17.2\n+1.3 yr", "held\nfringe from yr 18.1". */
+  short: string;
   /** Year a breeding population arrives [yr]; null when none within the run. */
   breedingYears: number | null;
   /** Year a thin non-breeding fringe first reaches the detection level [yr]; null when none or not distinguished. */
@@ -210,31 +217,38 @@ export function siteEvent(doc: Doc, k: number, i: number): SiteEvent {
   const vs = base === null ? `; without the clearing not within ${T} yr` : '';
   if (!site) {
     return runYear === null
-      ? { kind: 'not-reached', text: `not reached within ${T} yr`, breedingYears: null, fringeYears: null }
-      : { kind: 'breeding', text: `year ${years(runYear)}`, breedingYears: runYear, fringeYears: null };
+      ? { kind: 'not-reached', text: `not reached within ${T} yr`, short: 'not reached', breedingYears: null, fringeYears: null }
+      : { kind: 'breeding', text: `year ${years(runYear)}`, short: years(runYear), breedingYears: runYear, fringeYears: null };
   }
   const crossing = o.crossingYears?.option ?? null;
   const projected = o.crossingYears?.projected ?? null;
   if (!site.beyondBarrier) {
-    if (runYear === null) return { kind: 'not-reached', text: `not reached within ${T} yr`, breedingYears: null, fringeYears: null };
+    if (runYear === null) return { kind: 'not-reached', text: `not reached within ${T} yr`, short: 'not reached', breedingYears: null, fringeYears: null };
     const d = base !== null ? `, ${sign(runYear - base)} yr` : vs;
-    return { kind: 'before-clearing', text: `pest arrives year ${years(runYear)}${d} (site before the clearing)`, breedingYears: runYear, fringeYears: null };
+    const shortD = base !== null ? `\n${sign(runYear - base)} yr` : '';
+    return { kind: 'before-clearing', text: `pest arrives year ${years(runYear)}${d} (site before the clearing)`, short: `${years(runYear)}${shortD}`, breedingYears: runYear, fringeYears: null };
   }
   if (site.kind === 'holds' || site.kind === 'marginal') {
     const fringe = runYear !== null ? `; a thin non-breeding fringe is detectable there from year ${years(runYear)}` : '';
     const held = site.kind === 'holds' ? 'no breeding population: the front is held at the clearing' : 'no breeding population in this run, but too close to call';
-    return { kind: 'held', text: `${held}${fringe}`, breedingYears: null, fringeYears: runYear };
+    return { kind: 'held', text: `${held}${fringe}`, short: `${site.kind === 'holds' ? 'held' : 'held, close'}${runYear !== null ? `\nfringe ${years(runYear)}` : ''}`, breedingYears: null, fringeYears: runYear };
   }
   if (runYear !== null && (crossing === null || runYear < crossing)) {
     const later = crossing !== null ? `the breeding front passes the clearing in year ${years(crossing)}` : `the breeding front has not passed the clearing within ${T} yr${projected !== null ? ` (projected year ${years(projected)})` : ''}`;
-    return { kind: 'fringe', text: `only a thin non-breeding fringe, from year ${years(runYear)}; ${later}`, breedingYears: null, fringeYears: runYear };
+    return { kind: 'fringe', text: `only a thin non-breeding fringe, from year ${years(runYear)}; ${later}`, short: `fringe only\nfrom ${years(runYear)}`, breedingYears: null, fringeYears: runYear };
   }
   if (runYear === null) {
     const proj = site.projectedArrivalYears ?? null;
-    return { kind: 'not-reached', text: `not reached within ${T} yr${proj !== null ? ` (projected year ${years(proj)})` : ''}${base !== null ? `; without the clearing year ${years(base)}` : ''}`, breedingYears: null, fringeYears: null };
+    return {
+      kind: 'not-reached',
+      text: `not reached within ${T} yr${proj !== null ? ` (projected year ${years(proj)})` : ''}${base !== null ? `; without the clearing year ${years(base)}` : ''}`,
+      short: proj !== null ? `not reached\n(${years(proj)})` : 'not reached',
+      breedingYears: null,
+      fringeYears: null,
+    };
   }
   const d = base !== null ? `, ${sign(runYear - base)} yr` : vs;
-  return { kind: 'breeding', text: `breeding population arrives year ${years(runYear)}${d}`, breedingYears: runYear, fringeYears: null };
+  return { kind: 'breeding', text: `breeding population arrives year ${years(runYear)}${d}`, short: `${years(runYear)}${base !== null ? `\n${sign(runYear - base)} yr` : ''}`, breedingYears: runYear, fringeYears: null };
 }
 
 /**

@@ -45,6 +45,16 @@
     box.querySelectorAll('label.part').forEach(function (label) {
       label.hidden = words(label.getAttribute('data-kinds')).indexOf(kind) < 0;
     });
+    // The single-value box says it is not used while a range is chosen (instead of looking unfilled).
+    var field = box.closest('.field');
+    var note = field && field.querySelector('[data-range-given]');
+    var single = field && field.querySelector('.control input');
+    if (note) note.hidden = kind === 'value';
+    if (single) {
+      single.classList.toggle('superseded', kind !== 'value');
+      if (kind !== 'value') single.setAttribute('placeholder', note ? note.textContent : '');
+      else single.removeAttribute('placeholder');
+    }
   }
   form.querySelectorAll('[data-dist]').forEach(showDist);
 

@@ -43,6 +43,8 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
         results: store.listResults({ limit: 10 }).map(resultListItem),
         uploadProblems: problemItems(extra.uploadProblems ?? []),
         notice: extra.notice ?? '',
+        // After a failed upload the problems sit at the top; the script moves the focus (and the view) there.
+        scripts: extra.uploadProblems?.length ? ['/assets/focus-problems.js'] : [],
       },
       status,
     );
@@ -63,7 +65,7 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
     return { action: base, runAction: `${base}/run`, cancel: t.entry ? `/scenarios/${encodeURIComponent(t.entry.ref)}` : '/scenarios' };
   };
   const renderForm = (reply: FastifyReply, t: FormTarget, state: FormState, problems: Problem[], status: number, extra: { notice?: string; focus?: string } = {}) => {
-    const view = formView(state, problems);
+    const view = formView(state, problems, { maxHorizonYears: limits.maxHorizonYears });
     return reply.page(
       'scenario-form',
       {
@@ -105,8 +107,8 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
       problems.push(...e.problems);
     }
     if (problems.length || !scenario) return renderForm(reply, t, state, problems, 400);
-    if (actionText === 'check' && !run) return renderForm(reply, t, state, [], 200, { notice: 'No problems found. The scenario has not been saved yet.' });
-    if (run) {
+    // Check answers what Save and run would: the schema and this server's limits (one limit everywhere).
+    if (run || actionText === 'check') {
       try {
         checkLimits(scenario, limits);
       } catch (e) {
@@ -114,6 +116,7 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
         throw e;
       }
     }
+    if (actionText === 'check' && !run) return renderForm(reply, t, state, [], 200, { notice: 'No problems found. The scenario has not been saved yet.' });
     const id = t.entry && !t.entry.readOnly ? savedId(t.entry.ref) : undefined;
     const ref = id !== undefined && store.updateScenario(id, scenario) ? String(id) : String(store.createScenario(scenario).id);
     if (run) {

@@ -64,7 +64,7 @@ export function compareResultsView(a: StoredResult, b: StoredResult) {
       .filter((k) => ma.get(k)?.value !== mb.get(k)?.value)
       .map((k) => ({
         label: k,
-        cells: [ma.get(k) ? `${ma.get(k)!.value} ${ma.get(k)!.unit === '–' ? '' : ma.get(k)!.unit}`.trim() : 'not given', mb.get(k) ? `${mb.get(k)!.value} ${mb.get(k)!.unit === '–' ? '' : mb.get(k)!.unit}`.trim() : 'not given'],
+        cells: [ma.get(k) ? `${ma.get(k)!.value} ${ma.get(k)!.unit === 'no unit' ? '' : ma.get(k)!.unit}`.trim() : 'not given', mb.get(k) ? `${mb.get(k)!.value} ${mb.get(k)!.unit === 'no unit' ? '' : mb.get(k)!.unit}`.trim() : 'not given'],
       })),
   };
   const table: TableView = {

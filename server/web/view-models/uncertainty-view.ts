@@ -45,7 +45,7 @@ export function uncertaintyView(doc: ResultDocument) {
         probabilityText(o.pinned),
         o.holdsIncludingTransport ? probabilityText(o.holdsIncludingTransport) : 'not assessed (no transport given)',
         quantileText(o.crossingYears),
-        o.criticalWidth.computed ? quantileText(o.criticalWidth.widthM, 'm', (x) => integer(x)) : o.criticalWidth.note,
+        o.criticalWidth.computed ? quantileText(o.criticalWidth.widthM, 'm', (x) => integer(x)) : 'not computed: the width search in every draw was switched off for this scenario (or no front reached the clearing)',
         o.criticalWidth.computed
           ? `${o.criticalWidth.holds90M === null ? 'beyond the range searched' : `${integer(o.criticalWidth.holds90M)} m`} / ${o.criticalWidth.holds95M === null ? 'beyond' : `${integer(o.criticalWidth.holds95M)} m`}`
           : 'not computed',
