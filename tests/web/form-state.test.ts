@@ -325,6 +325,6 @@ describe('form view', () => {
       ['infestation', '0.000%'],
       ['option', '33.333%'],
     ]);
-    expect(view.strip.pins).toEqual([{ left: '66.667%', label: 'Wendle hut' }]);
+    expect(view.strip.pins).toEqual([{ left: '66.667%', label: 'Wendle hut', flip: true }]);
   });
 });
