@@ -115,6 +115,8 @@ export interface ResultDocument {
   uncertainty?: UncertaintyResult;
   /** Human-carried bypass risk, when the scenario describes transport. Filled by the bypass analysis. */
   bypass?: BypassResult;
+  /** One recommended minimum width for the scenario, with its basis (analysis/recommended-width.ts). */
+  recommendedWidth?: RecommendedWidth;
   /** Plain-language limits and cautions; every output shows them. */
   cautions: string[];
 }
@@ -432,3 +434,48 @@ export interface BypassResult {
   /** The regulator's tool against transport, stated with every bypass result. */
   regulatorNote: string;
 }
+
+/* ---------------------------------------------------------------------------------------------------
+ * Recommended minimum width (analysis/recommended-width.ts computes it; numbers only, words in report/).
+ * ------------------------------------------------------------------------------------------------- */
+
+export type RecommendationBasis =
+  /** Critical-width bracket of the central-value runs, plus the margin. */
+  | 'bracket'
+  /** The width that holds in 95 % of ensemble draws was larger than the bracket: it, plus the margin. */
+  | 'ensemble-95'
+  /** No strong Allee effect: no finite width pins the front. */
+  | 'no-width-stops'
+  /** A strong Allee effect, but no width up to the largest tried was verified to pin the front. */
+  | 'not-found'
+  /** The result has no barrier analysis (no options, or a document from before the analysis). */
+  | 'not-computed';
+
+export interface RecommendedWidth {
+  basis: RecommendationBasis;
+  /** Recommended minimum width [m]; null when no width is recommended (see basis). */
+  widthM: number | null;
+  /** The model threshold the margin is added to [m] (upper end of the bracket, or the 95 % width). */
+  thresholdM: number | null;
+  /** Critical-width bracket [crossed, pinned] [m] of the option that sets the threshold. */
+  bracketM: [number, number] | null;
+  /** Index of the option whose bracket sets the threshold (scenario order); null if none. */
+  fromOption: number | null;
+  /** Widths that hold in 90 % / 95 % of ensemble draws [m], when the ensemble computed them (largest over options). */
+  holds90M: number | null;
+  holds95M: number | null;
+  /** Draws behind the 90/95 % widths (0 without an ensemble critical width). */
+  ensembleDraws: number;
+  marginShare: number;
+  roundToM: number;
+  /** Phase-plane (first-integral) value [m] of the same option, and whether it assumes hosts held at present stocking. */
+  phasePlaneM: number | null;
+  phasePlaneAssumesIntactHosts: boolean;
+  /** Options at least as wide as the recommendation (scenario order). */
+  optionsMeeting: number[];
+  /** Without a strong Allee effect: the largest delay per 100 m of width over the options [yr]; null otherwise. */
+  delayPer100mYears: number | null;
+  /** True when, for some option, human transport rather than the width decides (bypass analysis). */
+  transportDecides: boolean;
+}
+

@@ -13,6 +13,7 @@ import { centralValue, isDistribution, listUncertain } from '../model/quantity.t
 import { pointScenario, segmentBreaks, type Scenario } from '../model/scenario.ts';
 import { distributionText, fixed, integer, km, num, percent, probabilityEstimate, speed, years } from './format.ts';
 import { optionKey } from './charts/styles.ts';
+import { alleeThresholdText, VERDICT_PLAIN } from './decision.ts';
 
 /** Short verdict labels for tables. */
 export const VERDICT_LABELS: Record<VerdictKind, string> = {
@@ -78,7 +79,7 @@ export function treesText(t: ReturnType<typeof treesOf>): string {
 
 /** How an option is described in headings: "A  Wide cut at km 6 — 800 m clearing from km 6". */
 export function optionHeading(o: OptionResult, k: number): string {
-  return `${optionKey(k)}  ${o.name} — ${num(o.widthM, 4)} m ${o.cover === 'non-host-forest' ? 'of non-host forest' : 'clearing'} from km ${num(o.fromKm, 4)}`;
+  return `${optionKey(k)}  ${o.name} — ${metres(o.widthM)} m ${o.cover === 'non-host-forest' ? 'of non-host forest' : 'clearing'} from km ${num(o.fromKm, 4)}`;
 }
 
 /**
@@ -105,11 +106,11 @@ export function metres(x: number): string {
 export function criticalWidthText(o: OptionResult): string {
   const c = o.criticalWidth;
   if (!c) return 'not computed';
-  if (!c.applicable) return 'none: no width holds (no Allee effect)';
-  const label = c.phasePlaneAssumesIntactHosts ? 'phase-plane with hosts intact' : 'phase-plane';
+  if (!c.applicable) return 'no width stops it (no Allee effect)';
+  const label = c.phasePlaneAssumesIntactHosts ? 'quick estimate with hosts held at present stocking' : 'quick estimate';
   const pp = c.phasePlaneM !== null && Number.isFinite(c.phasePlaneM) ? ` (${label} ${metres(c.phasePlaneM)} m)` : '';
   if (!c.bracketM) return `not found${pp}`;
-  return `${metres(c.bracketM[0])}–${metres(c.bracketM[1])} m${pp}`;
+  return `${metres(c.bracketM[1])} m; through at ${metres(c.bracketM[0])} m${pp}`;
 }
 
 /** One row of the options table. */
@@ -132,7 +133,7 @@ export function optionRows(doc: ResultDocument, scenario?: Scenario): OptionRow[
       width: num(o.widthM, 4),
       trees: t ? integer(t.stems) : '—',
       cost: t && t.cost !== null ? `${integer(t.cost)}${t.unit ? ` ${t.unit}` : ''}` : '—',
-      verdict: hasVerdict(o) ? VERDICT_LABELS[o.verdict.kind] ?? o.verdict.kind : 'no verdict (analysis not run)',
+      verdict: hasVerdict(o) ? VERDICT_PLAIN[o.verdict.kind] ?? o.verdict.kind : 'no verdict (analysis not run)',
       critical: criticalWidthText(o),
     };
   });
@@ -152,6 +153,9 @@ export function arrivalCell(run: Pick<RunResult, 'arrivals'>, i: number, baselin
 
 // ---------------------------------------------------------------------------------------------------
 // Parameters table
+
+/** Unit cell of a number without a unit (a share, a count, a choice): words, not a dash. */
+export const NO_UNIT = 'no unit';
 
 export interface ParameterRow {
   /** Group heading the row belongs to. */
@@ -199,7 +203,7 @@ export function parameterRows(scenario: Scenario, raw?: unknown, used?: RunResul
     if (v === undefined) return;
     // A value fitted to survey records says so ("fitted to 37 detections, 2019–2025"; analysis/calibration/fit.ts).
     const fitted = scenario.calibration?.paths.includes(path.join('.')) ? scenario.calibration.sentence : undefined;
-    rows.push({ group, label: label ?? spec?.label ?? String(path[path.length - 1]), value: quantityText(v), unit: unit ?? (spec?.unit || '–'), source: fitted ?? sourceText(spec, path, v, ctx) });
+    rows.push({ group, label: label ?? spec?.label ?? String(path[path.length - 1]), value: quantityText(v), unit: unit ?? (spec?.unit || NO_UNIT), source: fitted ?? sourceText(spec, path, v, ctx) });
   };
   const pest = 'Pest profile';
   add(pest, ['pest', 'diffusionHost'], FIELDS.diffusionHost);
@@ -208,7 +212,7 @@ export function parameterRows(scenario: Scenario, raw?: unknown, used?: RunResul
   add(pest, ['pest', 'edgePreferenceOpen'], FIELDS.edgePreferenceOpen);
   add(pest, ['pest', 'edgePreferenceNonHost'], FIELDS.edgePreferenceNonHost);
   const g = scenario.pest.growth;
-  rows.push({ group: pest, label: 'Growth form', value: g.form + (g.form === 'mate-finding' ? ` (mating: ${g.mating})` : ''), unit: '–', source: sourceText(null, ['pest', 'growth', 'form'], g.form, ctx) });
+  rows.push({ group: pest, label: 'Growth form', value: g.form + (g.form === 'mate-finding' ? ` (mating: ${g.mating})` : ''), unit: NO_UNIT, source: sourceText(null, ['pest', 'growth', 'form'], g.form, ctx) });
   if (g.form === 'logistic' || g.form === 'allee-cubic') add(pest, ['pest', 'growth', 'rate'], FIELDS.growthRate);
   if (g.form === 'allee-cubic') add(pest, ['pest', 'growth', 'alleeThreshold'], FIELDS.alleeThreshold);
   if (g.form === 'mate-finding') {
@@ -249,7 +253,7 @@ export function parameterRows(scenario: Scenario, raw?: unknown, used?: RunResul
     add(un, ['uncertainty', 'draws'], FIELDS.ensembleDraws);
     add(un, ['uncertainty', 'seed'], FIELDS.ensembleSeed);
     add(un, ['uncertainty', 'targetStandardError'], FIELDS.targetStandardError);
-    rows.push({ group: un, label: 'Critical width per draw', value: scenario.uncertainty.criticalWidth ? 'yes' : 'no', unit: '–', source: sourceText(null, ['uncertainty', 'criticalWidth'], scenario.uncertainty.criticalWidth, ctx) });
+    rows.push({ group: un, label: 'Critical width per draw', value: scenario.uncertainty.criticalWidth ? 'yes' : 'no', unit: NO_UNIT, source: sourceText(null, ['uncertainty', 'criticalWidth'], scenario.uncertainty.criticalWidth, ctx) });
   }
   const run = 'Run settings';
   add(run, ['horizonYears'], FIELDS.horizonYears);
@@ -262,7 +266,7 @@ export function parameterRows(scenario: Scenario, raw?: unknown, used?: RunResul
   const stepUsed = used ? ` (${num(used.stepYears)} used)` : '';
   if (numerics.stepYears === undefined) rows.push({ group: run, label: FIELDS.stepYears.label, value: `automatic${stepUsed}`, unit: FIELDS.stepYears.unit, source: auto });
   else add(run, ['numerics', 'stepYears'], FIELDS.stepYears);
-  rows.push({ group: run, label: 'Transect ends', value: `left ${scenario.transect.ends.left}, right ${scenario.transect.ends.right}`, unit: '–', source: valueAt(raw, ['transect', 'ends']) !== undefined || raw === undefined ? 'entered or default (reflecting)' : 'default (reflecting: no insect leaves)' });
+  rows.push({ group: run, label: 'Transect ends', value: `left ${scenario.transect.ends.left}, right ${scenario.transect.ends.right}`, unit: NO_UNIT, source: valueAt(raw, ['transect', 'ends']) !== undefined || raw === undefined ? 'entered or default (reflecting)' : 'default (reflecting: no insect leaves)' });
   return rows;
 }
 
@@ -315,7 +319,7 @@ export function modelFactLines(doc: ResultDocument): string[] {
   };
   out.push(growth[m.growthForm] ?? `Growth form: ${m.growthForm}.`);
   out.push(`Per-capita growth at low density in intact forest: ${num(m.lowDensityRate)} per year${m.lowDensityRate < 0 ? ' (negative: a strong Allee effect)' : ''}.`);
-  if (m.alleeThreshold !== null) out.push(`Allee threshold: ${percent(m.alleeThreshold)} of carrying capacity.`);
+  out.push(`Density below which a group of insects declines (Allee threshold): ${alleeThresholdText(m.alleeThreshold)}.`);
   if (m.linearSpeedKmPerYear > 0) out.push(`Spread speed expected in intact host forest from the linear theory (2√(D r)): ${speed(m.linearSpeedKmPerYear)}.`);
   out.push(m.hostDepletion ? 'The pest kills its host trees as it passes (host depletion is part of the model).' : 'Host trees are not depleted in this run.');
   out.push(`Front position and arrival use a detection level of ${percent(doc.detectionLevel, doc.detectionLevel < 0.01 ? 1 : 0)} of capacity; real surveys find infestations later than this.`);
@@ -369,7 +373,7 @@ export function readUncertainty(u: unknown): UncertaintyView | null {
     status: typeof u.status === 'string' ? u.status : 'completed',
     parameters: (Array.isArray(u.parameters) ? u.parameters : []).filter(isObj).map((p) => ({
       label: typeof p.label === 'string' ? p.label : String(p.path ?? ''),
-      unit: typeof p.unit === 'string' && p.unit ? p.unit : '–',
+      unit: typeof p.unit === 'string' && p.unit ? p.unit : NO_UNIT,
       distribution: quantityText(p.distribution),
     })),
     options: u.options.filter(isObj).map((o) => {

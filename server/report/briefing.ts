@@ -31,6 +31,7 @@ import {
   uncertainPaths,
 } from './briefing-text.ts';
 import { FONT, registerFonts } from './pdf/fonts.ts';
+import { headline, recommendationWords, siteEvent, spreadBeyondText, transportNote, verdictWords } from './decision.ts';
 import { Flow, type Column, type PageBox } from './pdf/flow.ts';
 
 export interface BriefingOptions {
@@ -142,14 +143,25 @@ function cover(flow: Flow, doc: ResultDocument, opts: BriefingOptions): void {
   flow.heading('The question', 2, 40);
   flow.text(questionText(doc), { after: 6 });
   flow.heading('Bottom line', 2, 60);
+  const decides = doc.options.some((_, k) => transportNote(doc, k)?.decides);
+  flow.text(headline(doc), { font: FONT.bold, after: 4, color: decides ? '#7a3b00' : '#000000' });
+  const rec = recommendationWords(doc);
+  if (doc.options.length) {
+    flow.text(rec.short, { font: FONT.bold, after: 1 });
+    if (rec.basis) flow.text(rec.basis, { size: 8.5, color: '#333333', after: 1 });
+    if (rec.phasePlane) flow.text(rec.phasePlane, { size: 8.5, color: '#333333', after: 4 });
+  }
   flow.text(baselineLine(doc), { after: 6 });
   doc.options.forEach((o, k) => {
     const head = optionHeading(o, k);
-    const line = bottomLine(doc, o);
+    const words = hasVerdict(o) ? verdictWords(doc, k) : null;
+    const line = `${words?.transport?.decides ? `${words.label}. ` : ''}${bottomLine(doc, o)}`;
+    const transport = words?.transport ? `People carrying the pest: ${words.transport.sentence}` : '';
     const trees = `Trees removed: ${treesText(treesOf(o, opts.scenario))}.`;
-    flow.ensure(flow.measure(head, { font: FONT.bold }) + flow.measure(line) + flow.measure(trees, { size: 8.5 }) + 8);
+    flow.ensure(flow.measure(head, { font: FONT.bold }) + flow.measure(line) + (transport ? flow.measure(transport, { size: 8.5 }) : 0) + flow.measure(trees, { size: 8.5 }) + 8);
     flow.text(head, { font: FONT.bold, after: 1 });
     flow.text(line, { indent: 14, after: 1 });
+    if (transport) flow.text(transport, { indent: 14, size: 8.5, font: FONT.bold, color: '#7a3b00', after: 1 });
     flow.text(trees, { indent: 14, size: 8.5, color: '#333333', after: 6 });
   });
   if (doc.options.some((o) => hasVerdict(o) && o.verdict.kind === 'speeds-up')) {
@@ -233,23 +245,36 @@ function tablesSection(flow: Flow, doc: ResultDocument, opts: BriefingOptions): 
   flow.newPage();
   flow.heading('Options compared');
   const rows = optionRows(doc, opts.scenario);
+  const transport = Boolean(doc.bypass);
   const cols: Column[] = [
     { header: '', width: 18 },
-    { header: 'Option', width: 110 },
+    { header: 'Option', width: transport ? 90 : 110 },
     { header: 'Width (m)', width: 44, align: 'right' },
-    { header: 'Trees removed', width: 58, align: 'right' },
-    { header: 'Cost', width: 70, align: 'right' },
-    { header: 'Verdict', width: 90 },
-    { header: 'Critical width', width: 105 },
+    { header: 'Trees removed', width: 52, align: 'right' },
+    { header: 'Cost', width: transport ? 62 : 70, align: 'right' },
+    { header: 'Verdict', width: transport ? 78 : 90 },
+    ...(transport ? [{ header: 'People carrying the pest past it', width: 66 }] : []),
+    { header: 'Front stops from', width: transport ? 85 : 111 },
   ];
-  flow.table(cols, rows.map((r) => [r.key, r.name, r.width, r.trees, r.cost, r.verdict, r.critical]));
+  flow.table(
+    cols,
+    rows.map((r, k) => {
+      const t = transportNote(doc, k);
+      const verdict = hasVerdict(doc.options[k]) ? verdictWords(doc, k).label : r.verdict;
+      return [r.key, r.name, r.width, r.trees, r.cost, verdict, ...(transport ? [t ? `${t.short}${t.decides ? ': decides' : ''}` : 'not computed'] : []), r.critical];
+    }),
+  );
   for (const [k, o] of doc.options.entries()) {
     if (!hasVerdict(o)) continue;
-    flow.text(`${optionKey(k)}: ${o.verdict.sentence}${o.verdict.why ? ` ${o.verdict.why}` : ''}`, { size: 8.5, after: 3 });
+    flow.text(`${optionKey(k)}: ${o.verdict.sentence}${o.verdict.why ? ` ${o.verdict.why}` : ''} Spread rate beyond the clearing: ${spreadBeyondText(o)}.`, { size: 8.5, after: 3 });
   }
   if (doc.baseline.arrivals.length) {
     flow.heading('Arrival at the protected sites', 2, 60);
-    flow.text(`Year the pest is first detected at each site, without a clearing and with each option; the second line is the change against no clearing (+ = later, − = earlier). “not reached” = not within ${num(doc.horizonYears, 4)} years.`, { size: 8.5 });
+    flow.text(
+      `Year a breeding population reaches each site, without a clearing and with each option; the second line is the change against no clearing (+ = later, − = earlier). ` +
+        `“held” = the front is held at the clearing, no breeding population beyond it; “fringe” = only a thin non-breeding fringe of insects reaches the detection level there (year given). “not reached” = not within ${num(doc.horizonYears, 4)} years (projected year in brackets).`,
+      { size: 8.5 },
+    );
     // Site name, then baseline and one column per option; split into several tables if the columns do not fit.
     const valueW = 44;
     const siteW = 95;
@@ -264,7 +289,7 @@ function tablesSection(flow: Flow, doc: ResultDocument, opts: BriefingOptions): 
       const rows2 = doc.baseline.arrivals.map((a, i) => [
         `${i + 1}  ${a.name} (km ${num(a.atKm, 4)})`,
         arrivalCell(doc.baseline, i, null),
-        ...group.map((o) => arrivalCell(o.run, i, doc.baseline, o)),
+        ...group.map((o, j) => (hasVerdict(o) ? siteEvent(doc, start + j, i).short : arrivalCell(o.run, i, doc.baseline, o))),
       ]);
       flow.table(cols2, rows2, { size: 7.5 });
       if (start + perTable >= doc.options.length) break;

@@ -1,5 +1,6 @@
 import type { OptionResult, ResultDocument, RunResult } from '../analysis/result.ts';
 import { distributionText, fixed, integer, km, num, percent, speed, years } from './format.ts';
+import { alleeThresholdText, headline, recommendationWords, siteEvent, spreadBeyondText, transportNote, widthDelayCell } from './decision.ts';
 
 /** Front positions at about `n` evenly spaced years, for a compact table. */
 function frontTable(run: RunResult, horizon: number, n = 7): string[] {
@@ -15,22 +16,30 @@ function frontTable(run: RunResult, horizon: number, n = 7): string[] {
 }
 
 /** The readable part of one run: fronts, measured speed, arrivals, host. */
-export function runSummary(run: RunResult, horizon: number): string[] {
+export function runSummary(run: RunResult, horizon: number, siteTexts?: string[]): string[] {
   const lines = ['  Front position over time (farthest point at or above the detection level):', ...frontTable(run, horizon)];
   for (const r of run.spreadRates) {
-    if (r.kmPerYear === null) continue;
+    // For an option the one spread rate shown is the one beyond the clearing (optionDecision), not this whole-run fit.
+    if (r.kmPerYear === null || siteTexts) continue;
     lines.push(`  Measured spread rate ${r.direction}wards: ${speed(r.kmPerYear)} (straight-line fit over years ${years(r.fromYears)}–${years(r.toYears)}, R² ${fixed(r.rSquared ?? 0, 3)})`);
   }
-  if (run.spreadRates.every((r) => r.kmPerYear === null)) lines.push('  Measured spread rate: front did not travel far enough within the transect to measure');
+  if (!siteTexts && run.spreadRates.every((r) => r.kmPerYear === null)) lines.push('  Measured spread rate: front did not travel far enough within the transect to measure');
   if (run.arrivals.length) {
     lines.push('  Arrival at protected sites:');
-    for (const a of run.arrivals) {
-      lines.push(`    ${a.name} (km ${km(a.atKm)}): ${a.arrivalYears === null ? `not reached within ${years(run.endYears)} yr` : `year ${years(a.arrivalYears)}`}`);
-    }
+    run.arrivals.forEach((a, i) => {
+      const what = siteTexts?.[i] ?? (a.arrivalYears === null ? `not reached within ${years(run.endYears)} yr` : `year ${years(a.arrivalYears)}`);
+      lines.push(`    ${a.name} (km ${km(a.atKm)}): ${what}`);
+    });
   }
   lines.push(`  Host remaining at year ${years(run.endYears)}: ${percent(run.host.remainingFraction)} of host stems; ${integer(run.host.stemsKilledPerKm)} stems killed per km of front width`);
   return lines;
 }
+
+const GROWTH_PLAIN: Record<string, string> = {
+  logistic: 'grows even from a few insects (logistic)',
+  'allee-cubic': 'small groups die out (strong Allee effect, cubic form)',
+  'mate-finding': 'breeds on hosts and needs mates (mate-finding form)',
+};
 
 const VERDICT_WORDS: Record<OptionResult['verdict']['kind'], string> = {
   holds: 'HOLDS',
@@ -42,42 +51,43 @@ const VERDICT_WORDS: Record<OptionResult['verdict']['kind'], string> = {
   'not-reached': 'NOT REACHED',
 };
 
-/** The decision part of one option: verdict, reason, per-site outcome, critical width, curve, trees. */
-export function optionDecision(o: OptionResult): string[] {
+/** The decision part of one option: verdict with its transport risk, reason, per-site outcome, stopping width, curve, trees. */
+export function optionDecision(o: OptionResult, doc?: ResultDocument, k = 0): string[] {
   const lines: string[] = [];
-  lines.push(`  Verdict: ${VERDICT_WORDS[o.verdict.kind]} — ${o.verdict.sentence}`);
+  const t = doc ? transportNote(doc, k) : null;
+  lines.push(`  Verdict: ${VERDICT_WORDS[o.verdict.kind]}${t?.decides ? ' THE NATURAL FRONT, BUT TRANSPORT DECIDES' : ''} — ${o.verdict.sentence}`);
+  if (t) lines.push(`  People carrying the pest: ${t.sentence}`);
   lines.push(`  Why: ${o.verdict.why}`);
-  lines.push(`  Pinning: ${o.pinning.verified ? 'verified' : 'not verified'} — ${o.pinning.detail}`);
+  lines.push(`  Stopping checked: ${o.pinning.verified ? 'yes' : 'no'} — ${o.pinning.detail}`);
   if (o.sites.length) {
     lines.push('  Protected sites:');
-    for (const site of o.sites) {
+    o.sites.forEach((site, i) => {
       const cpy = site.costPerYearOfDelay !== null ? ` Cost per year of delay: ${integer(site.costPerYearOfDelay)}${o.trees.costUnit ? ` ${o.trees.costUnit}` : ''}.` : '';
-      lines.push(`    ${site.name} (km ${km(site.atKm)}${site.beyondBarrier ? ', beyond the clearing' : ''}): ${VERDICT_WORDS[site.kind].toLowerCase()} — ${site.sentence}${cpy}`);
-    }
+      const event = doc ? siteEvent(doc, k, i).text : VERDICT_WORDS[site.kind].toLowerCase();
+      lines.push(`    ${site.name} (km ${km(site.atKm)}${site.beyondBarrier ? ', beyond the clearing' : ''}): ${event} — ${site.sentence}${cpy}`);
+    });
   }
   const cw = o.criticalWidth;
-  if (!cw.applicable) lines.push(`  Critical width: none — ${cw.note}${cw.delayPer100mYears !== null ? ` Delay per 100 m of width: ${fixed(cw.delayPer100mYears, 2)} years.` : ''}`);
+  if (!cw.applicable) lines.push(`  Width that stops the front: none (no Allee effect)${cw.delayPer100mYears !== null ? `; delay per 100 m of width: ${fixed(cw.delayPer100mYears, 2)} years` : ''}.`);
   else if (cw.bracketM) {
     lines.push(
-      `  Critical width: between ${integer(cw.bracketM[0])} and ${integer(cw.bracketM[1])} m (tolerance ${num(cw.toleranceM)} m, ${cw.runs} full-model runs)` +
-        (cw.phasePlaneM !== null ? `; phase-plane criterion ${num(cw.phasePlaneM, 4)} m` : '') +
-        (cw.marginal ? ' — this option is within the uncertainty' : ''),
+      `  Width that stops the front: ${integer(cw.bracketM[1])} m; gets through at ${integer(cw.bracketM[0])} m (tolerance ${num(cw.toleranceM)} m, ${cw.runs} full model runs)` +
+        (cw.phasePlaneM !== null ? `; quick estimate (phase-plane) ${integer(cw.phasePlaneM)} m${cw.phasePlaneAssumesIntactHosts ? ' with hosts held at present stocking' : ''}` : '') +
+        (cw.marginal ? ' — this option lies in between: too close to call' : ''),
     );
-    if (cw.phasePlaneNote && cw.phasePlaneM !== null && /depletion/.test(cw.phasePlaneNote)) lines.push(`    (${cw.phasePlaneNote.trim()})`);
-  } else lines.push(`  Critical width: not bracketed — ${cw.note}${cw.phasePlaneM !== null ? ` Phase-plane criterion: ${num(cw.phasePlaneM, 4)} m.` : ''}`);
+  } else lines.push(`  Width that stops the front: not found within the widths tried.${cw.phasePlaneM !== null ? ` Quick estimate (phase-plane): ${integer(cw.phasePlaneM)} m.` : ''}`);
   if (o.widthDelay.length) {
     const names = o.sites.map((s) => s.name);
-    lines.push(`  Width–delay curve (years of delay at each site beyond the clearing; "held" = pinned, verified):`);
-    lines.push(`    width (m)  ${names.map((n) => n.slice(0, 18).padStart(18)).join(' ')}`);
+    lines.push(`  Years gained against clearing width, site by site:`);
     for (const r of o.widthDelay) {
-      const cells = r.delayYearsBySite.map((d, k) => (r.pinned && o.sites[k].beyondBarrier ? 'held' : years(d)).padStart(18));
-      lines.push(`    ${integer(r.widthM).padStart(9)}  ${cells.join(' ')}`);
+      const cells = names.map((n, i) => `${n}: ${doc ? widthDelayCell(doc, k, r, i) : years(r.delayYearsBySite[i], 'no value')}`);
+      lines.push(`    ${integer(r.widthM).padStart(6)} m (${r.pinned ? 'front stopped' : r.crossingYears === null ? 'front not across within the horizon' : `front across in year ${years(r.crossingYears)}`}): ${cells.join('; ')}`);
     }
   }
   const cost = o.trees.cost !== null ? `; cost ${integer(o.trees.cost)}${o.trees.costUnit ? ` ${o.trees.costUnit}` : ''}` : '';
   lines.push(`  Host trees removed: ${integer(o.trees.stemsRemoved)}${cost}`);
   if (o.speeds.baselineKmPerYear !== null || o.speeds.optionKmPerYear !== null) {
-    lines.push(`  Spread rate: ${speed(o.speeds.baselineKmPerYear)} without the clearing; ${speed(o.speeds.optionKmPerYear)} measured beyond it`);
+    lines.push(`  Spread rate beyond the clearing: ${spreadBeyondText(o)} (without the clearing ${speed(o.speeds.baselineKmPerYear, 'not measured')} at that place)`);
   }
   return lines;
 }
@@ -89,21 +99,30 @@ export function textSummary(doc: ResultDocument): string {
   const out: string[] = [];
   out.push(`${doc.tool.name} ${doc.tool.version} — ${doc.title}`);
   out.push(`Pest profile: ${doc.pest.name}${doc.pest.illustrative ? ' (ILLUSTRATIVE values, not a real species)' : ''}`);
+  out.push('', `THE ANSWER IN SHORT: ${headline(doc)}`);
+  const rec = recommendationWords(doc);
+  out.push(`${rec.short}${rec.basis ? ` ${rec.basis}` : ''}`);
+  if (rec.phasePlane) out.push(rec.phasePlane);
+  doc.options.forEach((o, k) => {
+    const t = transportNote(doc, k);
+    out.push(`  ${String.fromCharCode(65 + k)} ${o.name} (${integer(o.widthM)} m): ${VERDICT_WORDS[o.verdict.kind].toLowerCase()}${t ? `; people carrying the pest past it: ${t.short}${t.decides ? ' — transport decides' : ''}` : ''}`);
+  });
+  out.push('');
   out.push(
-    `Growth: ${m.growthForm}; low-density rate ${num(m.lowDensityRate)} /yr` +
-      (m.alleeThreshold !== null ? `; Allee threshold ${num(m.alleeThreshold)} of capacity` : '; no Allee threshold') +
+    `Growth: ${GROWTH_PLAIN[m.growthForm] ?? m.growthForm}; growth of a small group ${num(m.lowDensityRate)} per year` +
+      `; density below which a group declines (Allee threshold): ${alleeThresholdText(m.alleeThreshold)}` +
       (m.hostDepletion ? '; hosts are killed' : '; hosts not depleted'),
   );
-  out.push(`Horizon ${years(doc.horizonYears)} yr; detection level ${num(doc.detectionLevel)} of capacity`);
+  out.push(`Horizon ${years(doc.horizonYears)} yr; detection level ${percent(doc.detectionLevel, doc.detectionLevel < 0.01 ? 1 : 0)} of capacity`);
   const nb = b.numerics;
   out.push(
     `Grid ${integer(nb.nCells)} cells (${num(nb.cellKmMin * 1000)}–${num(nb.cellKmMax * 1000)} m${nb.autoCell ? ', automatic' : ''}), ` +
       `step ${num(nb.stepYears)} yr${nb.autoStep ? ' (automatic)' : ''}, ${integer(nb.steps)} steps, ${integer(nb.wallMs)} ms`,
   );
   out.push('', 'Baseline (the stand as it stands, no clearing)', ...runSummary(b, doc.horizonYears));
-  for (const o of doc.options) {
-    out.push('', `Option "${o.name}": ${o.cover} from km ${km(o.fromKm)}, ${num(o.widthM)} m wide`, ...optionDecision(o), ...runSummary(o.run, doc.horizonYears));
-  }
+  doc.options.forEach((o, k) => {
+    out.push('', `Option ${String.fromCharCode(65 + k)} "${o.name}": ${o.cover === 'clearing' ? 'open clearing' : 'non-host forest'} from km ${km(o.fromKm)}, ${integer(o.widthM)} m wide`, ...optionDecision(o, doc, k), ...runSummary(o.run, doc.horizonYears, o.run.arrivals.map((_, i) => siteEvent(doc, k, i).text)));
+  });
   out.push(...uncertaintySummary(doc));
   if (doc.mosaics?.length) {
     out.push('', 'Thinning patterns (periodic host-forest / host-free strips):');

@@ -211,7 +211,7 @@ export const FORM_SECTIONS: readonly { id: string; title: string; intro?: string
         kind: 'numberList',
         field: 'widthM',
         label: 'Widths for the delay curve',
-        help: 'Clearing widths at which the delay (or pinning) is computed, separated by commas. Leave empty for six widths up to twice each option’s width.',
+        help: 'Clearing widths at which the delay (or pinning) is computed, separated by commas. Leave empty for five widths up to twice each option’s width (or 1.5 × the width at which the front stops, if larger).',
       },
     ],
   },

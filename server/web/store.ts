@@ -45,6 +45,12 @@ export interface StoredResult {
   document: ResultDocument;
 }
 
+/** What a list of results shows about each one beyond its title (see Store.resultDigests). */
+export interface ResultDigest {
+  fingerprint: string;
+  options: { name: string; widthM: number; kind: string | null; transportDecides: boolean }[];
+}
+
 export type StoredResultSummary = Omit<StoredResult, 'scenario' | 'document'>;
 
 interface ScenarioRow {
@@ -119,6 +125,11 @@ export interface Store {
   saveResult(input: { scenarioRef: string | null; scenario: Scenario; document: ResultDocument }): StoredResult;
   listResults(filter?: { scenarioRef?: string; limit?: number }): StoredResultSummary[];
   getResult(id: string): StoredResult | undefined;
+  /**
+   * Per result: the scenario fingerprint and each option's name, width, verdict kind and whether transport
+   * decides (read inside SQLite with its JSON functions, without loading the documents), for result lists.
+   */
+  resultDigests(ids: string[]): Map<string, ResultDigest>;
   deleteResult(id: string): boolean;
   /** Durable web jobs (accepted evaluations and their finished pieces). */
   jobs: JobStore;
@@ -187,6 +198,13 @@ export function openStore(dataDir: string, opts: StoreOptions = {}): Store {
        WHERE (? IS NULL OR scenario_ref = ?) ORDER BY created_at DESC LIMIT ?`,
     ),
     getResult: db.prepare<[string], ResultRow>('SELECT * FROM results WHERE id = ?'),
+    digestFingerprint: db.prepare<[string], { fp: string | null }>(`SELECT json_extract(document, '$.scenarioFingerprint') AS fp FROM results WHERE id = ?`),
+    digestOptions: db.prepare<[string], { k: number; name: string | null; width: number | null; kind: string | null; decides: number | null }>(
+      `SELECT o.key AS k, json_extract(o.value, '$.name') AS name, json_extract(o.value, '$.widthM') AS width,
+              json_extract(o.value, '$.verdict.kind') AS kind,
+              json_extract(r.document, '$.bypass.options[' || o.key || '].transportDecides') AS decides
+       FROM results r, json_each(r.document, '$.options') o WHERE r.id = ? ORDER BY o.key`,
+    ),
     deleteResult: db.prepare<[string]>('DELETE FROM results WHERE id = ?'),
   };
 
@@ -234,6 +252,18 @@ export function openStore(dataDir: string, opts: StoreOptions = {}): Store {
     getResult(id) {
       const row = q.getResult.get(id);
       return row ? toResult(row) : undefined;
+    },
+    resultDigests(ids) {
+      const out = new Map<string, ResultDigest>();
+      for (const id of ids) {
+        const fp = q.digestFingerprint.get(id);
+        if (!fp) continue;
+        out.set(id, {
+          fingerprint: fp.fp ?? '',
+          options: q.digestOptions.all(id).map((o) => ({ name: o.name ?? '', widthM: o.width ?? NaN, kind: o.kind, transportDecides: o.decides === 1 })),
+        });
+      }
+      return out;
     },
     deleteResult: (id) => writing(() => q.deleteResult.run(id).changes > 0),
     jobs: makeJobStore(db),

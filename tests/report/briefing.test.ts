@@ -1,7 +1,8 @@
 import { describe, expect, it, beforeAll } from 'vitest';
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { renderBriefing, PAGE, footerLines, runDateText, type BriefingLayout } from '../../server/report/briefing.ts';
-import { bottomLine, baselineLine, criticalWidthText, optionRows, parameterRows, questionText, readUncertainty, splitCautions, treesOf, treesText, VERDICT_LABELS } from '../../server/report/briefing-text.ts';
+import { VERDICT_PLAIN } from '../../server/report/decision.ts';
+import { bottomLine, baselineLine, criticalWidthText, optionRows, parameterRows, questionText, readUncertainty, splitCautions, treesOf, treesText } from '../../server/report/briefing-text.ts';
 import { CAUTIONS, MODEL_LIMITS } from '../../server/analysis/evaluate/cautions.ts';
 import { parseScenario } from '../../server/model/scenario.ts';
 import { FIELDS } from '../../server/model/fields.ts';
@@ -85,15 +86,15 @@ describe('briefing for a full result (3 options, 2 sites, uncertainty)', () => {
     const cw = base.criticalWidth;
     const killing = { ...base, criticalWidth: { ...cw, phasePlaneAssumesIntactHosts: true } };
     const intact = { ...base, criticalWidth: { ...cw, phasePlaneAssumesIntactHosts: false } };
-    expect(criticalWidthText(killing)).toMatch(/phase-plane with hosts intact 401 m/);
-    expect(criticalWidthText(intact)).toMatch(/\(phase-plane 401 m\)/);
+    expect(criticalWidthText(killing)).toMatch(/quick estimate with hosts held at present stocking 401 m/);
+    expect(criticalWidthText(intact)).toMatch(/\(quick estimate 401 m\)/);
   });
 
   it('options table: width, trees, cost, verdict and critical width of each option; arrival and delay per site', () => {
     const s = r.layout.sections.find((x) => x.title === 'Options compared')!;
     const t = squash(r.pages.slice(s.page - 1, s.page + 1).map((p) => p.text).join(' '));
     for (const row of optionRows(r.doc)) for (const cell of [row.name, row.width, row.trees, row.cost, row.verdict, row.critical]) expect(t, cell).toContain(squash(cell));
-    expect(optionRows(r.doc).map((x) => x.verdict)).toEqual(FIXTURE_KINDS.slice(0, 3).map((k) => VERDICT_LABELS[k]));
+    expect(optionRows(r.doc).map((x) => x.verdict)).toEqual(FIXTURE_KINDS.slice(0, 3).map((k) => VERDICT_PLAIN[k]));
     // Arrivals: baseline years and each option's year with its change against the baseline.
     for (const a of r.doc.baseline.arrivals) expect(t).toContain(squash(`${a.name} (km`));
     for (const o of r.doc.options) {

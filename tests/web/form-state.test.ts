@@ -312,7 +312,8 @@ describe('form view', () => {
     const f = view.sections.pest.fields.find((x) => x.name === 'pest.diffusionHost')!;
     expect(f).toMatchObject({ label: 'Movement in host forest', unit: 'km²/yr', allowed: '> 0 and ≤ 1000 km²/yr', defaultText: '0.5 km²/yr' });
     expect(f.typical).toMatch(/0\.001–12 km²\/yr/);
-    expect(f.help).toMatch(/Diffusion coefficient/);
+    expect(f.help).toMatch(/diffusion coefficient/i);
+    expect(f.help).toMatch(/distance an insect moves in a year/);
     expect(f.source).toMatch(/Fisher 1937/);
     expect(view.segments.columns.map((c) => c.unit)).toEqual(['', '', 'km', '', 'trees/ha']);
   });
@@ -324,6 +325,6 @@ describe('form view', () => {
       ['infestation', '0.000%'],
       ['option', '33.333%'],
     ]);
-    expect(view.strip.pins).toEqual([{ left: '66.667%', label: 'Wendle hut' }]);
+    expect(view.strip.pins).toEqual([{ left: '66.667%', label: 'Wendle hut', flip: true }]);
   });
 });

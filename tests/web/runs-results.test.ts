@@ -106,10 +106,11 @@ describe('the result page', () => {
     const html = r.body;
     expect(html).toMatch(/<article class="verdict tone-\w+">/);
     expect(html).toContain('A: Cut at km 2');
-    expect(html).toContain('When the pest reaches each protected site');
+    expect(html).toContain('What reaches each protected site');
     expect(html).toContain('Wendle hut (km 4.00)');
     expect(html).toContain('Trees removed and cost');
-    expect(html).toContain('Critical width');
+    expect(html).toContain('How wide must the clearing be?');
+    expect(html).toContain('How this was computed');
     expect(html).toContain('Limits and cautions');
     expect(html).toContain('local regulator');
     expect(html).toContain(`with ${TOOL.name} ${TOOL.version}`);
@@ -128,8 +129,8 @@ describe('the result page', () => {
     expect(rows.length).toBeGreaterThan(0);
     const html = (await t.app.inject(resultUrl)).body;
     for (const r of rows) {
-      const cell = r.pinned ? 'never (held)' : r.crossingYears === null ? `not within ${doc.horizonYears.toFixed(1)} yr` : r.crossingYears.toFixed(1);
-      expect(html, `${r.widthM} m`).toMatch(new RegExp(`<th[^>]*>${r.widthM} m</th>\\s*<td[^>]*>(yes|no)</td>\\s*<td[^>]*>${cell.replace(/[()]/g, '\\$&')}</td>`));
+      const cell = r.pinned ? 'never: held' : r.crossingYears === null ? `not within ${doc.horizonYears} yr` : `year ${r.crossingYears.toFixed(1)}`;
+      expect(html, `${r.widthM} m`).toMatch(new RegExp(`<th[^>]*>${r.widthM} m</th>\\s*<td[^>]*>(yes \\(checked\\)|no)</td>\\s*<td[^>]*>${cell.replace(/[()]/g, '\\$&')}</td>`));
     }
   });
 
@@ -145,8 +146,8 @@ describe('the result page', () => {
     const r = await t.app.inject(`${resultUrl}/compare`);
     expect(r.statusCode).toBe(200);
     expect(r.body).toContain('Options side by side');
-    expect(r.body).toContain('<th scope="col">Baseline</th><th scope="col">A: Cut at km 2</th>');
-    expect(r.body).toContain('Arrival at Wendle hut');
+    expect(r.body).toContain('<th scope="col">No clearing</th><th scope="col">A: Cut at km 2</th>');
+    expect(r.body).toContain('At Wendle hut');
     expect(r.body.match(/<figure class="chart"/g)).toHaveLength(1);
     expect(r.body).toContain('data-chart="front-position"');
     expect(r.body.match(/<svg xmlns/g)).toHaveLength(1);
@@ -214,8 +215,8 @@ describe('ensemble and transport', () => {
     raw.transport = { ratePerKm2Year: 0.01, kernel: { shape: 'exponential', meanKm: 5 }, establishmentProbability: 0.2 };
     const { resultId, doc } = await evaluateViaApi(t.app, raw);
     const html = (await t.app.inject(`/results/${resultId}`)).body;
-    expect(html).toContain('Uncertainty: the ensemble over the ranges');
-    expect(html).toContain(`${doc.uncertainty!.completed} of 8 draws (Latin hypercube, seed 1)`);
+    expect(html).toContain('Uncertainty: many runs over the ranges given');
+    expect(html).toContain(`${doc.uncertainty!.completed} of 8 combinations of the uncertain values (draws spread evenly over the ranges: Latin hypercube, seed 1)`);
     const holds = doc.uncertainty!.options[0].holdsWithinHorizon;
     expect(html).toContain(`${(100 * holds.p).toFixed(1)} % ± ${(100 * holds.standardError).toFixed(1)}`);
     expect(html).toContain('People carrying the pest past the clearing');
@@ -266,7 +267,7 @@ describe('stored documents from older versions', () => {
     store.close();
     const page = await deps.inject(`/results/${saved.id}`);
     expect(page.statusCode).toBe(200);
-    expect(page.body).toContain('Verdict not available');
+    expect(page.body).toContain('No verdict (analysis not run)');
     expect(page.body).toContain('not computed by this version');
     expect((await deps.inject(`/results/${saved.id}/compare`)).statusCode).toBe(200);
   });

@@ -1,3 +1,4 @@
+import { recommendWidth } from '../recommended-width.ts';
 import { finiteOrRefused } from '../finite-guard.ts';
 import { TOOL } from '../../version.ts';
 import { buildProblem, type Problem } from '../../problem/problem.ts';
@@ -95,6 +96,7 @@ function assemble(scenario: Scenario, p: Problem, single: SingleRuns, uncertaint
     ...(single.mosaics.length ? { mosaics: single.mosaics } : {}),
     ...(uncertainty ? { uncertainty } : {}),
     ...(bypass ? { bypass } : {}),
+    recommendedWidth: recommendWidth({ options: single.options, uncertainty, bypass }),
     cautions: allCautions(),
   };
 }

@@ -12,7 +12,7 @@ import { isNum, line, rect, svgRoot, text } from './svg.ts';
 /** Vertical overlap of neighbouring map rows [SVG units]. */
 const ROW_OVERLAP = 0.4;
 import { fitText } from './text-metrics.ts';
-import { BOTTOM_AXIS_SPACE, DEFAULT_WIDTH, LABEL_SIZE, axisBottom, axisLeft, bottom, emptyPanel, leftAxisSpace, right, type Box, type Chart, type ChartSize } from './frame.ts';
+import { BOTTOM_AXIS_SPACE, DEFAULT_WIDTH, LABEL_SIZE, axisBottom, axisLeft, bottom, emptyPanel, haloText, leftAxisSpace, right, siteNumber, type Box, type Chart, type ChartSize } from './frame.ts';
 import { optionInterval, transectExtent, type SitePart } from './parts.ts';
 
 export interface SpaceTimeOptions extends ChartSize {
@@ -55,7 +55,11 @@ export function spaceTimeChart(run: Pick<RunResult, 'spaceTime'> & Partial<Pick<
   const plotHeight = o.plotHeight ?? 200;
   const { xKm, timesYears, density } = run.spaceTime;
   const title = `Where and when the pest is present${o.runLabel ? ` — ${o.runLabel}` : ''}`;
-  const hint = 'Darker = denser; white = below the detection level. A colour edge that turns vertical has stopped moving.';
+  const siteKey = (o.sites ?? []).map((site, i) => `${siteNumber(i)} = ${site.name}`).join(', ');
+  const hint =
+    'Darker = denser; white = below the detection level. A colour edge that turns vertical has stopped moving.' +
+    (o.clearing ? ' Dashed lines: the edges of the clearing.' : '') +
+    (siteKey ? ` Dotted lines: protected sites (${siteKey}).` : '');
   const ok = xKm.length > 0 && timesYears.length > 0 && xKm.every(isNum) && timesYears.every(isNum);
   // The transect's extent when the layout is known (cell centres stop half a cell short of the ends).
   const xs = scaleLinear().domain(run.layout?.length ? transectExtent(run.layout) : ok ? [Math.min(...xKm), Math.max(...xKm)] : [0, 1]);
@@ -103,12 +107,14 @@ export function spaceTimeChart(run: Pick<RunResult, 'spaceTime'> & Partial<Pick<
     const px = xs(c.toKm);
     if (px >= box.left && px <= right(box)) body += text(Math.min(px + 3, right(box) - 2), box.top + 3, label, { size: 9, valign: 'top', anchor: px + 60 > right(box) ? 'end' : 'start' });
   }
-  for (const s of o.sites ?? []) {
+  (o.sites ?? []).forEach((s, i) => {
     const px = xs(s.atKm);
-    if (!(px >= box.left && px <= right(box))) continue;
+    if (!(px >= box.left && px <= right(box))) return;
     body += line(px, bottom(box) - 6, px, bottom(box), { stroke: '#000000', 'stroke-width': 1.2 });
     body += line(px, box.top, px, bottom(box) - 6, { stroke: '#555555', 'stroke-dasharray': '1.5 2.5', 'stroke-width': 0.9 });
-  }
+    // Every line named: the site number of the tables (names in the hint) near the bottom of the line.
+    body += haloText(Math.min(px + 3, right(box) - 10), bottom(box) - 14, siteNumber(i), 10, '#000000');
+  });
   body += axisBottom(xs, box, { label: 'position along the transect (km)' });
   body += axisLeft(ts, box, { label: 'time (yr)' });
   // Class legend at the right: one swatch per density class with its lower bound.

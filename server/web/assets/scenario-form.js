@@ -45,6 +45,16 @@
     box.querySelectorAll('label.part').forEach(function (label) {
       label.hidden = words(label.getAttribute('data-kinds')).indexOf(kind) < 0;
     });
+    // The single-value box says it is not used while a range is chosen (instead of looking unfilled).
+    var field = box.closest('.field');
+    var note = field && field.querySelector('[data-range-given]');
+    var single = field && field.querySelector('.control input');
+    if (note) note.hidden = kind === 'value';
+    if (single) {
+      single.classList.toggle('superseded', kind !== 'value');
+      if (kind !== 'value') single.setAttribute('placeholder', note ? note.textContent : '');
+      else single.removeAttribute('placeholder');
+    }
   }
   form.querySelectorAll('[data-dist]').forEach(showDist);
 
@@ -90,27 +100,52 @@
     var bar = strip.querySelector('[data-strip-bar]');
     var marks = strip.querySelector('[data-strip-marks]');
     var pins = strip.querySelector('[data-strip-pins]');
+    var ticks = strip.querySelector('[data-strip-ticks]');
+    var box = strip.querySelector('[data-strip-box]');
     bar.textContent = ''; marks.textContent = ''; pins.textContent = '';
+    if (ticks) ticks.textContent = '';
     var empty = strip.querySelector('[data-strip-empty]');
     if (empty) empty.hidden = total > 0;
     if (!(total > 0)) return;
     var at = function (x) { return (100 * (x - origin)) / total; };
     var inside = function (x) { return isFinite(x) && x >= origin && x <= origin + total; };
+    // Same layout as server/web/view-models/strip.ts (STRIP_LAYOUT, rem): bar, km ticks, one lane per option, site labels.
+    var BAR = 1.4, TICKS = 1.2, LANE = 1.0, PINS = 1.5;
     segs.forEach(function (s) {
-      bar.appendChild(el('span', 'seg hab-' + (s.habitat || 'unknown'), 'flex-grow: ' + s.length, (s.name ? s.name + ': ' : '') + s.habitat + ', ' + kmText(s.length)));
+      bar.appendChild(el('span', 'seg hab-' + (s.habitat || 'unknown') + (s.length / total < 0.005 ? ' narrow' : ''), 'flex-grow: ' + s.length, (s.name ? s.name + ': ' : '') + (s.habitat || '').replace(/-/g, ' ') + ', ' + kmText(s.length)));
     });
+    if (ticks) {
+      var raw = total / 8, p = Math.pow(10, Math.floor(Math.log10(raw)));
+      var step = [1, 2, 5, 10].map(function (m) { return m * p; }).filter(function (x) { return total / x <= 10; })[0] || 10 * p;
+      for (var x = Math.ceil(origin / step - 1e-9) * step; x <= origin + total + 1e-9; x += step) {
+        var tick = el('span', 'tick', 'left: ' + pct(at(x)));
+        var tl = el('span', 'tick-label');
+        tl.textContent = String(Number(x.toPrecision(6)));
+        tick.appendChild(tl);
+        ticks.appendChild(tick);
+      }
+    }
     var f = num('infestation.fromKm'), t = num('infestation.toKm');
     if (inside(f) && t > f) marks.appendChild(el('span', 'band band-infestation', 'left: ' + pct(at(f)) + '; width: ' + pct(at(Math.min(t, origin + total)) - at(f)), 'Infested'));
-    rows('barrier.options').forEach(function (i) {
+    var optionRows = rows('barrier.options');
+    optionRows.forEach(function (i, k) {
       var from = num('barrier.options[' + i + '].fromKm'), w = num('barrier.options[' + i + '].widthM');
       if (!inside(from) || !(w > 0)) return;
       var to = Math.min(from + w / 1000, origin + total);
-      marks.appendChild(el('span', 'band band-option', 'left: ' + pct(at(from)) + '; width: ' + pct(Math.max(at(to) - at(from), 0.4)), text('barrier.options[' + i + '].name')));
+      var key = String.fromCharCode(65 + (k % 26));
+      var band = el('span', 'band band-option', 'left: ' + pct(at(from)) + '; width: ' + pct(Math.max(at(to) - at(from), 0.4)) + '; top: ' + (BAR + TICKS + k * LANE).toFixed(2) + 'rem', key + ': ' + text('barrier.options[' + i + '].name'));
+      var letter = el('span', 'band-key');
+      letter.textContent = key;
+      band.appendChild(letter);
+      marks.appendChild(band);
     });
+    var pinsTop = BAR + TICKS + optionRows.length * LANE;
+    pins.style.setProperty('--pins-top', pinsTop.toFixed(2) + 'rem');
+    if (box) box.style.height = (pinsTop + PINS).toFixed(2) + 'rem';
     rows('sites').forEach(function (i) {
       var x = num('sites[' + i + '].atKm');
       if (!inside(x)) return;
-      var pin = el('span', 'pin', 'left: ' + pct(at(x)));
+      var pin = el('span', 'pin' + (at(x) > 55 ? ' flip' : ''), 'left: ' + pct(at(x)));
       var label = el('span', 'pin-label');
       label.textContent = text('sites[' + i + '].name') || '(site)';
       pin.appendChild(label);

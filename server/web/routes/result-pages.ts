@@ -4,11 +4,32 @@
  */
 import type { FastifyInstance, FastifyReply } from 'fastify';
 import { notFound } from '../plugins/errors.ts';
-import { comparePageView, resultListItem, resultPageView } from '../view-models/result-view.ts';
-import { seriesCsv } from '../view-models/csv.ts';
+import { comparePageView, resultListItem, resultPageView, resultTables, type ResultListEntry } from '../view-models/result-view.ts';
+import { compareResultsView } from '../view-models/compare-results.ts';
+import { seriesCsv, tableCsv } from '../view-models/csv.ts';
+import { optionKey } from '../../report/charts/index.ts';
+import { VERDICT_PLAIN } from '../../report/decision.ts';
+import { integer } from '../../report/format.ts';
+import type { Store, StoredResultSummary } from '../store.ts';
 import type { WebDeps } from '../deps.ts';
 
 type IdParams = { Params: { id: string } };
+
+/** Result summaries with each option's verdict and the scenario fingerprint, so identical titles can be told apart. */
+export function listWithVerdicts(store: Store, list: StoredResultSummary[]): ResultListEntry[] {
+  const digests = store.resultDigests(list.map((r) => r.id));
+  return list.map((r) => {
+    const d = digests.get(r.id);
+    return {
+      ...r,
+      fingerprint: d?.fingerprint,
+      verdicts: (d?.options ?? []).map((o, k) => {
+        const label = o.kind ? (VERDICT_PLAIN[o.kind as keyof typeof VERDICT_PLAIN] ?? o.kind) : 'no verdict';
+        return `${optionKey(k)} ${Number.isFinite(o.widthM) ? `${integer(o.widthM)} m` : o.name}: ${label.toLowerCase()}${o.transportDecides ? ' — transport decides' : ''}`;
+      }),
+    };
+  });
+}
 
 /** Download name stem of a result: the first part of its id (ids are random, so this is unique enough). */
 const stem = (id: string) => `result-${id.slice(0, 8)}`;
@@ -31,7 +52,7 @@ export default async function resultPages(app: FastifyInstance, deps: WebDeps) {
     const q = req.query as Record<string, string>;
     return reply.page('results', {
       title: 'Past results',
-      results: store.listResults({ limit: 500 }).map(resultListItem),
+      results: listWithVerdicts(store, store.listResults({ limit: 500 })).map(resultListItem),
       notice: q.deleted ? 'The result was deleted.' : '',
     });
   });
@@ -54,6 +75,28 @@ export default async function resultPages(app: FastifyInstance, deps: WebDeps) {
   app.get<IdParams>('/results/:id/series.csv', async (req, reply) => {
     const stored = resultOr404(req.params.id);
     return download(reply, 'text/csv; charset=utf-8', `${stem(stored.id)}-series.csv`, seriesCsv(stored.document));
+  });
+
+  app.get<{ Params: { id: string; table: string } }>('/results/:id/tables/:table', async (req, reply) => {
+    const stored = resultOr404(req.params.id);
+    const name = req.params.table.replace(/\.csv$/, '');
+    const table = resultTables(stored).get(name);
+    if (!table) throw notFound('This table');
+    return download(reply, 'text/csv; charset=utf-8', `${stem(stored.id)}-${name}.csv`, tableCsv(table));
+  });
+
+  app.get<{ Querystring: { a?: string; b?: string; pick?: string | string[] } }>('/compare-results', async (req, reply) => {
+    const q = req.query;
+    const picks = [q.a, q.b, ...(Array.isArray(q.pick) ? q.pick : q.pick ? [q.pick] : [])].filter((x): x is string => typeof x === 'string' && x.length > 0);
+    if (!picks.length) return reply.redirect('/results', 303);
+    const a = resultOr404(picks[0]);
+    if (picks.length < 2) {
+      const others = listWithVerdicts(store, store.listResults({ limit: 200 }).filter((r) => r.id !== a.id)).map(resultListItem);
+      const first = resultListItem({ ...a, verdicts: [] });
+      return reply.page('compare-results', { title: 'Compare two results', first, others });
+    }
+    const b = resultOr404(picks[1]);
+    return reply.page('compare-results', { title: `Two results side by side`, c: compareResultsView(a, b), cautions: a.document.cautions });
   });
 
   app.get<IdParams>('/results/:id/scenario.json', async (req, reply) => {

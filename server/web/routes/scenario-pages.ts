@@ -11,6 +11,7 @@ import { inputUnit } from '../form-read.ts';
 import { formView, inputId, newScenarioTemplate } from '../view-models/scenario-form.ts';
 import { scenarioListItem, scenarioView } from '../view-models/scenario-view.ts';
 import { resultListItem } from '../view-models/result-view.ts';
+import { listWithVerdicts } from './result-pages.ts';
 import { problemItems } from '../view-models/problems.ts';
 import { checkLimits } from '../limits.ts';
 import { savedId, type CatalogueEntry } from '../catalogue.ts';
@@ -71,6 +72,8 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
         results: store.listResults({ limit: 10 }).map(resultListItem),
         uploadProblems: problemItems(extra.uploadProblems ?? []),
         notice: extra.notice ?? '',
+        // After a failed upload the problems sit at the top; the script moves the focus (and the view) there.
+        scripts: extra.uploadProblems?.length ? ['/assets/focus-problems.js'] : [],
       },
       status,
     );
@@ -91,7 +94,7 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
     return { action: base, runAction: `${base}/run`, cancel: t.entry ? `/scenarios/${encodeURIComponent(t.entry.ref)}` : '/scenarios' };
   };
   const renderForm = (reply: FastifyReply, t: FormTarget, state: FormState, problems: Problem[], status: number, extra: { notice?: string; focus?: string } = {}) => {
-    const view = formView(state, problems);
+    const view = formView(state, problems, { maxHorizonYears: limits.maxHorizonYears });
     return reply.page(
       'scenario-form',
       {
@@ -135,10 +138,8 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
       problems.push(...e.problems.filter((p) => !refused.has(p.path) && ![...refused].some((r) => p.path.startsWith(`${r}.`))));
     }
     if (problems.length || !scenario) return renderForm(reply, t, state, problems, 400);
-    if (actionText === 'check' && !run) {
-      return renderForm(reply, t, state, [], 200, { notice: `No problems found. The scenario has not been saved yet.${readBackText(notes)}` });
-    }
-    if (run) {
+    // Check answers what Save and run would: the schema and this server's limits (one limit everywhere).
+    if (run || actionText === 'check') {
       try {
         checkLimits(scenario, limits);
       } catch (e) {
@@ -148,6 +149,7 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
       // A nearly full disk is refused before the run, not after it (507 naming DATA_DIR).
       store.checkSpace();
     }
+    if (actionText === 'check' && !run) return renderForm(reply, t, state, [], 200, { notice: `No problems found. The scenario has not been saved yet.${readBackText(notes)}` });
     const id = t.entry && !t.entry.readOnly ? savedId(t.entry.ref) : undefined;
     const ref = id !== undefined && store.updateScenario(id, scenario) ? String(id) : String(store.createScenario(scenario).id);
     if (run) {
@@ -182,7 +184,7 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
       title: entry.title,
       s: scenarioView(entry),
       notice: q.saved ? `Saved.${readBackValues(entry.scenario, q.read)}` : '',
-      results: store.listResults({ scenarioRef: entry.ref, limit: 20 }).map(resultListItem),
+      results: listWithVerdicts(store, store.listResults({ scenarioRef: entry.ref, limit: 20 })).map(resultListItem),
       limits,
     });
   });

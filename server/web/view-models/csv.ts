@@ -3,6 +3,7 @@
  * each layout has its own time steps.
  */
 import type { ResultDocument } from '../../analysis/result.ts';
+import type { TableView } from './table.ts';
 
 /** Quotes a text cell; a leading = + - @ is defused so spreadsheets do not run it as a formula. */
 export function csvText(s: string): string {
@@ -23,5 +24,15 @@ export function seriesCsv(doc: ResultDocument): string {
       lines.push(`${label},${cell(s.timesYears[i])},${cell(s.rightFrontKm[i])},${cell(s.leftFrontKm[i])},${cell(s.totalInsects[i])}`);
     }
   }
+  return `${lines.join('\r\n')}\r\n`;
+}
+
+/**
+ * Any table of the pages as CSV: the caption as a first comment-like row is left out (spreadsheets read the
+ * first row as the header); cells are the same words the page shows, so a CSV never says less than the page.
+ */
+export function tableCsv(t: TableView): string {
+  const lines = [t.head.map(csvText).join(',')];
+  for (const r of t.rows) lines.push([r.label, ...r.cells].map((c) => csvText(c)).join(','));
   return `${lines.join('\r\n')}\r\n`;
 }

@@ -1,30 +1,38 @@
 /**
  * View-models of the results and compare pages: the result document's numbers as text, in tables.
- * Formatting only — every number shown was computed by the analysis (server/analysis/evaluate.ts).
+ * Formatting only — every number shown was computed by the analysis (server/analysis/evaluate.ts); the
+ * decision words (headline, verdict with transport risk, recommended width, site events, width–delay cells,
+ * spread rates) come from server/report/decision.ts, which the CLI and the briefing use too.
  * Option fields filled by the barrier analysis (verdict, sites, trees, critical width, width–delay) are
  * read defensively: a document without them shows "not computed" instead of failing.
  */
-import type { OptionResult, ResultDocument, RunResult, VerdictKind } from '../../analysis/result.ts';
-import { integer, km, num, percent, speed, years } from '../../report/format.ts';
+import type { OptionResult, ResultDocument, RunResult } from '../../analysis/result.ts';
+import { integer, km, num, percent, years } from '../../report/format.ts';
+import {
+  alleeThresholdText,
+  baselineSpreadText,
+  headline,
+  recommendationWords,
+  siteEvent,
+  spreadBeyondText,
+  transportNote,
+  verdictWords,
+  widthCrossingCell,
+  widthDelayCell,
+} from '../../report/decision.ts';
+import { parameterRows } from '../../report/briefing-text.ts';
 import type { StoredResult } from '../store.ts';
 import { compareChart, resultCharts } from './charts.ts';
 import { optionKey } from '../../report/charts/index.ts';
 import { bypassView, uncertaintyView } from './uncertainty-view.ts';
+import type { TableView } from './table.ts';
 
-export const VERDICT_WORDS: Record<VerdictKind, { label: string; tone: string }> = {
-  holds: { label: 'Holds', tone: 'good' },
-  marginal: { label: 'Marginal — cannot be called either way', tone: 'unsure' },
-  'not-crossed': { label: 'Not crossed within the horizon', tone: 'unsure' },
-  delays: { label: 'Delays the pest', tone: 'partial' },
-  'speeds-up': { label: 'Speeds spread up', tone: 'bad' },
-  'no-change': { label: 'No measurable change', tone: 'neutral' },
-  'not-reached': { label: 'Not reached within the horizon', tone: 'neutral' },
-};
+export type { TableView } from './table.ts';
 
 const GROWTH_WORDS: Record<string, string> = {
-  logistic: 'logistic (no Allee effect)',
-  'allee-cubic': 'strong Allee effect (cubic)',
-  'mate-finding': 'breeding on hosts with mate finding',
+  logistic: 'grows even from a few insects (logistic growth, no Allee effect)',
+  'allee-cubic': 'small groups die out (strong Allee effect, cubic form)',
+  'mate-finding': 'breeds on hosts and needs mates (consumer–resource growth with mate finding)',
 };
 
 const COVER_WORDS: Record<string, string> = { clearing: 'open clearing', 'non-host-forest': 'replanted with non-host trees' };
@@ -43,11 +51,9 @@ export interface VerdictView {
   sentence: string;
   why: string;
   runNote: string;
-}
-
-export interface TableView {
-  head: string[];
-  rows: { label: string; cells: string[] }[];
+  /** The transport risk that goes with the verdict (empty without a transport block). */
+  transport: string;
+  transportDecides: boolean;
 }
 
 /** An option as found in a stored document: the run is always there; the analysis fields may not be. */
@@ -63,19 +69,21 @@ function runNote(run: RunResult): string {
   return run.numerics.status === 'completed' ? '' : `This run did not complete (${run.numerics.status}: ${run.numerics.message}).`;
 }
 
-export function verdictView(o: OptionResult, k = 0): VerdictView {
-  const x = loose(o);
+export function verdictView(doc: ResultDocument, k = 0): VerdictView {
+  const x = loose(doc.options[k]);
   const v = x.verdict;
-  const words = v ? VERDICT_WORDS[v.kind] : undefined;
+  const words = verdictWords(doc, k);
   return {
     name: `${optionKey(k)}: ${x.name}`,
     what: optionWhat(x),
     available: Boolean(v),
-    label: words?.label ?? v?.kind ?? 'Verdict not available',
-    tone: words?.tone ?? 'neutral',
+    label: words.label,
+    tone: words.tone,
     sentence: v?.sentence ?? 'This version of the analysis reports the simulated run only; compare the arrival years below.',
     why: v?.why ?? '',
     runNote: runNote(x.run),
+    transport: words.transport?.sentence ?? '',
+    transportDecides: Boolean(words.transport?.decides),
   };
 }
 
@@ -83,27 +91,21 @@ const yearOrNot = (y: number | null | undefined, horizon: number) =>
   y === null || y === undefined ? `not within ${years(horizon)} yr` : `year ${years(y)}`;
 
 function arrivalTable(doc: ResultDocument): TableView {
-  const head = ['Protected site', 'Baseline', ...doc.options.map((_, k) => keyed(doc, k))];
-  const rows = doc.baseline.arrivals.map((a, k) => ({
+  const head = ['Protected site', 'No clearing', ...doc.options.map((_, k) => keyed(doc, k))];
+  const rows = doc.baseline.arrivals.map((a, i) => ({
     label: `${a.name} (km ${km(a.atKm)})`,
     cells: [
-      yearOrNot(a.arrivalYears, doc.horizonYears),
-      ...doc.options.map((o) => {
-        const x = loose(o);
-        const arrival = yearOrNot(x.run.arrivals[k]?.arrivalYears, doc.horizonYears);
-        const site = x.sites?.[k];
-        if (!site) return arrival;
-        const delay = site.delayYears === null ? '' : `; ${site.delayYears >= 0 ? '+' : '−'}${years(Math.abs(site.delayYears))} yr`;
-        const kind = VERDICT_WORDS[site.kind]?.label.toLowerCase() ?? site.kind;
-        return `${arrival}${delay} (${kind})`;
-      }),
+      a.arrivalYears === null ? `not reached within ${years(doc.horizonYears)} yr` : `pest arrives year ${years(a.arrivalYears)}`,
+      ...doc.options.map((_, k) => siteEvent(doc, k, i).text),
     ],
   }));
-  return { head, rows };
+  return { name: 'arrivals', caption: 'When the pest reaches each protected site', head, rows };
 }
 
 function treesTable(doc: ResultDocument): TableView {
   return {
+    name: 'trees',
+    caption: 'Trees removed and cost',
     head: ['Option', 'Host trees removed', 'Cost', 'Cost per year of delay'],
     rows: doc.options.map((o, k) => {
       const x = loose(o);
@@ -113,60 +115,60 @@ function treesTable(doc: ResultDocument): TableView {
         .filter((s) => s.costPerYearOfDelay !== null)
         .map((s) => `${s.name}: ${integer(s.costPerYearOfDelay!)}${unit}/yr`)
         .join('; ');
+      const noDelay = t?.cost === null ? 'no cost given' : x.verdict?.kind === 'holds' ? 'does not apply: the front is held' : 'no delay bought at any site';
       return {
         label: keyed(doc, k),
-        cells: [
-          t ? integer(t.stemsRemoved) : NOT_COMPUTED,
-          t ? (t.cost === null ? 'no cost given' : `${integer(t.cost)}${unit}`) : NOT_COMPUTED,
-          t ? perYear || '—' : NOT_COMPUTED,
-        ],
+        cells: [t ? integer(t.stemsRemoved) : NOT_COMPUTED, t ? (t.cost === null ? 'no cost given' : `${integer(t.cost)}${unit}`) : NOT_COMPUTED, t ? perYear || noDelay : NOT_COMPUTED],
       };
     }),
   };
 }
 
+/** The stopping width per option (inside "how this was computed"). */
 function criticalWidthTable(doc: ResultDocument): TableView {
   return {
-    head: ['Option', 'Critical width', 'Phase-plane estimate', 'Note'],
+    name: 'stopping-width',
+    caption: 'Width at which the front stops, option by option',
+    head: ['Option', 'Front stops from (model runs)', 'Quick estimate (phase-plane)', 'Checks'],
     rows: doc.options.map((o, k) => {
       const c = loose(o).criticalWidth;
-      if (!c) return { label: keyed(doc, k), cells: [NOT_COMPUTED, '—', ''] };
+      if (!c) return { label: keyed(doc, k), cells: [NOT_COMPUTED, NOT_COMPUTED, NOT_COMPUTED] };
       const bracket = !c.applicable
-        ? 'does not apply'
+        ? `no width stops it (no Allee effect)${c.delayPer100mYears !== null ? `; about ${years(c.delayPer100mYears)} yr of delay per extra 100 m` : ''}`
         : c.bracketM
-          ? `between ${integer(c.bracketM[0])} and ${integer(c.bracketM[1])} m${c.marginal ? ' (this option lies inside the bracket)' : ''}`
+          ? `${integer(c.bracketM[1])} m (gets through at ${integer(c.bracketM[0])} m)${c.marginal ? '; this option lies in between: too close to call' : ''}`
           : 'not found within the widths tried';
-      const extra = c.delayPer100mYears !== null ? ` About ${years(c.delayPer100mYears)} yr of delay per extra 100 m.` : '';
-      return {
-        label: keyed(doc, k),
-        cells: [
-          bracket,
-          `${c.phasePlaneM === null ? '—' : `${integer(c.phasePlaneM)} m`}${c.phasePlaneNote ? ` (${c.phasePlaneNote})` : ''}`,
-          `${c.note}${extra}`,
-        ],
-      };
+      const pp = c.phasePlaneM === null ? (c.applicable ? 'not available' : 'does not apply') : `${integer(c.phasePlaneM)} m${c.phasePlaneAssumesIntactHosts ? ' (hosts held at present stocking)' : ''}`;
+      const checks = !c.applicable
+        ? 'none needed'
+        : [
+            `${c.runs} full runs, tolerance ${num(c.toleranceM)} m`,
+            c.halfStepCheck ? `half time step: ${c.halfStepCheck.outcome}` : null,
+            c.windowCheck ? `larger window: ${c.windowCheck.agreed ? 'same outcome' : 'DIFFERENT outcome'}` : null,
+          ]
+            .filter(Boolean)
+            .join('; ');
+      return { label: keyed(doc, k), cells: [bracket, pp, checks] };
     }),
   };
 }
 
 function runsTable(doc: ResultDocument): TableView {
-  const runs: { label: string; run: RunResult }[] = [{ label: 'Baseline', run: doc.baseline }, ...doc.options.map((o, k) => ({ label: keyed(doc, k), run: o.run }))];
-  const rate = (run: RunResult, dir: 'right' | 'left') => speed(run.spreadRates.find((r) => r.direction === dir)?.kmPerYear ?? null, 'not measured');
+  const lastFront = (run: RunResult) => {
+    const last = run.series.rightFrontKm.length - 1;
+    return last >= 0 ? km(run.series.rightFrontKm[last], 'no density above the detection level') : 'no series';
+  };
   return {
-    head: ['Layout', 'Front at the end (right)', 'Spread rate (right)', 'Spread rate (left)', 'Host stems left', 'Stems killed per km of front'],
-    rows: runs.map(({ label, run }) => {
-      const last = run.series.rightFrontKm.length - 1;
-      return {
-        label,
-        cells: [
-          last >= 0 ? `km ${km(run.series.rightFrontKm[last], 'none')}` : '—',
-          rate(run, 'right'),
-          rate(run, 'left'),
-          percent(run.host.remainingFraction),
-          integer(run.host.stemsKilledPerKm),
-        ],
-      };
-    }),
+    name: 'runs',
+    caption: 'Spread and host trees, layout by layout',
+    head: ['Layout', 'Front at the end (km)', 'Spread rate beyond the clearing', 'Host stems left', 'Stems killed per km of front'],
+    rows: [
+      { label: 'No clearing', cells: [lastFront(doc.baseline), `${baselineSpreadText(doc)} (no clearing)`, percent(doc.baseline.host.remainingFraction), integer(doc.baseline.host.stemsKilledPerKm)] },
+      ...doc.options.map((o, k) => ({
+        label: keyed(doc, k),
+        cells: [lastFront(o.run), spreadBeyondText(loose(o)), percent(o.run.host.remainingFraction), integer(o.run.host.stemsKilledPerKm)],
+      })),
+    ],
   };
 }
 
@@ -177,17 +179,12 @@ function widthDelayTables(doc: ResultDocument): { name: string; table: TableView
     .map(({ o, k }) => ({
       name: keyed(doc, k),
       table: {
-        head: ['Width', 'Pinned', 'Crossing year', ...doc.baseline.arrivals.map((a) => `Delay at ${a.name}`)],
+        name: `width-delay-${optionKey(k)}`,
+        caption: `Delay against clearing width, option ${keyed(doc, k)}`,
+        head: ['Width', 'Front stopped?', 'Front passes the clearing', ...doc.baseline.arrivals.map((a) => `Years gained at ${a.name}`)],
         rows: (loose(o).widthDelay ?? []).map((r) => ({
           label: `${integer(r.widthM)} m`,
-          cells: [
-            r.pinned ? 'yes' : 'no',
-            r.pinned ? 'never (held)' : r.crossingYears === null ? `not within ${years(doc.horizonYears)} yr` : years(r.crossingYears),
-            ...doc.baseline.arrivals.map((_, k) => {
-              const d = r.delayYearsBySite[k];
-              return d === null || d === undefined ? '—' : `${years(d)} yr`;
-            }),
-          ],
+          cells: [r.pinned ? 'yes (checked)' : 'no', widthCrossingCell(doc, r), ...doc.baseline.arrivals.map((_, i) => widthDelayCell(doc, k, r, i))],
         })),
       },
     }));
@@ -195,26 +192,24 @@ function widthDelayTables(doc: ResultDocument): { name: string; table: TableView
 
 function mosaicTable(doc: ResultDocument): TableView | null {
   if (!doc.mosaics?.length) return null;
+  const sp = (x: number | null) => (x === null ? 'does not apply' : `${num(x, 3)} km/yr`);
   return {
-    head: ['Pattern', 'Persists', 'Speed (dispersion relation)', 'Speed (averaged)', 'Intact forest', 'Measured', 'Reading'],
+    name: 'mosaics',
+    caption: 'Strip patterns (thinning mosaics)',
+    head: ['Pattern', 'Pest persists in it', 'Spread rate (exact)', 'Spread rate (averaged estimate)', 'Intact forest', 'Measured in a simulation', 'Reading'],
     rows: doc.mosaics.map((m) => ({
       label: `${m.name}: ${integer(m.forestM)} m forest / ${integer(m.gapM)} m ${COVER_WORDS[m.cover] ?? m.cover}`,
-      cells: [
-        m.persists ? 'yes' : 'no',
-        speed(m.exactKmPerYear),
-        speed(m.homogenisedKmPerYear),
-        speed(m.intactKmPerYear),
-        speed(m.measuredKmPerYear),
-        m.sentence,
-      ],
+      cells: [m.persists ? 'yes' : 'no', sp(m.exactKmPerYear), sp(m.homogenisedKmPerYear), sp(m.intactKmPerYear), m.measuredKmPerYear === null ? 'not measured' : sp(m.measuredKmPerYear), m.sentence],
     })),
   };
 }
 
 function numericsTable(doc: ResultDocument): TableView {
-  const runs: { label: string; run: RunResult }[] = [{ label: 'Baseline', run: doc.baseline }, ...doc.options.map((o, k) => ({ label: keyed(doc, k), run: o.run }))];
+  const runs: { label: string; run: RunResult }[] = [{ label: 'No clearing', run: doc.baseline }, ...doc.options.map((o, k) => ({ label: keyed(doc, k), run: o.run }))];
   return {
-    head: ['Layout', 'Status', 'Cells', 'Cell size', 'Time step', 'Steps', 'Compute time'],
+    name: 'numerics',
+    caption: 'Grid and time steps',
+    head: ['Layout', 'Status', 'Grid cells', 'Cell size', 'Time step', 'Steps', 'Compute time'],
     rows: runs.map(({ label, run }) => {
       const n = run.numerics;
       return {
@@ -232,6 +227,17 @@ function numericsTable(doc: ResultDocument): TableView {
   };
 }
 
+/** The parameters that produced the result (from the exact stored scenario, not the possibly edited one). */
+function parametersTable(stored: StoredResult): TableView {
+  const rows = parameterRows(stored.scenario, undefined, stored.document.baseline.numerics);
+  return {
+    name: 'parameters',
+    caption: 'Parameters used for this result',
+    head: ['Parameter', 'Group', 'Value', 'Unit', 'Where the value comes from'],
+    rows: rows.map((r) => ({ label: r.label, cells: [r.group, r.value, r.unit, r.source] })),
+  };
+}
+
 export function resultLinks(id: string) {
   const base = `/results/${encodeURIComponent(id)}`;
   return {
@@ -241,6 +247,7 @@ export function resultLinks(id: string) {
     csv: `${base}/series.csv`,
     scenario: `${base}/scenario.json`,
     remove: `${base}/delete`,
+    tables: `${base}/tables`,
   };
 }
 
@@ -259,12 +266,15 @@ function header(stored: StoredResult) {
     tool: `${stored.toolName} ${stored.toolVersion}`,
     fingerprint: doc.scenarioFingerprint.slice(0, 12),
     horizon: `${years(doc.horizonYears)} yr`,
-    detection: `${num(doc.detectionLevel)} of capacity`,
+    detection: `${percent(doc.detectionLevel, doc.detectionLevel < 0.01 ? 1 : 0)} of capacity (the density of fully stocked host forest)`,
     model: [
-      { label: 'Growth form', value: GROWTH_WORDS[m.growthForm] ?? m.growthForm },
-      { label: 'Growth at low density', value: `${num(m.lowDensityRate)} /yr${m.lowDensityRate < 0 ? ' (small groups decline: strong Allee effect)' : ''}` },
-      { label: 'Allee threshold', value: m.alleeThreshold === null ? 'none' : `${num(m.alleeThreshold)} of capacity` },
-      { label: 'Spread speed in intact forest (2√(D r₀))', value: m.linearSpeedKmPerYear > 0 ? speed(m.linearSpeedKmPerYear) : 'does not apply (no growth at low density)' },
+      { label: 'How the pest grows', value: GROWTH_WORDS[m.growthForm] ?? m.growthForm },
+      {
+        label: 'Growth of a small group (per-capita rate at low density)',
+        value: `${num(m.lowDensityRate)} per year${m.lowDensityRate < 0 ? ' (negative: small groups decline)' : ''}`,
+      },
+      { label: 'Density below which a group declines (Allee threshold)', value: alleeThresholdText(m.alleeThreshold) },
+      { label: 'Spread speed in intact forest (theory, 2√(D r₀))', value: m.linearSpeedKmPerYear > 0 ? `${num(m.linearSpeedKmPerYear, 3)} km/yr` : 'does not apply (small groups do not grow)' },
       { label: 'Host trees', value: m.hostDepletion ? 'killed by the pest' : 'not depleted' },
     ],
     scenarioLink: stored.scenarioRef ? `/scenarios/${encodeURIComponent(stored.scenarioRef)}` : '',
@@ -273,28 +283,78 @@ function header(stored: StoredResult) {
   };
 }
 
+/** Every table of the results page by name (the CSV exports use this list). */
+export function resultTables(stored: StoredResult): Map<string, TableView> {
+  const doc = stored.document;
+  const list: (TableView | null)[] = [
+    doc.baseline.arrivals.length ? arrivalTable(doc) : null,
+    doc.options.length ? treesTable(doc) : null,
+    doc.options.length ? criticalWidthTable(doc) : null,
+    ...widthDelayTables(doc).map((t) => t.table),
+    runsTable(doc),
+    mosaicTable(doc),
+    numericsTable(doc),
+    parametersTable(stored),
+    ...(uncertaintyTables(doc) ?? []),
+    bypassView(doc)?.table ?? null,
+  ];
+  const out = new Map<string, TableView>();
+  for (const t of list) if (t?.name) out.set(t.name, t);
+  return out;
+}
+
+function uncertaintyTables(doc: ResultDocument): TableView[] | null {
+  const u = uncertaintyView(doc);
+  if (!u) return null;
+  return [u.parameters, u.options, ...(u.sites ? [u.sites] : []), ...u.sensitivity.map((s) => s.table)];
+}
+
+/** Adds the CSV link of each named table. */
+function withCsv<T extends TableView | null>(t: T, base: string): T & { csv?: string } {
+  if (!t) return t as T & { csv?: string };
+  return { ...t, csv: t.name ? `${base}/${t.name}.csv` : undefined } as T & { csv?: string };
+}
+
 /** The results page. */
 export function resultPageView(stored: StoredResult, extras: { briefingUrl?: string } = {}) {
   const doc = stored.document;
-  const runs = [{ label: 'Baseline', run: doc.baseline }, ...doc.options.map((o, k) => ({ label: keyed(doc, k), run: o.run }))];
+  const runs = [{ label: 'No clearing', run: doc.baseline }, ...doc.options.map((o, k) => ({ label: keyed(doc, k), run: o.run }))];
   const notes = runs.map(({ label, run }) => (run.numerics.status === 'completed' ? '' : `${label}: ${runNote(run)}`)).filter(Boolean);
+  const base = resultLinks(stored.id).tables;
+  const rec = recommendationWords(doc);
+  const unc = uncertaintyView(doc);
+  const byp = bypassView(doc);
+  const transportDecides = doc.options.some((_, k) => transportNote(doc, k)?.decides);
+  const cwNotes = [...new Set(doc.options.map((o) => loose(o).criticalWidth?.note).filter((x): x is string => Boolean(x)))];
   return {
     ...header(stored),
     briefingUrl: extras.briefingUrl ?? '',
+    headline: headline(doc),
+    headlineTone: transportDecides ? 'partial' : 'plain',
+    recommendation: { ...rec, notes: cwNotes },
     hasOptions: doc.options.length > 0,
-    verdicts: doc.options.map((o, k) => verdictView(o, k)),
+    verdicts: doc.options.map((_, k) => verdictView(doc, k)),
     statusNotes: notes,
     hasSites: doc.baseline.arrivals.length > 0,
-    arrivals: arrivalTable(doc),
-    trees: treesTable(doc),
-    criticalWidth: criticalWidthTable(doc),
-    runs: runsTable(doc),
-    widthDelay: widthDelayTables(doc),
-    mosaics: mosaicTable(doc),
-    numerics: numericsTable(doc),
+    arrivals: withCsv(arrivalTable(doc), base),
+    trees: withCsv(treesTable(doc), base),
+    criticalWidth: withCsv(criticalWidthTable(doc), base),
+    runs: withCsv(runsTable(doc), base),
+    widthDelay: widthDelayTables(doc).map((t) => ({ ...t, table: withCsv(t.table, base) })),
+    mosaics: withCsv(mosaicTable(doc), base),
+    numerics: withCsv(numericsTable(doc), base),
+    parameters: withCsv(parametersTable(stored), base),
     charts: resultCharts(doc),
-    uncertainty: uncertaintyView(doc),
-    bypass: bypassView(doc),
+    uncertainty: unc
+      ? {
+          ...unc,
+          parameters: withCsv(unc.parameters, base),
+          options: withCsv(unc.options, base),
+          sites: withCsv(unc.sites, base),
+          sensitivity: unc.sensitivity.map((s) => ({ ...s, table: withCsv(s.table, base) })),
+        }
+      : null,
+    bypass: byp ? { ...byp, table: withCsv(byp.table, base) } : null,
   };
 }
 
@@ -302,47 +362,74 @@ export function resultPageView(stored: StoredResult, extras: { briefingUrl?: str
 export function comparePageView(stored: StoredResult) {
   const doc = stored.document;
   const opts = doc.options.map(loose);
-  const row = (label: string, baseline: string, cell: (o: LooseOption) => string) => ({ label, cells: [baseline, ...opts.map(cell)] });
+  const row = (label: string, baseline: string, cell: (o: LooseOption, k: number) => string) => ({ label, cells: [baseline, ...opts.map(cell)] });
+  const hasTransport = Boolean(doc.bypass);
+  const rec = recommendationWords(doc);
   const rows = [
-    row('Verdict', '—', (o) => (o.verdict ? (VERDICT_WORDS[o.verdict.kind]?.label ?? o.verdict.kind) : NOT_COMPUTED)),
+    row('Verdict', 'no clearing', (o, k) => (o.verdict ? verdictWords(doc, k).label : NOT_COMPUTED)),
+    ...(hasTransport
+      ? [row('People carrying the pest past it (established colony beyond)', 'not assessed without a clearing', (_, k) => {
+          const t = transportNote(doc, k);
+          return t ? `${t.short}${t.decides ? ' — transport decides' : ''}` : 'not computed';
+        })]
+      : []),
     row('Clearing', 'none', (o) => optionWhat(o)),
+    row('Recommended minimum width (whole scenario)', rec.widthM === null ? 'none' : `${integer(rec.widthM)} m`, (o) =>
+      rec.widthM === null ? 'none' : o.widthM >= rec.widthM ? 'this option is at least as wide' : `${integer(rec.widthM - o.widthM)} m narrower than recommended`,
+    ),
     // Each option has its own clearing, so the baseline time for that place is shown in the option's cell.
-    row('Front passes the far edge of the clearing', '—', (o) =>
+    row('Front passes the far edge of the clearing', 'no clearing', (o) =>
       o.crossingYears
-        ? `${yearOrNot(o.crossingYears.option, doc.horizonYears)} (without it: ${yearOrNot(o.crossingYears.baseline, doc.horizonYears)})`
+        ? `${o.pinned ? 'never: held' : yearOrNot(o.crossingYears.option, doc.horizonYears)} (without it: ${yearOrNot(o.crossingYears.baseline, doc.horizonYears)})`
         : NOT_COMPUTED,
     ),
-    ...doc.baseline.arrivals.map((a, k) =>
-      row(`Arrival at ${a.name} (km ${km(a.atKm)})`, yearOrNot(a.arrivalYears, doc.horizonYears), (o) => yearOrNot(o.run.arrivals[k]?.arrivalYears, doc.horizonYears)),
-    ),
-    ...doc.baseline.arrivals.map((a, k) =>
-      row(`Years gained at ${a.name}`, '—', (o) => {
-        const s = o.sites?.[k];
-        if (!s) return NOT_COMPUTED;
-        return s.delayYears === null ? (VERDICT_WORDS[s.kind]?.label ?? s.kind) : `${s.delayYears >= 0 ? '+' : '−'}${years(Math.abs(s.delayYears))} yr`;
-      }),
+    ...doc.baseline.arrivals.map((a, i) =>
+      row(`At ${a.name} (km ${km(a.atKm)})`, a.arrivalYears === null ? `not reached within ${years(doc.horizonYears)} yr` : `pest arrives year ${years(a.arrivalYears)}`, (_, k) => siteEvent(doc, k, i).text),
     ),
     row('Host trees removed', '0', (o) => (o.trees ? integer(o.trees.stemsRemoved) : NOT_COMPUTED)),
-    row('Cost', '—', (o) => (o.trees ? (o.trees.cost === null ? 'no cost given' : `${integer(o.trees.cost)}${o.trees.costUnit ? ` ${o.trees.costUnit}` : ''}`) : NOT_COMPUTED)),
-    row('Spread rate beyond the clearing', speed(doc.baseline.spreadRates.find((r) => r.direction === 'right')?.kmPerYear ?? null, 'not measured'), (o) =>
-      o.speeds ? speed(o.speeds.optionKmPerYear, 'not measured') : speed(o.run.spreadRates.find((r) => r.direction === 'right')?.kmPerYear ?? null, 'not measured'),
-    ),
+    row('Cost', 'nothing cut', (o) => (o.trees ? (o.trees.cost === null ? 'no cost given' : `${integer(o.trees.cost)}${o.trees.costUnit ? ` ${o.trees.costUnit}` : ''}`) : NOT_COMPUTED)),
+    row('Spread rate beyond the clearing', `${baselineSpreadText(doc)} (no clearing)`, (o) => spreadBeyondText(o)),
     row('Host stems left at the end', percent(doc.baseline.host.remainingFraction), (o) => percent(o.run.host.remainingFraction)),
-    row('Critical width', '—', (o) =>
-      !o.criticalWidth ? NOT_COMPUTED : !o.criticalWidth.applicable ? 'does not apply' : o.criticalWidth.bracketM ? `${integer(o.criticalWidth.bracketM[0])}–${integer(o.criticalWidth.bracketM[1])} m` : 'not found',
+    row('Width at which the front stops', 'no clearing', (o) =>
+      !o.criticalWidth ? NOT_COMPUTED : !o.criticalWidth.applicable ? 'no width stops it' : o.criticalWidth.bracketM ? `${integer(o.criticalWidth.bracketM[1])} m (gets through at ${integer(o.criticalWidth.bracketM[0])} m)` : 'not found',
     ),
   ];
+  const table: TableView = { name: 'side-by-side', caption: 'Options side by side', head: ['', 'No clearing', ...opts.map((_, k) => keyed(doc, k))], rows };
   return {
     ...header(stored),
+    headline: headline(doc),
+    headlineTone: doc.options.some((_, k) => transportNote(doc, k)?.decides) ? 'partial' : 'plain',
     hasOptions: doc.options.length > 0,
-    table: { head: ['', 'Baseline', ...opts.map((_, k) => keyed(doc, k))], rows },
-    chart: compareChart(doc),
+    table: withCsv(table, resultLinks(stored.id).tables),
+    chart: compareChart(decoratedForChart(doc)),
   };
 }
 
+/** The document with each option's name carrying its verdict and transport risk, for the side-by-side chart's legend. */
+function decoratedForChart(doc: ResultDocument): ResultDocument {
+  return {
+    ...doc,
+    options: doc.options.map((o, k) => {
+      const w = verdictWords(doc, k);
+      const t = w.transport ? `; transport risk ${w.transport.short}` : '';
+      return { ...o, name: `${o.name}: ${w.label.toLowerCase()}${t}` };
+    }),
+  };
+}
+
+export interface ResultListEntry {
+  id: string;
+  title: string;
+  createdAt: string;
+  toolVersion: string;
+  scenarioRef: string | null;
+  /** Short verdicts per option, e.g. "A 1 200 m: holds; transport decides". */
+  verdicts?: string[];
+  fingerprint?: string;
+}
 
 /** Compact facts for lists of past results. */
-export function resultListItem(r: { id: string; title: string; createdAt: string; toolVersion: string; scenarioRef: string | null }) {
+export function resultListItem(r: ResultListEntry) {
   return {
     id: r.id,
     title: r.title,
@@ -350,5 +437,8 @@ export function resultListItem(r: { id: string; title: string; createdAt: string
     version: r.toolVersion,
     link: resultLinks(r.id).page,
     scenarioLink: r.scenarioRef ? `/scenarios/${encodeURIComponent(r.scenarioRef)}` : '',
+    source: r.scenarioRef ? (r.scenarioRef.startsWith('demo-') ? `demo “${r.scenarioRef.slice(5)}”` : `saved scenario #${r.scenarioRef}`) : 'posted through the API',
+    verdicts: r.verdicts ?? [],
+    fingerprint: r.fingerprint ? r.fingerprint.slice(0, 8) : '',
   };
 }

@@ -57,6 +57,8 @@ export interface FieldView {
   inactive: boolean;
   /** Quantity inputs: the distribution part. */
   dist: { kind: string; open: boolean; kinds: ChoiceView[]; parts: { id: string; name: string; label: string; value: string; kinds: string }[] } | null;
+  /** When a range is chosen instead of one value: what the single-value box stands for ('' otherwise). */
+  rangeGiven: string;
 }
 
 export interface RowView {
@@ -70,6 +72,7 @@ export interface RowView {
 
 export interface TableView {
   key: RowGroupDef['key'];
+  rowNoun: string;
   columns: { label: string; unit: string; help: string; allowed: string; typical: string; source: string; defaultText: string }[];
   rows: RowView[];
   errors: string[];
@@ -110,7 +113,10 @@ const KIND_LABELS: Record<string, string> = {
   triangular: 'triangular (min, most likely, max)',
   lognormal: 'lognormal (median, spread factor)',
 };
-const PART_LABELS: Record<string, string> = { min: 'min', mode: 'most likely', max: 'max', median: 'median', spread: 'spread ×' };
+const PART_LABELS: Record<string, string> = { min: 'min', mode: 'most likely', max: 'max', median: 'median', spread: 'spread factor (×)' };
+
+/** Words for the single-value box when a range is chosen (also used by the page script through data-range-words). */
+export const RANGE_GIVEN = 'not used: given as a range below';
 
 /** HTML id of an input, from its name. */
 export function inputId(name: string): string {
@@ -204,8 +210,12 @@ function fieldView(def: FormFieldDef, name: string, state: FormState, board: Pro
     habitats: (def.habitats ?? []).join(' '),
     inactive: !applies(def.showWhen, state) || (def.habitats !== undefined && !def.habitats.includes(ctx.habitat ?? '')),
     dist,
+    rangeGiven: dist && dist.kind !== 'value' ? RANGE_GIVEN : '',
   };
 }
+
+/** What one row of each table is called, so row buttons name their table ("Remove segment 2"). */
+const ROW_NOUNS: Record<RowGroupDef['key'], string> = { segments: 'segment', sites: 'site', options: 'option', kernel: 'distance row', mosaics: 'pattern' };
 
 function tableView(group: RowGroupDef, state: FormState, board: ProblemBoard): TableView {
   const indices = rowIndices(state, group.prefix);
@@ -219,6 +229,7 @@ function tableView(group: RowGroupDef, state: FormState, board: ProblemBoard): T
   const errors = board.take(group.prefix, `table-${group.key}`, group.key);
   return {
     key: group.key,
+    rowNoun: ROW_NOUNS[group.key],
     columns: group.columns.map((col) => {
       const spec = specOf(col);
       return {
@@ -241,11 +252,16 @@ function tableView(group: RowGroupDef, state: FormState, board: ProblemBoard): T
 }
 
 /** Builds the form page's view-model from form text and the problems found by validation. */
-export function formView(state: FormState, problems: Problem[] = []): FormView {
+export function formView(state: FormState, problems: Problem[] = [], server: { maxHorizonYears?: number } = {}): FormView {
   const board = new ProblemBoard(problems);
   const sections: FormView['sections'] = {};
   for (const s of FORM_SECTIONS) {
-    const fields = s.fields.map((def) => fieldView(def, def.path, state, board));
+    const fields = s.fields.map((def) => {
+      const f = fieldView(def, def.path, state, board);
+      // One limit shown the same everywhere: the horizon this server runs, not only the schema's range.
+      if (def.path === 'horizonYears' && server.maxHorizonYears !== undefined) f.allowed = `> 0 and ≤ ${server.maxHorizonYears} yr on this server`;
+      return f;
+    });
     sections[s.id] = { id: s.id, title: s.title, intro: s.intro ?? '', fields, errors: [] };
   }
   const segments = tableView(ROW_GROUPS.segments, state, board);

@@ -17,12 +17,31 @@ export interface StripInput {
 
 export interface StripView {
   empty: boolean;
-  segments: { habitat: string; grow: number; title: string }[];
-  bands: { kind: 'infestation' | 'option'; left: string; width: string; title: string }[];
-  pins: { left: string; label: string }[];
+  segments: { habitat: string; grow: number; title: string; narrow: boolean }[];
+  /** Infestation on the bar; each option in its own lane below it (options at the same km stay apart), with its letter. */
+  bands: { kind: 'infestation' | 'option'; left: string; width: string; title: string; top: string; key: string }[];
+  /** Site pins; `flip` puts the label to the left of its pin (pins in the right part of the strip keep their labels on the page). */
+  pins: { left: string; label: string; flip: boolean }[];
+  /** km ticks under the bar. */
+  ticks: { left: string; label: string }[];
+  /** Total height of the drawing and where the site pins start [rem]. */
+  height: string;
+  pinsTop: string;
   startText: string;
   endText: string;
 }
+
+/** Layout of the strip drawing [rem]: the bar, the km ticks, one lane per option, then the site labels (also in assets/scenario-form.js). */
+export const STRIP_LAYOUT = { bar: 1.4, ticks: 1.2, lane: 1.0, pins: 1.5 };
+
+/** Tick step [km] giving about five to ten ticks over `total` km (1, 2, 5 × 10^n). */
+export function tickStepKm(total: number): number {
+  const raw = total / 8;
+  const p = 10 ** Math.floor(Math.log10(raw));
+  return [1, 2, 5, 10].map((m) => m * p).find((x) => total / x <= 10) ?? 10 * p;
+}
+
+const letter = (k: number) => String.fromCharCode(65 + (k % 26));
 
 const HABITAT_WORDS: Record<string, string> = {
   'host-forest': 'host forest',
@@ -36,7 +55,7 @@ export function stripView(input: StripInput): StripView {
   const segments = input.segments.filter((s) => Number.isFinite(s.lengthKm) && s.lengthKm > 0);
   const total = segments.reduce((a, s) => a + s.lengthKm, 0);
   if (!(total > 0)) {
-    return { empty: true, segments: [], bands: [], pins: [], startText: '', endText: '' };
+    return { empty: true, segments: [], bands: [], pins: [], ticks: [], height: `${STRIP_LAYOUT.bar + STRIP_LAYOUT.ticks + STRIP_LAYOUT.pins}rem`, pinsTop: '0rem', startText: '', endText: '' };
   }
   const origin = input.originKm;
   const at = (x: number) => (100 * (x - origin)) / total;
@@ -49,27 +68,41 @@ export function stripView(input: StripInput): StripView {
       left: pct(at(input.infestation.fromKm)),
       width: pct(at(to) - at(input.infestation.fromKm)),
       title: `Infested: km ${km(input.infestation.fromKm)}–${km(input.infestation.toKm)}`,
+      top: '0rem',
+      key: '',
     });
   }
-  for (const o of input.options) {
+  const lanesTop = STRIP_LAYOUT.bar + STRIP_LAYOUT.ticks;
+  input.options.forEach((o, k) => {
     const to = o.fromKm + o.widthM / 1000;
-    if (!inside(o.fromKm) || !(o.widthM > 0)) continue;
+    if (!inside(o.fromKm) || !(o.widthM > 0)) return;
     bands.push({
       kind: 'option',
       left: pct(at(o.fromKm)),
       width: pct(Math.max(at(Math.min(to, origin + total)) - at(o.fromKm), 0.4)),
-      title: `${o.name}: km ${km(o.fromKm)}–${km(to)}`,
+      title: `${letter(k)}: ${o.name}, km ${km(o.fromKm)}–${km(to)}`,
+      top: `${(lanesTop + k * STRIP_LAYOUT.lane).toFixed(2)}rem`,
+      key: letter(k),
     });
-  }
+  });
+  const pinsTop = lanesTop + input.options.length * STRIP_LAYOUT.lane;
+  const step = tickStepKm(total);
+  const ticks: StripView['ticks'] = [];
+  for (let x = Math.ceil(origin / step - 1e-9) * step; x <= origin + total + 1e-9; x += step) ticks.push({ left: pct(at(x)), label: `${Number(x.toPrecision(6))}` });
   return {
     empty: false,
     segments: segments.map((s) => ({
       habitat: s.habitat in HABITAT_WORDS ? s.habitat : 'unknown',
       grow: s.lengthKm,
       title: `${s.name ? `${s.name}: ` : ''}${HABITAT_WORDS[s.habitat] ?? s.habitat}, ${km(s.lengthKm)} km`,
+      // A stretch under half a percent of the strip (a 60 m corridor in 50 km) is drawn at a visible minimum width with an outline.
+      narrow: s.lengthKm / total < 0.005,
     })),
     bands,
-    pins: input.sites.filter((s) => inside(s.atKm)).map((s) => ({ left: pct(at(s.atKm)), label: s.name || '(site)' })),
+    pins: input.sites.filter((s) => inside(s.atKm)).map((s) => ({ left: pct(at(s.atKm)), label: s.name || '(site)', flip: at(s.atKm) > 55 })),
+    ticks,
+    height: `${(pinsTop + STRIP_LAYOUT.pins).toFixed(2)}rem`,
+    pinsTop: `${pinsTop.toFixed(2)}rem`,
     startText: `${km(origin)} km`,
     endText: `${km(origin + total)} km`,
   };
