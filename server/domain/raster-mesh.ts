@@ -27,6 +27,8 @@ export interface RasterMesh extends Mesh {
    * map edge. 0 everywhere when both are reflecting/impassable. Length nCells.
    */
   readonly lethalFacesAtCells: Uint8Array;
+  /** Of those, the faces on the cell's west and east sides (the rest are north and south). Length nCells. */
+  readonly lethalFacesXAtCells: Uint8Array;
 }
 
 /**
@@ -53,6 +55,7 @@ export function makeRasterMesh(
   const volumes = new Float64Array(nCells).fill(cellKm * cellKm);
   const centres = new Float64Array(2 * nCells);
   const lethalFacesAtCells = new Uint8Array(nCells);
+  const lethalFacesXAtCells = new Uint8Array(nCells);
   const x0 = geometry.originXM / 1000;
   const y0 = geometry.originYM / 1000;
   const faces: number[] = [];
@@ -65,6 +68,7 @@ export function makeRasterMesh(
       centres[2 * c] = x0 + (col + 0.5) * cellKm;
       centres[2 * c + 1] = y0 - (row + 0.5) * cellKm;
       let lethal = 0;
+      let lethalX = 0;
       // East and south neighbours carry the face (each face once, low index first).
       const sides: [number, number, boolean][] = [
         [row, col + 1, true],
@@ -73,18 +77,20 @@ export function makeRasterMesh(
         [row - 1, col, false],
       ];
       for (const [r, q, own] of sides) {
+        const alongX = r === row;
         if (r < 0 || r >= ny || q < 0 || q >= nx) {
-          if (mapEdges === 'lethal') lethal++;
+          if (mapEdges === 'lethal') (lethal++, alongX && lethalX++);
           continue;
         }
         const j = cellOfRaster[r * nx + q];
         if (j < 0) {
-          if (outside === 'lethal') lethal++;
+          if (outside === 'lethal') (lethal++, alongX && lethalX++);
           continue;
         }
         if (own) faces.push(c, j);
       }
       lethalFacesAtCells[c] = lethal;
+      lethalFacesXAtCells[c] = lethalX;
     }
   }
   const nFaces = faces.length / 2;
@@ -103,6 +109,7 @@ export function makeRasterMesh(
     rasterOfCell,
     cellOfRaster,
     lethalFacesAtCells,
+    lethalFacesXAtCells,
     locate(x: number, y?: number): number {
       if (y === undefined) return -1;
       const col = Math.floor((x - x0) / cellKm);

@@ -32,8 +32,10 @@ export interface RasterOperator {
   readonly gx: Float64Array;
   /** A_f / h² of the face south of each cell, 0 where none. */
   readonly gy: Float64Array;
-  /** Dirichlet terms 2 A_i / h² × (number of lethal faces) per cell; all kept in the x factor of the line solves. */
+  /** Dirichlet terms 2 A_i / h² × (number of lethal faces) per cell, split into west/east and north/south faces. */
   readonly lethal: Float64Array;
+  readonly lethalX: Float64Array;
+  readonly lethalY: Float64Array;
 }
 
 /**
@@ -53,12 +55,17 @@ export function makeRasterOperator(mesh: RasterMesh, diffusionAtCells: Float64Ar
   const gx = new Float64Array(n);
   const gy = new Float64Array(n);
   const lethal = new Float64Array(n);
+  const lethalX = new Float64Array(n);
+  const lethalY = new Float64Array(n);
   for (let c = 0; c < mesh.nCells; c++) {
     const k = mesh.rasterOfCell[c];
     insideAtCells[k] = 1;
     rho[k] = residenceAtCells[c];
     invRho[k] = 1 / residenceAtCells[c];
-    lethal[k] = mesh.lethalFacesAtCells[c] * 2 * diffusionAtCells[c] * residenceAtCells[c] * inv2;
+    const one = 2 * diffusionAtCells[c] * residenceAtCells[c] * inv2;
+    lethalX[k] = mesh.lethalFacesXAtCells[c] * one;
+    lethalY[k] = (mesh.lethalFacesAtCells[c] - mesh.lethalFacesXAtCells[c]) * one;
+    lethal[k] = lethalX[k] + lethalY[k];
   }
   for (let f = 0; f < mesh.nFaces; f++) {
     const a = mesh.faceCells[2 * f];
@@ -71,7 +78,7 @@ export function makeRasterOperator(mesh: RasterMesh, diffusionAtCells: Float64Ar
     if (kb === ka + 1) gx[ka] = g;
     else gy[ka] = g;
   }
-  return { nx, ny, cellKm, insideAtCells, residenceAtCells: rho, invResidence: invRho, gx, gy, lethal };
+  return { nx, ny, cellKm, insideAtCells, residenceAtCells: rho, invResidence: invRho, gx, gy, lethal, lethalX, lethalY };
 }
 
 /** The computed part of the raster: rows r0…r1 and columns c0…c1 (inclusive). Faces leaving it are closed. */

@@ -8,8 +8,8 @@
  *
  * @remarks
  * Stage systems `M x = b`, `M = I − τ(Lx + Ly + G)` (G = diag of frozen per-capita rates), are solved by
- * `x = x₀ + (Px Py)⁻¹ (b − M x₀)` with `Px = I − τ(Lx + G)` (row lines) and `Py = I − τ Ly` (column
- * lines), x₀ the previous state (stage 1) or the stage-1 result (stage 2). This is the approximate
+ * `x = x₀ + (Px Py)⁻¹ (b − M x₀)` with `Px = I − τ(Lx + G)` (row lines, with the west/east Dirichlet faces) and `Py = I − τ Ly` (column
+ * lines, with the north/south Dirichlet faces), x₀ the previous state (stage 1) or the stage-1 result (stage 2). This is the approximate
  * factorisation / Douglas correction (Douglas & Gunn 1964, Numer. Math. 6:428–453; Hundsdorfer & Verwer
  * 2003, Numerical Solution of Time-Dependent Advection-Diffusion-Reaction Equations, §IV.3–4 [MEM for the
  * sections]). Its error `τ² (Lx + G) Ly (x − x₀)` is O(dt³) per step because x − x₀ = O(dt), so the step
@@ -75,7 +75,7 @@ function expNeg(x: number): number {
 }
 
 export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients, initial?: Float64Array): RasterStepper {
-  const { nx, ny, gx, gy, lethal, invResidence: ir, insideAtCells } = op;
+  const { nx, ny, gx, gy, lethalX, lethalY, invResidence: ir, insideAtCells } = op;
   const n = nx * ny;
   const { hostAtCells, mortalityAtCells, perCapita, hostKillRate: c } = coeffs;
   const pad = Math.max(2, Math.round(coeffs.pad));
@@ -163,7 +163,7 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
         const ge = q < c1 ? gx[k] : 0;
         const g = mode === 'rates' ? rate[k] : mode === 'sinks' ? Math.min(rate[k], 0) : 0;
         const a = q > c0 ? -tau * gw * ir[k - 1] : 0;
-        const piv = 1 + tau * ((gw + ge + lethal[k]) * ir[k] - g) - a * cpPrev;
+        const piv = 1 + tau * ((gw + ge + lethalX[k]) * ir[k] - g) - a * cpPrev;
         const ip = 1 / piv;
         cpPrev = q < c1 ? -tau * ge * ir[k + 1] * ip : 0;
         rowCp[q] = cpPrev;
@@ -192,7 +192,7 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
         const a = r > r0 ? -tau * gn * ir[k - nx] : 0;
         const cpPrev = r > r0 ? colCp[k - nx] : 0;
         const yPrev = r > r0 ? out[k - nx] : 0;
-        const piv = 1 + tau * (gn + gs) * ir[k] - a * cpPrev;
+        const piv = 1 + tau * (gn + gs + lethalY[k]) * ir[k] - a * cpPrev;
         const ip = 1 / piv;
         colCp[k] = r < r1 ? -tau * gs * ir[k + nx] * ip : 0;
         colInv[k] = ip;
