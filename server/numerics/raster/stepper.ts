@@ -1,6 +1,7 @@
 /**
  * Coupled movement–growth step on the square raster: the transect's coupled TR-BDF2 step
- * (numerics/coupled.ts: rates frozen at a predicted mid-step state, one L-stable second-order method for
+ * (numerics/coupled.ts: rates frozen at a predicted mid-step state (here predicted by the same kind of
+ * factorised correction, so that steady states are exact fixed points), one L-stable second-order method for
  * movement and growth together, host loss by the trapezoidal rule in log h, a positive first-order
  * fallback) with each implicit stage solved by one approximately factorised (ADI) correction on
  * tridiagonal lines instead of a banded 2-D solve. Only the active window (cells near occupied ones) is
@@ -212,21 +213,24 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
     const win = w!;
     const { r0, r1, c0, c1 } = win;
     const halfDt = 0.5 * dt;
-    // Rates at the start and the predictor's right side max(1 + dt/2 g⁰, 0) uⁿ.
+    // Rates at the start.
     for (let r = r0; r <= r1; r++) {
       for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) {
         const ui = u[k];
         const hi = h[k];
         u0[k] = ui;
         h0[k] = hi;
-        const g = hostAtCells[k] ? perCapita(ui > 0 ? ui : 0, hi > 0 ? hi : 0) : -mortalityAtCells[k];
-        const f = 1 + halfDt * g;
-        mid[k] = (f > 0 ? f : 0) * ui;
+        rate[k] = hostAtCells[k] ? perCapita(ui > 0 ? ui : 0, hi > 0 ? hi : 0) : insideAtCells[k] ? -mortalityAtCells[k] : 0;
       }
     }
-    // Mid-step predictor by locally one-dimensional backward Euler over dt/2 (positive, O(dt²) locally).
+    // Mid-step predictor ũ = u⁰ + ((I − dt/2 Lx)(I − dt/2 Ly))⁻¹ dt/2 (L + G⁰) u⁰: O(dt²) locally, the
+    // transect's predictor (I − dt/2 L)ũ = (1 + dt/2 g⁰)u⁰ where the state is uniform across, and exact at
+    // steady states (so that they stay fixed points of the whole step); negative values are read as 0.
+    applyRasterOperator(op, win, u0, mid, rate);
+    for (let r = r0; r <= r1; r++) for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) mid[k] *= halfDt;
     rowSolve(halfDt, mid, mid, 'none');
     colSolve(halfDt, mid, mid);
+    for (let r = r0; r <= r1; r++) for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) mid[k] += u0[k];
     let maxPositive = 0;
     const quarter = 0.25 * c * dt;
     for (let r = r0; r <= r1; r++) {
