@@ -4,7 +4,7 @@
  * front is established beyond the clearing, and the judge that verifies a pinned front.
  */
 import type { DiffusionOperator } from '../numerics/diffusion.ts';
-import { runTimeLoop, type FieldState, type FieldStepper, type Observer } from '../numerics/time-loop.ts';
+import { Schedule, runTimeLoop, type FieldState, type FieldStepper, type Observer } from '../numerics/time-loop.ts';
 import { solveSteadyState, linearStability } from '../numerics/steady.ts';
 import { cellIndexAt, type Grid } from '../numerics/grid.ts';
 import { alleeThreshold, equilibria, lowDensityRate } from '../model/growth.ts';
@@ -156,7 +156,7 @@ export function initialFields(solver: WindowSolver, start: StartState): { u: Flo
 
 /** An observer that sees absolute time (run time + offset). */
 export function withOffset(o: Observer, offset: number): Observer {
-  const shift = (s: FieldState): FieldState => ({ t: s.t + offset, u: s.u, h: s.h, stepIndex: s.stepIndex });
+  const shift = (s: FieldState): FieldState => ({ t: s.t + offset, tPrevious: s.tPrevious + offset, u: s.u, h: s.h });
   return {
     initialize: o.initialize ? (s) => o.initialize!(shift(s)) : undefined,
     handle: (s) => o.handle(shift(s)),
@@ -551,7 +551,9 @@ export function runWindow(solver: WindowSolver, o: WindowRunOptions): WindowOutc
   const judge = o.judge ? new PinningJudge(solver, o.geometry) : null;
   if (judge && o.arrivedBefore) judge.arrived = true;
   const dt = solver.problem.resolution.stepYears;
+  // Pinning checks every whole number of steps nearest to checkYears, scheduled by time from the start state.
   const checkEvery = Math.max(1, Math.round((o.checkYears ?? Math.max(0.5, 2 / growthRateScale(s.pest.growth))) / dt));
+  const checks = Schedule.periodic(checkEvery * dt, o.start.t);
   let judgement: Judgement | null = null;
   const sites = o.sitesKm ?? [];
   const arrivalTracker = new ArrivalTracker(grid, sites, s.detectionLevel);
@@ -568,7 +570,7 @@ export function runWindow(solver: WindowSolver, o: WindowRunOptions): WindowOutc
       // Arrivals alone do not end the run while the crossing is still to be seen (a site can see the
       // fringe at the detection level long before the front passes the clearing).
       if (o.stopOnArrivals && sites.length && arrivalTracker.allArrived() && watch.crossedYears !== null) stop = true;
-      if (judge && watch.crossedYears === null && st.stepIndex % checkEvery === 0) {
+      if (checks.due(st.t) && judge && watch.crossedYears === null) {
         const j = judge.check(st.t, st.u, st.h);
         if (j) {
           judgement = j;

@@ -10,7 +10,7 @@ import { habitatCoefficients } from '../model/habitat.ts';
 import { equilibria } from '../model/growth.ts';
 import type { Grid } from '../numerics/grid.ts';
 import { cellIndexAt } from '../numerics/grid.ts';
-import type { FieldState, Observer } from '../numerics/time-loop.ts';
+import { Schedule, type FieldState, type Observer } from '../numerics/time-loop.ts';
 import { criticalGapWidth } from '../numerics/steady-blocking.ts';
 import { chooseResolution, discretise, growthRateScale, type Resolution } from './discretise.ts';
 import { buildLayout, stemsRemoved, type ClearingSpec } from './layout.ts';
@@ -674,6 +674,7 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
     };
     const judge = new PinningJudge(judgeSolver, geometry);
     const every = Math.max(1, Math.round(Math.max(0.5, 2 / growthRateScale(s.pest.growth)) / resolution.stepYears));
+    const checks = Schedule.periodic(every * resolution.stepYears);
     const arrived = new ArrivalTracker(p.grid, s.sites.map((x) => x.atKm), s.detectionLevel);
     observers.push({
       initialize: (st) => arrived.initialize(st),
@@ -681,7 +682,7 @@ export function analyseOption(s: PointScenario, option: BarrierOptionSpec, setti
         arrived.handle(st);
         if (watch.crossedYears !== null) return arrived.allArrived();
         judge.note(st.u);
-        if (st.stepIndex % every !== 0) return false;
+        if (!checks.due(st.t)) return false;
         earlyJudgement = judge.check(st.t, st.u, st.h);
         return earlyJudgement !== null;
       },

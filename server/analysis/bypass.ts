@@ -13,7 +13,7 @@
  *   Λ(T) = σ q p b ∫_0^T ∫_{infested near side at t} S(distance from x to the barrier's far edge) dx dt,
  *
  * b being the width of the band the transect stands for, and P(at least one by T) = 1 − e^(−Λ(T)).
- * Own formulas, checked against the closed forms and Monte Carlo values of SCIENCE.md §7.2.
+ * Own formulas, checked against the closed forms and Monte Carlo values of the methods note (server/numerics/README.md) §7.2.
  */
 import type { Grid } from '../numerics/grid.ts';
 import type { FieldState, Observer } from '../numerics/time-loop.ts';

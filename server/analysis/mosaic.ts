@@ -7,7 +7,7 @@ import type { PointScenario } from '../model/scenario.ts';
 import { habitatCoefficients } from '../model/habitat.ts';
 import { lowDensityRate } from '../model/growth.ts';
 import { blochEigenvalue, homogenised, spreadingSpeed, type Patch } from '../numerics/dispersion.ts';
-import type { Observer, FieldState } from '../numerics/time-loop.ts';
+import { LevelCrossings, type Observer, type FieldState } from '../numerics/time-loop.ts';
 import { cellIndexAt } from '../numerics/grid.ts';
 import type { MosaicResult } from './result.ts';
 import type { Piece } from './layout.ts';
@@ -41,38 +41,28 @@ export function mosaicPatches(s: PointScenario, m: MosaicSpec): Patch[] {
   ];
 }
 
-/** Density whose passage at mid-forest probes times the front (5 % of capacity; SCIENCE.md §9.3). */
+/** Density whose passage at mid-forest probes times the front (5 % of capacity; methods note (server/numerics/README.md) §9.3). */
 export const PASSAGE_LEVEL = 0.05;
 
-/** Passage times of a density level at chosen positions. */
+/** Passage times of a density level at chosen cells (dense output between step ends); stops the run once all have passed. */
 class PassageRecorder implements Observer {
-  readonly times: (number | null)[];
-  private last: number[];
-  private lastT = 0;
+  private readonly crossings: LevelCrossings;
   constructor(
     private readonly cells: number[],
-    private readonly level: number,
+    level: number,
   ) {
-    this.times = cells.map(() => null);
-    this.last = cells.map(() => 0);
+    this.crossings = new LevelCrossings(cells.length, level);
+  }
+  get times(): (number | null)[] {
+    return this.crossings.times;
   }
   initialize(st: FieldState): void {
-    this.last = this.cells.map((c) => st.u[c]);
-    this.lastT = st.t;
+    // A cell already at the level at the start is dated by its first step, as a passage would be.
+    this.crossings.start(st.t, (k) => st.u[this.cells[k]], false);
   }
   handle(st: FieldState): boolean {
-    let done = true;
-    this.cells.forEach((c, k) => {
-      const now = st.u[c];
-      if (this.times[k] === null && now >= this.level) {
-        const frac = now > this.last[k] ? (this.level - this.last[k]) / (now - this.last[k]) : 1;
-        this.times[k] = this.lastT + Math.min(1, Math.max(0, frac)) * (st.t - this.lastT);
-      }
-      if (this.times[k] === null) done = false;
-      this.last[k] = now;
-    });
-    this.lastT = st.t;
-    return done;
+    this.crossings.update(st.t, (k) => st.u[this.cells[k]]);
+    return this.crossings.allPassed();
   }
 }
 
@@ -91,7 +81,7 @@ export interface MeasuredMosaicSpeed {
  * Speed measured in a simulated pattern of `periods` periods, starting from the first forest strip fully
  * infested: passage times of the detection level at mid-forest probes, straight-line fit over the later
  * half. For growth without an Allee effect (pulled fronts) the fit includes the Bramson term −(3/(2s*)) ln t
- * (Bramson 1983; periodic media: Hamel, Nolen, Roquejoffre & Ryzhik 2013), SCIENCE.md §9.3.
+ * (Bramson 1983; periodic media: Hamel, Nolen, Roquejoffre & Ryzhik 2013), methods note §9.3.
  */
 export function measureMosaicSpeed(s: PointScenario, m: MosaicSpec, opts: { level?: number; periods?: number; decayRate?: number | null; guessKmPerYear?: number | null; shouldCancel?: () => boolean } = {}): MeasuredMosaicSpeed {
   const periods = opts.periods ?? 100;

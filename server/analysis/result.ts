@@ -68,7 +68,12 @@ export interface RunResult {
     stepYears: number;
     autoCell: boolean;
     autoStep: boolean;
+    /** Accepted steps. */
     steps: number;
+    /** Steps the step controller rejected and redid (always 0 with fixed steps). */
+    rejectedSteps: number;
+    /** How step sizes were chosen: 'fixed' (the resolution's stepYears, the last step shortened to the end). */
+    stepControl: 'fixed' | 'adaptive';
     fallbackSteps: number;
     reactionSubsteps: number;
     wallMs: number;

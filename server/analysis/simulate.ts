@@ -201,6 +201,8 @@ export function summariseRun(out: RunOutput, s: PointScenario): RunResult {
       autoCell: problem.resolution.autoCell,
       autoStep: problem.resolution.autoStep,
       steps: solver.info.steps,
+      rejectedSteps: solver.info.rejectedSteps,
+      stepControl: 'fixed',
       fallbackSteps: solver.info.diffusion.fallbackSteps,
       reactionSubsteps: solver.info.reaction.substeps,
       wallMs: Math.round(solver.info.wallMs),

@@ -1,6 +1,6 @@
 import type { Grid } from '../numerics/grid.ts';
 import { cellIndexAt } from '../numerics/grid.ts';
-import type { FieldState, Observer } from '../numerics/time-loop.ts';
+import { LevelCrossings, Schedule, type FieldState, type Observer } from '../numerics/time-loop.ts';
 
 /**
  * Position of the farthest point to the right where u ≥ level [km], or NaN when no cell reaches the level.
@@ -116,42 +116,25 @@ export function probeValue(p: PointProbe, u: Float64Array): number {
  * up to half a cell divided by the front speed; between steps the time is interpolated linearly.
  */
 export class ArrivalTracker implements Observer {
-  readonly arrivalYears: (number | null)[];
   private readonly probes: PointProbe[];
-  private lastT = 0;
-  private readonly lastU: number[];
-  constructor(
-    grid: Grid,
-    sitesKm: readonly number[],
-    private readonly level: number,
-  ) {
+  private readonly crossings: LevelCrossings;
+  constructor(grid: Grid, sitesKm: readonly number[], level: number) {
     this.probes = sitesKm.map((x) => makeProbe(grid, x));
-    this.arrivalYears = sitesKm.map(() => null);
-    this.lastU = sitesKm.map(() => 0);
+    this.crossings = new LevelCrossings(sitesKm.length, level);
+  }
+  /** First year each site reaches the level; null if not (yet). */
+  get arrivalYears(): (number | null)[] {
+    return this.crossings.times;
   }
   initialize(s: FieldState): void {
-    this.probes.forEach((p, k) => {
-      const now = probeValue(p, s.u);
-      this.lastU[k] = now;
-      if (now >= this.level) this.arrivalYears[k] = 0;
-    });
-    this.lastT = s.t;
+    this.crossings.start(s.t, (k) => probeValue(this.probes[k], s.u));
   }
   handle(s: FieldState): void {
-    this.probes.forEach((p, k) => {
-      const now = probeValue(p, s.u);
-      if (this.arrivalYears[k] === null && now >= this.level) {
-        const before = this.lastU[k];
-        const frac = now > before ? (this.level - before) / (now - before) : 1;
-        this.arrivalYears[k] = this.lastT + Math.min(1, Math.max(0, frac)) * (s.t - this.lastT);
-      }
-      this.lastU[k] = now;
-    });
-    this.lastT = s.t;
+    this.crossings.update(s.t, (k) => probeValue(this.probes[k], s.u));
   }
   /** True once every site has been reached. */
   allArrived(): boolean {
-    return this.arrivalYears.every((a) => a !== null);
+    return this.crossings.allPassed();
   }
 }
 
@@ -176,7 +159,7 @@ export function profileCells(grid: Grid, maxPoints = 600, minPerPiece = 3): Int3
   return Int32Array.from(new Set(picked));
 }
 
-/** Profiles of density and host at chosen times (first step at or after each target time). */
+/** Profiles of density and host at chosen times (at the first step ending at or after each target time). */
 export interface Snapshot {
   timeYears: number;
   density: number[];
@@ -186,22 +169,23 @@ export interface Snapshot {
 /** Records density and host at the target times, at the chosen cells. */
 export class SnapshotRecorder implements Observer {
   readonly snapshots: Snapshot[] = [];
-  private next = 0;
+  private readonly schedule: Schedule;
   constructor(
     private readonly cells: Int32Array,
-    private readonly targetsYears: readonly number[],
-  ) {}
+    targetsYears: readonly number[],
+  ) {
+    this.schedule = Schedule.at(targetsYears);
+  }
   initialize(s: FieldState): void {
     this.handle(s);
   }
   handle(s: FieldState): void {
-    while (this.next < this.targetsYears.length && s.t >= this.targetsYears[this.next] - 1e-9) {
+    for (let n = this.schedule.take(s.t); n > 0; n--) {
       this.snapshots.push({
         timeYears: s.t,
         density: Array.from(this.cells, (c) => s.u[c]),
         host: Array.from(this.cells, (c) => s.h[c]),
       });
-      this.next++;
     }
   }
   /** Makes sure the final state is recorded even if the run stopped early. */

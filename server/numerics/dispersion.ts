@@ -153,7 +153,7 @@ export function spreadingSpeed(patches: readonly Patch[]): SpreadSpeed {
  * row i: dx_i du_i/dt = G_{i+½}(v_{i+1} − v_i) − G_{i−½}(v_i − v_{i−1}) + dx_i ε_i u_i, v = u/ρ, with
  * u_{−1} = e^{sL} u_{n−1} and u_n = e^{−sL} u_0. The matrix is Metzler, so its eigenvalue of largest real
  * part is real (Perron–Frobenius) and is the principal one. Dense eigen-decomposition with ml-matrix;
- * keep n to a few hundred. Second order in the cell size (SCIENCE.md §2.2, §9.4).
+ * keep n to a few hundred. Second order in the cell size (methods note (server/numerics/README.md) §2.2, §9.4).
  */
 export function twistedPeriodicEigenvalue(patches: readonly Patch[], s: number, cellsPerPatch: number): number {
   const dx: number[] = [];

@@ -34,7 +34,7 @@ export interface ReactionCounters {
  * Density below which a host cell is updated by its linearised growth (one multiplication per step)
  * instead of the nonlinear Heun step. The per-capita rate differs from its low-density value g(0, h) by at
  * most |∂g/∂u|·u, so this cut-off changes growth rates by about 1e-9/yr and densities by a relative
- * 1e-9 × (rate scale × time) — far below anything reported. Bounded by a test (reaction.test.ts).
+ * 1e-9 × (rate scale × time) — far below anything reported. Bounded by tests/numerics/reaction-fast-path.test.ts.
  */
 export const LINEAR_BELOW = 1e-9;
 

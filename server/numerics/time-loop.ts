@@ -1,66 +1,32 @@
+/**
+ * The time loop: drives a stepper (stepper.ts) under a step controller (controller.ts), hands every accepted
+ * step to the observers (observers.ts), polls for cancellation and reports progress. It owns no physics and
+ * no step-size policy. Re-exports the pieces so callers import the time-integration vocabulary from here.
+ */
 import type { DiffusionCounters, DiffusionStepper } from './diffusion.ts';
 import type { ReactionCounters, ReactionStepper } from './reaction.ts';
+import { fixedStepController, type StepController } from './controller.ts';
+import { splitStepper, type FieldStepper } from './stepper.ts';
+import type { FieldState, Observer } from './observers.ts';
 
-/** The fields at the end of a step, as observers see them (do not mutate). */
-export interface FieldState {
-  /** Time [yr] since the start of the run. */
-  readonly t: number;
-  /** Insect density per cell, relative to capacity of fully stocked host forest. */
-  readonly u: Float64Array;
-  /** Remaining host fraction per cell. */
-  readonly h: Float64Array;
-  /** Steps completed. */
-  readonly stepIndex: number;
-}
-
-/**
- * Something that watches a run: initialise once, handle after every step, finalise once
- * (the tracker pattern). `handle` may return true to stop the run early (e.g. an event was reached).
- */
-export interface Observer {
-  initialize?(state: FieldState): void;
-  handle(state: FieldState): boolean | void;
-  finalize?(state: FieldState): void;
-}
-
-/** One step of the whole system (density and host fraction): what the time loop drives. */
-export interface FieldStepper {
-  /** Advances u and h by dt [yr] in place. */
-  step(u: Float64Array, h: Float64Array, dt: number): void;
-  /** Counters in the solver-report layout (movement solves; growth substeps). */
-  counters(): { diffusion: DiffusionCounters; reaction: ReactionCounters };
-}
-
-/**
- * Strang splitting: half growth step, full implicit diffusion step, half growth step.
- *
- * @remarks
- * Second order for smooth problems (Strang 1968, SIAM J. Numer. Anal. 5:506–517), but only about first
- * order near habitat edges where growth differs across the edge (the growth substep breaks the edge
- * conditions; order reduction of splitting methods, Hundsdorfer & Verwer 2003, Numerical Solution of
- * Time-Dependent Advection-Diffusion-Reaction Equations, §IV.3 [MEM for the section]). The engine uses
- * the coupled stepper (coupled.ts); this one is kept for comparison in the convergence tests.
- */
-export function splitStepper(diffusion: DiffusionStepper, reaction: ReactionStepper): FieldStepper {
-  return {
-    step(u, h, dt) {
-      reaction.step(u, h, 0.5 * dt);
-      diffusion.step(u, dt);
-      reaction.step(u, h, 0.5 * dt);
-    },
-    counters: () => ({ diffusion: { ...diffusion.counters }, reaction: { ...reaction.counters } }),
-  };
-}
+export type { FieldStepper, StepReport } from './stepper.ts';
+export { splitStepper } from './stepper.ts';
+export type { StepController, StepAttempt } from './controller.ts';
+export { fixedStepController } from './controller.ts';
+export type { FieldState, Observer } from './observers.ts';
+export { Schedule, LevelCrossings, interpolateCrossing } from './observers.ts';
 
 export interface TimeLoopOptions {
   /** End time [yr], > 0. */
   tEnd: number;
-  /** Step size [yr], > 0; the last step is shortened to land on tEnd. */
+  /** Step size [yr], > 0, for the fixed controller (the last step is shortened to land on tEnd). */
   dt: number;
+  /** Step controller; fixed steps of `dt` by default. */
+  controller?: StepController;
   observers?: Observer[];
-  /** Polled every `pollEvery` steps; returning true cancels the run. */
+  /** Polled every `pollEvery` accepted steps; returning true cancels the run. */
   shouldCancel?: () => boolean;
-  /** Called every `pollEvery` steps with the fraction of simulated time done. */
+  /** Called every `pollEvery` accepted steps with the fraction of simulated time done. */
   onProgress?: (fraction: number) => void;
   pollEvery?: number;
 }
@@ -72,12 +38,18 @@ export interface SolverResult {
   /** Time reached [yr]. */
   t: number;
   info: {
+    /** Accepted steps. */
     steps: number;
+    /** Steps the controller rejected and redid (0 with fixed steps). */
+    rejectedSteps: number;
     diffusion: DiffusionCounters;
     reaction: ReactionCounters;
     wallMs: number;
   };
 }
+
+/** Rejections in a row after which the loop gives up (a controller that cannot find an acceptable step). */
+const MAX_REJECTIONS_IN_A_ROW = 50;
 
 /** Strang-split time loop (see {@link splitStepper}); kept for comparisons. */
 export function runSplitTimeLoop(
@@ -90,39 +62,47 @@ export function runSplitTimeLoop(
   return runTimeLoop(splitStepper(diffusion, reaction), u, h, options);
 }
 
-/**
- * Time loop with constant steps (the last one shortened to land on tEnd): steps the fields, feeds the
- * observers, polls for cancellation and reports progress. The loop owns no physics: the stepper is built
- * by the caller.
- */
+/** Runs u and h (in place) from t = 0 to tEnd, or until an observer stops the run or it is cancelled. */
 export function runTimeLoop(stepper: FieldStepper, u: Float64Array, h: Float64Array, options: TimeLoopOptions): SolverResult {
   const { tEnd, dt, observers = [], shouldCancel, onProgress, pollEvery = 64 } = options;
   if (!(tEnd > 0) || !(dt > 0)) throw new RangeError(`tEnd and dt must be > 0 (got ${tEnd}, ${dt})`);
+  const controller = options.controller ?? fixedStepController(tEnd, dt);
   const started = performance.now();
-  const state = { t: 0, u, h, stepIndex: 0 };
+  const state = { t: 0, tPrevious: 0, u, h } satisfies FieldState;
   for (const o of observers) o.initialize?.(state);
   let status: SolverResult['status'] = 'completed';
   let message = `reached the end time ${tEnd} yr`;
-  // Steps are counted, not accumulated, so t lands on tEnd without drift.
-  const nSteps = Math.max(1, Math.ceil(tEnd / dt - 1e-9));
-  for (let k = 1; k <= nSteps; k++) {
-    const tNext = k === nSteps ? tEnd : k * dt;
-    const step = k === nSteps ? tEnd - state.t : dt;
-    stepper.step(u, h, step);
-    state.t = tNext;
-    state.stepIndex = k;
+  // Saved start of step, only when the controller may ask for a step to be redone.
+  const saved = controller.mayReject ? { u: new Float64Array(u.length), h: new Float64Array(h.length) } : null;
+  let accepted = 0;
+  let inARow = 0;
+  while (state.t < tEnd) {
+    const attempt = controller.propose(state.t);
+    saved?.u.set(u);
+    saved?.h.set(h);
+    const report = stepper.step(u, h, attempt.dt);
+    if (!controller.judge(attempt, report)) {
+      u.set(saved!.u);
+      h.set(saved!.h);
+      if (++inARow > MAX_REJECTIONS_IN_A_ROW) throw new RangeError(`step controller rejected ${inARow} steps in a row at t = ${state.t}`);
+      continue;
+    }
+    inARow = 0;
+    state.tPrevious = state.t;
+    state.t = attempt.tNext;
+    accepted++;
     let stop = false;
     for (const o of observers) if (o.handle(state)) stop = true;
     if (stop) {
       status = 'stopped';
-      message = `stopped by an observer at t = ${tNext.toPrecision(6)} yr`;
+      message = `stopped by an observer at t = ${state.t.toPrecision(6)} yr`;
       break;
     }
-    if (k % pollEvery === 0) {
-      onProgress?.(tNext / tEnd);
+    if (accepted % pollEvery === 0) {
+      onProgress?.(state.t / tEnd);
       if (shouldCancel?.()) {
         status = 'cancelled';
-        message = `cancelled at t = ${tNext.toPrecision(6)} yr`;
+        message = `cancelled at t = ${state.t.toPrecision(6)} yr`;
         break;
       }
     }
@@ -134,7 +114,8 @@ export function runTimeLoop(stepper: FieldStepper, u: Float64Array, h: Float64Ar
     message,
     t: state.t,
     info: {
-      steps: state.stepIndex,
+      steps: accepted,
+      rejectedSteps: controller.counts().rejected,
       diffusion: counters.diffusion,
       reaction: counters.reaction,
       wallMs: performance.now() - started,

@@ -9,7 +9,7 @@ import type { ResultDocument } from '../analysis/result.ts';
 import type { Scenario } from '../model/scenario.ts';
 import { TOOL } from '../version.ts';
 import { num } from './format.ts';
-import { dispersionCurveChart, frontPositionChart, hostProfileChart, mosaicSpeedChart, spaceTimeChart, transectStrip, uncertaintyCharts, widthDelayChart } from './charts/index.ts';
+import { dispersionCurveChart, frontPositionChart, hostProfileChart, mosaicSpeedChart, spaceTimeChart, transectStrip, widthDelayChart } from './charts/index.ts';
 import { optionKey } from './charts/styles.ts';
 import {
   arrivalCell,
@@ -316,7 +316,6 @@ function uncertaintySection(flow: Flow, doc: ResultDocument, opts: BriefingOptio
       flow.bullets(u.options.flatMap((o) => o.sentences), { size: 8.5 });
     }
     if (u.convergence) flow.text(u.convergence, { size: 8.5 });
-    for (const c of uncertaintyCharts(doc)) flow.chart(c);
   }
   const b = readBypass(doc.bypass);
   if (b && (b.sentences.length || b.note)) {

@@ -5,7 +5,7 @@
  * so it does not depend on the last digit of the resolution.
  *
  * Reference values: the cubic (Nagumo) pest D = r = 1, a = 0.25 with a gap of D = 1, m = 1, α = ½ has
- * the phase-plane critical width W* = 596.1 m (SCIENCE.md §5.3, G1); its front speed in unbroken forest is
+ * the phase-plane critical width W* = 596.1 m (methods note (server/numerics/README.md) §5.3, G1); its front speed in unbroken forest is
  * c = √(2rD)(½ − a) = 0.354 km/yr (Lewis & Kareiva 1993).
  */
 import { describe, expect, it } from 'vitest';
@@ -152,7 +152,7 @@ describe('the detection level does not move the critical width', () => {
   // before the clearing, and the window beyond the clearing ended where the fringe fell below it. At 0.001
   // (within the typical range) the breeding front was still outside the window when the runs started, and
   // no width was "verified to pin"; at 0.5 the window ended 6 km beyond the clearing and its reflecting
-  // end moved the bracket to 676–686 m. Reference: W* = 596.1 m (phase plane, SCIENCE.md §5.3, G1).
+  // end moved the bracket to 676–686 m. Reference: W* = 596.1 m (phase plane, methods note §5.3, G1).
   for (const detectionLevel of [0.001, 0.5]) {
     it(`detection level ${detectionLevel}: the bracket still contains W*`, () => {
       const s = scenario({

@@ -23,7 +23,7 @@ function synthetic(pest: Record<string, unknown>, widthM: number, horizonYears: 
   );
 }
 
-// Cubic (Nagumo) growth, D = r = 1, a = 0.25, gap D = 1, m = 1, α = ½: W* = 596.1 m (SCIENCE.md §5.3, G1).
+// Cubic (Nagumo) growth, D = r = 1, a = 0.25, gap D = 1, m = 1, α = ½: W* = 596.1 m (methods note (server/numerics/README.md) §5.3, G1).
 const cubic = { growth: { form: 'allee-cubic', rate: 1, alleeThreshold: 0.25 } };
 
 describe('barrier verdicts on synthetic cases (the four outcomes)', () => {
@@ -155,7 +155,7 @@ describe('baseline shared between options', () => {
 describe('critical width wherever the clearing lies', () => {
   // Regression: host forest "beyond" the clearing was judged by each segment's midpoint, so a cut beyond the
   // middle of a long single stand, or a front moving left, was told "no strong Allee effect".
-  // Reference: the phase-plane criterion (SCIENCE.md §5.3) for cubic growth, D = r = 1, a = 0.25, gap D = 1,
+  // Reference: the phase-plane criterion (methods note §5.3) for cubic growth, D = r = 1, a = 0.25, gap D = 1,
   // m = 1, α = ½ gives W* = 596.1 m (G1); the bisection bracket must contain it on either side.
   const s = synthetic(cubic, 800, 40, {
     title: 'outbreak in the middle',
@@ -193,7 +193,7 @@ describe('a pest whose front cannot advance is never "held"', () => {
 });
 
 describe('mate-finding without crowding, hosts eaten: an Allee threshold without a carrying capacity', () => {
-  // P(u) = 1 − e^(−u/θ), b = 3, m = 1, θ = 0.1, γ = 0: threshold −θ ln(1 − m/b) = 0.0405 (SCIENCE.md §5.2, own
+  // P(u) = 1 − e^(−u/θ), b = 3, m = 1, θ = 0.1, γ = 0: threshold −θ ln(1 − m/b) = 0.0405 (methods note §5.2, own
   // algebra) but no capacity; hosts eaten at c = 0.5 bound the population. Regression: this was reported as
   // "no strong Allee effect", so no width could ever hold.
   const mf = { growth: { form: 'mate-finding', birthRate: 3, deathRate: 1, crowding: 0, mating: 'exponential', mateScale: 0.1 }, hostKillRate: 0.5, mortalityOpen: 4, edgePreferenceOpen: 0.8 };

@@ -10,7 +10,7 @@ import { expectAllClose } from '../helpers/close.ts';
  * Bypass probability checks. Formula: Poisson-process thinning in the stratified-dispersal framing of
  * Shigesada, Kawasaki & Takeda (1995, Am. Nat. 146:229–251): introductions at rate σ per km² per yr, each
  * kept independently with probability q·S(distance)·p, form a Poisson process again, so
- * P(at least one established beyond the barrier by T) = 1 − exp(−Λ(T)). Check values B1–B3: SCIENCE.md §7.2
+ * P(at least one established beyond the barrier by T) = 1 − exp(−Λ(T)). Check values B1–B3: the methods note (server/numerics/README.md) §7.2
  * (own formulas, verified there by Monte Carlo).
  */
 
@@ -31,11 +31,11 @@ function trackSynthetic(
     for (let i = 0; i < grid.nCells; i++) u[i] = infested(t, grid.centersKm[i]) ? 1 : 0;
   };
   fill(0);
-  tracker.initialize({ t: 0, u, h: u, stepIndex: 0 });
+  tracker.initialize({ t: 0, tPrevious: 0, u, h: u });
   const n = Math.round(tEnd / dt);
   for (let k = 1; k <= n; k++) {
     fill(k * dt);
-    tracker.handle({ t: k * dt, u, h: u, stepIndex: k });
+    tracker.handle({ t: k * dt, tPrevious: (k - 1) * dt, u, h: u });
   }
   return tracker.total();
 }
@@ -62,7 +62,7 @@ describe('survival kernels', () => {
   });
 });
 
-describe('bypass probability against SCIENCE.md §7.2 check values', () => {
+describe('bypass probability against methods note §7.2 check values', () => {
   it('B1: static point source (front at d = 2 km, W = 2 km, μ = 5 km, T = 10 yr) gives P = 0.286089', () => {
     // A point source of λ = 0.5/yr is an infested strip of length ℓ → 0 with σ·b·ℓ = λ; here ℓ = 1 mm.
     const ell = 1e-6;
@@ -80,7 +80,7 @@ describe('bypass probability against SCIENCE.md §7.2 check values', () => {
       (_t, x) => x < 0,
     );
     // Exact for the strip: Λ = λ q p T (μ/ℓ) e^(−(d+W)/μ)(1 − e^(−ℓ/μ)) → 0.336997 as ℓ → 0.
-    expectAllClose(Lambda, 0.336997, { rtol: 2e-6 }); // 6 digits as printed in SCIENCE.md; ℓ/μ = 2e-7 shift
+    expectAllClose(Lambda, 0.336997, { rtol: 2e-6 }); // 6 digits as printed in the methods note; ℓ/μ = 2e-7 shift
     expectAllClose(atLeastOne(Lambda), 0.286089, { rtol: 2e-6 });
   });
 

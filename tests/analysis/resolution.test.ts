@@ -59,7 +59,7 @@ describe('automatic resolution: default vs cells and steps halved', () => {
 
   it('near a pinning threshold (clearing 7.7 % narrower than the critical width) the crossing time agrees to 0.5 %', () => {
     // Allee cubic D = r = 1, a = 0.25, clearing with D = 1, m = 1, α = ½: critical width W* = 0.596095 km
-    // (SCIENCE §5.3, computed by the first-integral criterion). At 0.55 km the front crosses after ~103 yr.
+    // (methods note (server/numerics/README.md) §5.3, computed by the first-integral criterion). At 0.55 km the front crosses after ~103 yr.
     // Near W* the crossing time is ill-conditioned: it scales like (W* − W)^(−1/2), so a relative shift
     // δ of the discrete threshold moves it by δ·W*/(2(W* − W)) — 6.5× here. Measured at the default
     // resolution: 0.07 % at 0.45 km (crossing ~60 yr), 0.45 % at 0.55 km, 1.4 % at 0.58 km (~171 yr), all from

@@ -31,12 +31,12 @@ describe('front and arrival trackers on an exact exponential leading edge', () =
     const front = new FrontTracker(grid, level);
     const dt = 0.001;
     let u = profile(0);
-    tracker.initialize({ t: 0, u, h: u, stepIndex: 0 });
-    front.initialize({ t: 0, u, h: u, stepIndex: 0 });
+    tracker.initialize({ t: 0, tPrevious: 0, u, h: u });
+    front.initialize({ t: 0, tPrevious: 0, u, h: u });
     for (let k = 1; k <= 12000; k++) {
       u = profile(k * dt);
-      tracker.handle({ t: k * dt, u, h: u, stepIndex: k });
-      front.handle({ t: k * dt, u, h: u, stepIndex: k });
+      tracker.handle({ t: k * dt, tPrevious: (k - 1) * dt, u, h: u });
+      front.handle({ t: k * dt, tPrevious: (k - 1) * dt, u, h: u });
     }
     const exact = sites.map((x) => (x - 2 + Math.log(level) / s) / c);
     // Linear interpolation in time of an exponential in t: error ≤ (s c dt)²/8 × e-folding time ≈ 1e-7 yr.

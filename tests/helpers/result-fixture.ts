@@ -141,7 +141,7 @@ function syntheticRun(scenario: Scenario, clearing: { fromKm: number; toKm: numb
     ],
     host: { remainingFraction: 0.8, stemsKilledPerKm: 12000 },
     endYears: FIXTURE_HORIZON,
-    numerics: { status: 'completed', message: 'reached the horizon', nCells: 1200, cellKmMin: 0.01, cellKmMax: 0.05, stepYears: 0.01, autoCell: true, autoStep: true, steps: 4000, fallbackSteps: 0, reactionSubsteps: 0, wallMs: 100 },
+    numerics: { status: 'completed', message: 'reached the horizon', nCells: 1200, cellKmMin: 0.01, cellKmMax: 0.05, stepYears: 0.01, autoCell: true, autoStep: true, steps: 4000, rejectedSteps: 0, stepControl: 'fixed', fallbackSteps: 0, reactionSubsteps: 0, wallMs: 100 },
   };
 }
 

@@ -2,10 +2,10 @@
  * Growth forms (server/model/growth.ts). Sources beside each check:
  * - logistic r u (h − u): Verhulst's logistic, with h = 1 the Fisher–KPP reaction (Fisher 1937; KPP 1937);
  * - cubic r u (h − u)(u − a h): with h = 1 the Nagumo form used for Allee effects (Lewis & Kareiva 1993);
- *   maximum per-capita rate r(1 − a)²/4 at u = (1 + a)/2 (SCIENCE §5.1, own algebra);
+ *   maximum per-capita rate r(1 − a)²/4 at u = (1 + a)/2 (methods note (server/numerics/README.md) §5.1, own algebra);
  * - mate finding u (b h P(u) − m − γ u), P = u/(θ + u) or 1 − e^{−u/θ} (Dennis 1989; McCarthy 1997 [MEM]):
  *   thresholds θ m/(b − m) and −θ ln(1 − m/b), check values 1 and ln 2 for b = 2, m = 1, θ = 1; with crowding a
- *   positive equilibrium exists iff b > (√m + √(γθ))² (SCIENCE §5.2, own algebra, re-derived in the tests).
+ *   positive equilibrium exists iff b > (√m + √(γθ))² (methods note §5.2, own algebra, re-derived in the tests).
  */
 import { describe, expect, it } from 'vitest';
 import {
@@ -54,7 +54,7 @@ describe('per-capita rates follow the published forms, with the host fraction h 
     expect(matingProbability(logistic, 0.3)).toBe(1);
   });
 
-  it('cubic: largest per-capita rate r(1 − a)²/4 at u = (1 + a)/2 (SCIENCE §5.1)', () => {
+  it('cubic: largest per-capita rate r(1 − a)²/4 at u = (1 + a)/2 (methods note §5.1)', () => {
     const g = perCapitaRate(cubic);
     let best = -Infinity;
     let at = 0;
@@ -76,7 +76,7 @@ describe('low-density rates and Allee thresholds', () => {
     expect(lowDensityRate(mate('exponential'))).toBe(-1);
   });
 
-  it('check values b = 2, m = 1, θ = 1: threshold 1 for u/(θ + u) and ln 2 for 1 − e^{−u/θ} (SCIENCE §5.2)', () => {
+  it('check values b = 2, m = 1, θ = 1: threshold 1 for u/(θ + u) and ln 2 for 1 − e^{−u/θ} (methods note §5.2)', () => {
     expectAllClose(alleeThreshold(mate('saturating'))!, 1, { rtol: 1e-12 });
     expectAllClose(alleeThreshold(mate('exponential'))!, Math.LN2, { rtol: 1e-9 });
     expectAllClose(0.693147, Math.LN2, { rtol: 1e-6 });

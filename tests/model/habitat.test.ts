@@ -1,8 +1,8 @@
 /**
  * Habitat coefficients (server/model/habitat.ts): the edge rule of a random walk with edge preference,
  * u(right)/u(left) = ((1 − α)/α)·(D_left/D_right), α = probability of stepping into the left habitat
- * (Ovaskainen & Cornell 2003; Maciel & Lutscher 2013; SCIENCE §1). With three habitat types the pairwise
- * jumps must multiply to 1 around a cycle (SCIENCE §1.2), which the edge weights w (ρ = w/D) guarantee.
+ * (Ovaskainen & Cornell 2003; Maciel & Lutscher 2013; methods note (server/numerics/README.md) §1). With three habitat types the pairwise
+ * jumps must multiply to 1 around a cycle (methods note §1.2), which the edge weights w (ρ = w/D) guarantee.
  */
 import { describe, expect, it } from 'vitest';
 import { habitatCoefficients, jumpRatio } from '../../server/model/habitat.ts';

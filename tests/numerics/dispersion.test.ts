@@ -3,7 +3,7 @@ import { expectAllClose, orderTable } from '../helpers/close.ts';
 import { blochEigenvalue, homogenised, spreadingSpeed, twistedPeriodicEigenvalue, type Patch } from '../../server/numerics/dispersion.ts';
 
 /**
- * Worked sets S1–S4 (SCIENCE.md §2.2, computed independently there; dispersion relation: Shigesada,
+ * Worked sets S1–S4 (methods note (server/numerics/README.md) §2.2, computed independently there; dispersion relation: Shigesada,
  * Kawasaki & Teramoto 1986, generalised with the edge matching condition of Ovaskainen & Cornell 2003 /
  * Maciel & Lutscher 2013): l1 = l2 = 1 km, D1 = 1, ε1 = 1, ε2 = −0.5; jump k = ρ_gap/ρ_forest.
  */
@@ -79,7 +79,7 @@ describe('dispersion relation (transfer matrices)', () => {
     expectAllClose(spreadingSpeed(p).speed!, 2 * Math.sqrt(0.3 * 0.8), { rtol: 1e-9 });
   });
 
-  it('consumer–resource example (SCIENCE.md §6.2): gaps speed spread up with α = ½, slow it with continuous density', () => {
+  it('consumer–resource example (methods note §6.2): gaps speed spread up with α = ½, slow it with continuous density', () => {
     // Linearisation ε_forest = b h0 − m = 1.8, ε_gap = −0.2; forest l = 1, D = 1; gap l = 1, D = 10.
     const cr = (k: number): Patch[] => [
       { lengthKm: 1, diffusion: 1, residence: 1, rate: 1.8 },
@@ -102,7 +102,7 @@ describe('twisted-periodic principal eigenvalue (ml-matrix) as an independent ch
     const errors = cells.map((n) => Math.abs(twistedPeriodicEigenvalue(set(4, 1), 0.5, n) - exact));
     orderTable('twisted-periodic eigenvalue vs dispersion relation, S1, s = 0.5', cells.map((n) => 1 / n), errors);
     const order = Math.log2(errors[1] / errors[2]);
-    // Interfaces on faces: second order (SCIENCE.md §2.2 quotes 4× per halving).
+    // Interfaces on faces: second order (methods note §2.2 quotes 4× per halving).
     expect(order).toBeGreaterThan(1.8);
     expect(order).toBeLessThan(2.3);
   });

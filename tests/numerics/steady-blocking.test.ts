@@ -18,7 +18,7 @@ function problem(d2: number, m: number, alpha: number): BlockingProblem {
 }
 
 describe('phase-plane (first-integral) critical gap width', () => {
-  // Check values G1–G4: SCIENCE.md §5.3, computed independently (first-integral criterion by two
+  // Check values G1–G4: the methods note (server/numerics/README.md) §5.3, computed independently (first-integral criterion by two
   // root-finding routes; PDE brackets). Method: first integrals of D u'' + f = 0 with the edge
   // conditions of Ovaskainen & Cornell (2003) / Maciel & Lutscher (2013).
   const cases: [string, number, number, number, number][] = [
@@ -183,7 +183,7 @@ describe('Newton steady states of the finite-volume model match the phase-plane 
     expect(unstable[0]).toEqual([1, 1, 1]);
     for (const e of errors) {
       const order = Math.log2(e[1] / e[2]);
-      // Interfaces on faces: second order expected (SCIENCE.md §9.1); allow 1.7–2.5.
+      // Interfaces on faces: second order expected (methods note §9.1); allow 1.7–2.5.
       expect(order).toBeGreaterThan(1.7);
       expect(order).toBeLessThan(2.5);
     }

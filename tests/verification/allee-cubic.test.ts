@@ -17,7 +17,7 @@ const speedOf = (D: number, r: number, a: number, s: number) => s * Math.sqrt(2 
 
 describe('strong-Allee cubic front speed √(2rD)(½ − a) (McKean 1970; Lewis & Kareiva 1993)', () => {
   const cases = [
-    { label: 'D = r = 1, a = 0.25 (check value 0.353553, SCIENCE §5.1)', D: 1, r: 1, a: 0.25, s: 1 },
+    { label: 'D = r = 1, a = 0.25 (check value 0.353553, methods note (server/numerics/README.md) §5.1)', D: 1, r: 1, a: 0.25, s: 1 },
     { label: 'D = 0.5, r = 2, a = 0.1, stocking 0.64 (per-capita terms use h)', D: 0.5, r: 2, a: 0.1, s: 0.64 },
   ];
   for (const c of cases) {

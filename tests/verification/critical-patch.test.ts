@@ -5,7 +5,7 @@
  * - A patch inside a clearing with mortality m, movement D2 and edge preference α (probability of stepping
  *   back into the patch): L* = 2√(D1/r)·arctan(((1 − α)/α)·√(m D1/(r D2))), the Skellam problem with the
  *   edge conditions of Ovaskainen & Cornell (2003) / Maciel & Lutscher (2013); closed form and check values
- *   C1–C4 in SCIENCE §4 (own derivation there, computed independently by a finite-volume eigenvalue).
+ *   C1–C4 in the methods note (server/numerics/README.md) §4 (own derivation there, computed independently by a finite-volume eigenvalue).
  * Checked two ways: (i) persistence or extinction in full runs of the engine at 0.9× and 1.1× L*;
  * (ii) the critical length of the engine's own discretised operator (principal eigenvalue = 0, by Sturm
  * counts and bisection on L) against the closed form.
@@ -37,7 +37,7 @@ interface ClearingCase {
   alpha: number;
   expected: number;
 }
-/** Closed form of SCIENCE §4 with D1 = r = 1. */
+/** Closed form of methods note §4 with D1 = r = 1. */
 const closedForm = (c: Omit<ClearingCase, 'expected' | 'label'>) => 2 * Math.atan(((1 - c.alpha) / c.alpha) * Math.sqrt(c.m / c.D2));
 
 /** Host patch of length L (D1 = r = 1) between two clearings of ten decay lengths √(D2/m) each. */
@@ -108,7 +108,7 @@ describe('critical patch size with lethal surroundings, π√(D/r) (Skellam 1951
   }
 });
 
-describe('critical patch inside a clearing with mortality and edge preference (closed form and C1–C4, SCIENCE §4)', () => {
+describe('critical patch inside a clearing with mortality and edge preference (closed form and C1–C4, methods note §4)', () => {
   const cases: ClearingCase[] = [
     { label: 'C1: D2 = 1, m = 1, α = ½ (k = 1)', D2: 1, m: 1, alpha: 0.5, expected: 1.570796 },
     { label: 'C2: D2 = 4, m = 1, α = ½ (k = 0.25)', D2: 4, m: 1, alpha: 0.5, expected: 0.927295 },

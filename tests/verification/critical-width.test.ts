@@ -5,7 +5,7 @@ import { criticalWidth } from '../../server/analysis/barrier.ts';
 
 /**
  * Critical width by bisection on full-model runs against the first-integral (phase-plane) blocking
- * criterion (SCIENCE.md §5.3; check values G1–G4 computed independently there). Cubic (Nagumo) growth,
+ * criterion (methods note (server/numerics/README.md) §5.3; check values G1–G4 computed independently there). Cubic (Nagumo) growth,
  * D_forest = r = 1, a = 0.25, host depletion off. Edge condition: Ovaskainen & Cornell (2003); Maciel &
  * Lutscher (2013).
  */

@@ -4,10 +4,10 @@
  * is the diffusive S–I–removal structure (h plays "susceptible"). Published results used here:
  * - a travelling pulse in u with a monotone host front; its speed is linearly determined,
  *   c* = 2√(D (b h0 − m)) (Diekmann 1978, J. Math. Biol. 6:109–130; Källén, Arcuri & Murray 1985,
- *   J. Theor. Biol. 116:377–393 for the rabies analogue) [MEM for the exact statements; SCIENCE §6];
+ *   J. Theor. Biol. 116:377–393 for the rabies analogue) [MEM for the exact statements; methods note (server/numerics/README.md) §6];
  * - the host fraction left behind, z = h∞/h0, solves the Kermack–McKendrick final-size relation
  *   R0 (1 − z) = −ln z with R0 = b h0 / m (Kermack & McKendrick 1927, Proc. R. Soc. A 115:700–721),
- *   independent of c and D. SCIENCE §6.2 check values (computed): c* = 2, z = 0.203188 for D = 1, b = 2,
+ *   independent of c and D. methods note §6.2 check values (computed): c* = 2, z = 0.203188 for D = 1, b = 2,
  *   h0 = 1, m = 1, c = 1.
  */
 import { describe, expect, it } from 'vitest';
@@ -77,12 +77,12 @@ function runCase(k: Case) {
 }
 
 describe('host depletion: travelling pulse, linear speed 2√(D(b·h0 − m)), Kermack–McKendrick final size', () => {
-  it('the final-size root used below reproduces the SCIENCE §6.2 check value z = 0.203188 for R0 = 2', () => {
+  it('the final-size root used below reproduces the methods note §6.2 check value z = 0.203188 for R0 = 2', () => {
     expectAllClose(finalSize(2), 0.203188, { rtol: 3e-6 });
   });
 
   const cases: Case[] = [
-    { label: 'D = 1, b = 2, m = 1, c = 1, h0 = 1 (SCIENCE §6.2: c* = 2, z = 0.203188)', D: 1, b: 2, m: 1, c: 1, h0: 1, years: 120 },
+    { label: 'D = 1, b = 2, m = 1, c = 1, h0 = 1 (methods note §6.2: c* = 2, z = 0.203188)', D: 1, b: 2, m: 1, c: 1, h0: 1, years: 120 },
     { label: 'D = 0.5, b = 3, m = 1, c = 2, h0 = 0.8 (R0 = 2.4)', D: 0.5, b: 3, m: 1, c: 2, h0: 0.8, years: 100 },
   ];
   for (const k of cases) {

@@ -2,7 +2,7 @@
  * Habitat edges: flux continuity and the density jump of a random walk with edge preference,
  *   u(right)/u(left) = ((1 − α)/α)·(D_left/D_right),   α = probability of stepping into the left habitat
  * (Ovaskainen & Cornell 2003, J. Appl. Probab. 40:557–580; Maciel & Lutscher 2013, Am. Nat. 182:42–52;
- * convention and check values in SCIENCE §1: D_L = 1, D_R = 0.25, α = 0.7 gives k = 1.7142857143, long-time
+ * convention and check values in the methods note (server/numerics/README.md) §1: D_L = 1, D_R = 0.25, α = 0.7 gives k = 1.7142857143, long-time
  * mass fraction on the right k/(1 + k) = 0.631579, and for a Gaussian start (x0 = −0.5, σ = 0.1) on
  * [−1, 1] the mass on the right at t = 0.1 is 0.127519 (computed independently; the continuous-density
  * model gives 0.092097 instead).
@@ -76,14 +76,14 @@ function edgeCells(p: TransectProblem): [number, number] {
 }
 
 describe('habitat edges: jump condition, flux continuity, conservation (Ovaskainen & Cornell 2003; Maciel & Lutscher 2013)', () => {
-  it('the model maps α = 0.7, D_L = 1, D_R = 0.25 to the jump k = 1.7142857143 (SCIENCE §1.3)', () => {
+  it('the model maps α = 0.7, D_L = 1, D_R = 0.25 to the jump k = 1.7142857143 (methods note §1.3)', () => {
     const s = twoHabitats(0.7);
     expectAllClose(jumpRatio(s.pest, 'host-forest', 'clearing'), 1.7142857143, { rtol: 1e-10 });
     // The same physical rule seen from the other side of a clearing: u_forest/u_gap = 1/k.
     expectAllClose(jumpRatio(s.pest, 'clearing', 'host-forest'), 1 / 1.7142857143, { rtol: 1e-10 });
   });
 
-  it('an independent lattice random walk with edge choice α has the same stationary jump (SCIENCE §1.1 derivation)', () => {
+  it('an independent lattice random walk with edge choice α has the same stationary jump (methods note §1.1 derivation)', () => {
     // Sites at spacing a; left of the edge node jumps at rate 2 D_L/a² (half each way), right at 2 D_R/a²; the
     // edge node jumps at an arbitrary rate g0, left with probability α. A birth–death chain: detailed balance
     // π_{j+1}/π_j = rate(j → j+1) / rate(j+1 → j) gives the stationary law exactly.

@@ -21,8 +21,8 @@ function pestScenario(pest: Record<string, unknown>) {
 }
 
 describe('simulated front speed in a long mosaic vs the dispersion relation (within 2 %)', () => {
-  // S1–S4 (SCIENCE.md §2.2): forest 1 km (D 1, r 1, logistic), gap 1 km (mortality 0.5). Dispersion relation:
-  // Shigesada, Kawasaki & Teramoto (1986) with the edge condition; log-corrected fit (Bramson 1983; SCIENCE §9.3).
+  // S1–S4 (methods note (server/numerics/README.md) §2.2): forest 1 km (D 1, r 1, logistic), gap 1 km (mortality 0.5). Dispersion relation:
+  // Shigesada, Kawasaki & Teramoto (1986) with the edge condition; log-corrected fit (Bramson 1983; methods note §9.3).
   const cases: [string, number, number, number][] = [
     ['S1', 4, 0.2, 1.366076],
     ['S2', 4, 0.8, 1.747394],
@@ -39,7 +39,7 @@ describe('simulated front speed in a long mosaic vs the dispersion relation (wit
     });
   }
 
-  it('consumer–resource with host depletion in a forest/gap pattern (SCIENCE.md §6.2): c* = 3.46516', () => {
+  it('consumer–resource with host depletion in a forest/gap pattern (methods note §6.2): c* = 3.46516', () => {
     // u' = u(b h − m), h' = −c u h in forest (b = 2, m = 0.2); gap D = 10, mortality 0.2, α = ½.
     const s = pestScenario({
       growth: { form: 'mate-finding', birthRate: 2, deathRate: 0.2, crowding: 0, mating: 'none' },

@@ -3,7 +3,7 @@
  * (tests/verification/reference/interface_mol.py: Chebyshev collocation per habitat with the edge conditions
  * as algebraic rows, scipy.integrate.solve_ivp Radau at rtol 1e-11) and by the engine (finite volumes in
  * residence-index form, coupled TR-BDF2). Edge conditions: Ovaskainen & Cornell (2003); Maciel & Lutscher
- * (2013); SCIENCE §1. Skips, visibly, where python3 or scipy is missing.
+ * (2013); methods note (server/numerics/README.md) §1. Skips, visibly, where python3 or scipy is missing.
  */
 import { describe, expect, it } from 'vitest';
 import { spawnSync } from 'node:child_process';
@@ -104,12 +104,12 @@ const growthProblem: EdgeProblem = { left: -2, right: 1, DL: 1, DR: 0.25, alpha:
 const TIMES = [0.5, 1, 2];
 
 describe.skipIf(!haveScipy)('cross-check against scipy solve_ivp (Chebyshev method of lines, independent of the engine; skipped without python3/scipy)', () => {
-  it('transient check value of SCIENCE §1.3 (growth off): mass right of the edge at t = 0.1', () => {
+  it('transient check value of methods note §1.3 (growth off): mass right of the edge at t = 0.1', () => {
     const p: EdgeProblem = { left: -1, right: 1, DL: 1, DR: 0.25, alpha: 0.7, growthRate: 0, mortality: 0, x0: -0.5, sigma: 0.1, amplitude: 1 / (0.1 * Math.sqrt(2 * Math.PI)) };
     const ref = reference({ problem: { ...p, NL: 64, NR: 48 }, times: [0.1], xs: [] });
     const ours = engine(p, [0.1], 0.0025, 2.5e-5);
     const oursRight = ours.mass(ours.snapshots[0], true);
-    console.log(`mass right at t = 0.1: scipy ${ref.massRight[0].toFixed(8)} (${ref.method}), engine ${oursRight.toFixed(8)}, SCIENCE §1.3 0.127519`);
+    console.log(`mass right at t = 0.1: scipy ${ref.massRight[0].toFixed(8)} (${ref.method}), engine ${oursRight.toFixed(8)}, methods note §1.3 0.127519`);
     // Engine: second order, dx = 0.0025: self-convergence puts its error at ≈ 1.6e-6 (1.3e-5 relative).
     expect(Math.abs(oursRight - ref.massRight[0]) / ref.massRight[0]).toBeLessThan(3e-5);
     expect(Math.abs(ref.massRight[0] - 0.127519) / 0.127519).toBeLessThan(5e-5);

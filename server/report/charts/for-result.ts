@@ -11,7 +11,6 @@ import { spaceTimeChart } from './space-time.ts';
 import { widthDelayChart } from './width-delay.ts';
 import { dispersionCurveChart, mosaicSpeedChart } from './mosaic.ts';
 import { transectStrip } from './transect.ts';
-import { uncertaintyCharts } from './uncertainty.ts';
 import { optionKey } from './styles.ts';
 
 export type ChartGroup = 'transect' | 'fronts' | 'width-delay' | 'host' | 'space-time' | 'mosaic' | 'uncertainty';
@@ -48,6 +47,5 @@ export function chartsForResult(doc: ResultDocument, size: ChartSize = {}): Resu
     const c = dispersionCurveChart(m, size);
     if (c) out.push({ id: `dispersion-${i + 1}`, group: 'mosaic', chart: c });
   });
-  uncertaintyCharts(doc).forEach((c, i) => out.push({ id: `uncertainty-${i + 1}`, group: 'uncertainty', chart: c }));
   return out;
 }

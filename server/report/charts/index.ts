@@ -4,10 +4,9 @@
  * d3-scale and d3-shape, no DOM. Axes carry units; series differ in dash, marker and letter key as well as
  * colour, so charts read in greyscale. All text is escaped.
  *
- * Extension point — uncertainty and sensitivity charts: add a module here (e.g. `uncertainty.ts`) built from
- * `frame.ts` (axes, legend, label spreading), `styles.ts` (option keys and styles, the same as in every other
- * chart) and `svg.ts` (escaping, elements), and return its charts from `uncertaintyCharts` in uncertainty.ts:
- * `chartsForResult` (web page) and the briefing pick them up from there. See README.md in this folder.
+ * A new chart is a module here built from `frame.ts` (axes, legend, label spreading), `styles.ts` (option
+ * keys and styles, the same as in every other chart) and `svg.ts` (escaping, elements), listed in
+ * `chartsForResult` (web page) and placed by the briefing. See README.md in this folder.
  */
 export type { Chart, ChartSize, Box, LegendEntry } from './frame.ts';
 export { axisBottom, axisLeft, legend, spreadLabels, emptyPanel, DEFAULT_WIDTH } from './frame.ts';
@@ -19,5 +18,4 @@ export { hostProfileChart, type HostChartInput } from './host-profile.ts';
 export { widthDelayChart, type WidthDelayInput, type WidthDelayOptions } from './width-delay.ts';
 export { mosaicSpeedChart, dispersionCurveChart } from './mosaic.ts';
 export { transectStrip, scaleBarKm, type TransectInput } from './transect.ts';
-export { uncertaintyCharts } from './uncertainty.ts';
 export { chartsForResult, type ResultChart, type ChartGroup } from './for-result.ts';

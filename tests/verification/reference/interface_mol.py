@@ -4,7 +4,7 @@
 Method of lines with Chebyshev collocation in each habitat (spectral accuracy, no finite volumes) and
 scipy.integrate.solve_ivp (Radau, tight tolerances) in time. At the edge the two conditions of the
 edge-preference random walk are imposed as algebraic rows (Ovaskainen & Cornell 2003; Maciel & Lutscher
-2013; convention of SCIENCE.md section 1):
+2013; convention of the methods note, server/numerics/README.md §1):
     flux continuity   D_L u_x(0-) = D_R u_x(0+)
     density jump      u(0+) = k u(0-),  k = (1 - alpha) D_L / (alpha D_R),
 and zero flux at the outer ends. Chebyshev differentiation matrices: Trefethen (2000), Spectral Methods
