@@ -91,7 +91,7 @@ describe('radial spread from a point release (Fisher–KPP in 2-D)', () => {
         `log coefficient fitted with speed free ${kFit.toFixed(3)}, with speed 2√(rD) ${kFixedSpeed.toFixed(3)} (theory ${kTheory}); ` +
         `largest axis/diagonal radius difference ${(isotropy * 100).toFixed(2)} %`,
     );
-    // Raw fits of pulled fronts are a few per cent low (SCIENCE-style observation: the log lag).
+    // Raw fits of pulled fronts are a few per cent low (the log lag; a 1-D fit shows the same).
     expect((cTheory - raw) / cTheory).toBeGreaterThan(0.02);
     // The corrected speed: remaining O(1/t) terms and the grid's own speed (+0.17 % at h = 0.2 λ*⁻¹).
     expect(Math.abs(corrected - cTheory) / cTheory).toBeLessThan(0.01);

@@ -87,7 +87,7 @@ describe('transect equivalence: a strip map uniform across is the transect', () 
 });
 
 describe('transect equivalence: critical width of a strip', () => {
-  // Cubic Allee pest of SCIENCE §5.3 set G1 (D1 = D2 = r = m = 1, a = 0.25, no edge preference): W* = 596 m
+  // Cubic Allee pest of check set G1 in server/numerics/README.md (D1 = D2 = r = m = 1, a = 0.25, no edge preference): W* = 596 m
   // (first-integral criterion, computed independently there).
   const pest = testPest({ diffusionHost: 1, diffusionOpen: 1, edgePreferenceOpen: 0.5, mortalityOpen: 1, growth: { form: 'allee-cubic', rate: 1, alleeThreshold: 0.25 } });
   const s = testScenario({
