@@ -24,7 +24,7 @@
  *
  * Results do not depend on threads: the step is sequential and its order of operations fixed.
  */
-import { applyRasterOperator, type RasterOperator, type Window } from './operator.ts';
+import type { RasterOperator, Window } from './operator.ts';
 
 /** Per-capita growth g(u, h) in host cells [1/yr]. */
 export type RasterPerCapita = (u: number, h: number) => number;
@@ -90,9 +90,9 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
   // Thomas factors of the column lines (all columns of the window swept together, row by row, so that
   // memory is read in raster order) and scratch for the row lines.
   const colCp = new Float64Array(n);
-  const colInv = new Float64Array(n);
   const rowCp = new Float64Array(nx);
-  const rowInv = new Float64Array(nx);
+  const zeros = new Float64Array(n);
+  const sinks = new Float64Array(n);
   const counters: RasterCounters = { steps: 0, substeps: 0, fallbackSteps: 0, activeCellsMax: 0 };
   const theta = 0.5 * GAMMA;
   const cStar = 1 / (GAMMA * (2 - GAMMA));
@@ -149,62 +149,107 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
   }
 
   /**
-   * out = Px⁻¹ rhs on every row of the window, Px = I − tau (Lx + diag(g)), g = rate (or only its negative
-   * part when `sinksOnly`, or nothing when `noRates`). `out` may alias `rhs`.
+   * out = Px⁻¹ rhs on every row of the window, Px = I − tau (Lx + diag(g)) (g: the frozen rates, their
+   * negative part, or zeros). `out` may alias `rhs`.
    */
-  function rowSolve(tau: number, rhs: Float64Array, out: Float64Array, mode: 'rates' | 'sinks' | 'none'): void {
+  function rowSolve(tau: number, rhs: Float64Array, out: Float64Array, g: Float64Array): void {
     const { r0, r1, c0, c1 } = w!;
     for (let r = r0; r <= r1; r++) {
       const base = r * nx;
+      const first = base + c0;
+      const last = base + c1;
       let cpPrev = 0;
       let y = 0;
-      for (let q = c0; q <= c1; q++) {
-        const k = base + q;
-        const gw = q > c0 ? gx[k - 1] : 0;
-        const ge = q < c1 ? gx[k] : 0;
-        const g = mode === 'rates' ? rate[k] : mode === 'sinks' ? Math.min(rate[k], 0) : 0;
-        const a = q > c0 ? -tau * gw * ir[k - 1] : 0;
-        const piv = 1 + tau * ((gw + ge + lethalX[k]) * ir[k] - g) - a * cpPrev;
+      let gw = 0;
+      let aw = 0;
+      for (let k = first; k <= last; k++) {
+        const ge = k < last ? gx[k] : 0;
+        const piv = 1 + tau * ((gw + ge + lethalX[k]) * ir[k] - g[k]) - aw * cpPrev;
         const ip = 1 / piv;
-        cpPrev = q < c1 ? -tau * ge * ir[k + 1] * ip : 0;
-        rowCp[q] = cpPrev;
-        rowInv[q] = ip;
-        y = (rhs[k] - a * y) * ip;
+        cpPrev = k < last ? -tau * ge * ir[k + 1] * ip : 0;
+        rowCp[k - base] = cpPrev;
+        y = (rhs[k] - aw * y) * ip;
         out[k] = y;
+        // The next cell's sub-diagonal entry comes from this face.
+        gw = ge;
+        aw = -tau * ge * ir[k];
       }
-      let x = 0;
-      for (let q = c1; q >= c0; q--) {
-        const k = base + q;
-        x = q === c1 ? out[k] : out[k] - rowCp[q] * x;
+      let x = out[last];
+      for (let k = last - 1; k >= first; k--) {
+        x = out[k] - rowCp[k - base] * x;
         out[k] = x;
       }
     }
   }
 
-  /** out = Py⁻¹ rhs on every column of the window, Py = I − tau Ly. `out` may alias `rhs`. */
-  function colSolve(tau: number, rhs: Float64Array, out: Float64Array): void {
+  /**
+   * Py⁻¹ rhs on every column of the window, Py = I − tau Ly, written to `out`; when `add` is given,
+   * `sum = add + Py⁻¹ rhs` is written too (fused into the back substitution). `out` may alias `rhs`.
+   */
+  function colSolve(tau: number, rhs: Float64Array, out: Float64Array, add?: Float64Array, sum?: Float64Array): void {
     const { r0, r1, c0, c1 } = w!;
     for (let r = r0; r <= r1; r++) {
       const base = r * nx;
-      for (let q = c0; q <= c1; q++) {
-        const k = base + q;
-        const gn = r > r0 ? gy[k - nx] : 0;
-        const gs = r < r1 ? gy[k] : 0;
-        const a = r > r0 ? -tau * gn * ir[k - nx] : 0;
-        const cpPrev = r > r0 ? colCp[k - nx] : 0;
-        const yPrev = r > r0 ? out[k - nx] : 0;
-        const piv = 1 + tau * (gn + gs + lethalY[k]) * ir[k] - a * cpPrev;
-        const ip = 1 / piv;
-        colCp[k] = r < r1 ? -tau * gs * ir[k + nx] * ip : 0;
-        colInv[k] = ip;
-        out[k] = (rhs[k] - a * yPrev) * ip;
+      const first = base + c0;
+      const last = base + c1;
+      const south = r < r1;
+      if (r === r0) {
+        for (let k = first; k <= last; k++) {
+          const gs = south ? gy[k] : 0;
+          const ip = 1 / (1 + tau * (gs + lethalY[k]) * ir[k]);
+          colCp[k] = south ? -tau * gs * ir[k + nx] * ip : 0;
+          out[k] = rhs[k] * ip;
+        }
+        continue;
       }
+      for (let k = first; k <= last; k++) {
+        const n0 = k - nx;
+        const gn = gy[n0];
+        const gs = south ? gy[k] : 0;
+        const a = -tau * gn * ir[n0];
+        const ip = 1 / (1 + tau * (gn + gs + lethalY[k]) * ir[k] - a * colCp[n0]);
+        colCp[k] = south ? -tau * gs * ir[k + nx] * ip : 0;
+        out[k] = (rhs[k] - a * out[n0]) * ip;
+      }
+    }
+    if (add && sum) {
+      const lastRow = r1 * nx;
+      for (let k = lastRow + c0; k <= lastRow + c1; k++) sum[k] = add[k] + out[k];
     }
     for (let r = r1 - 1; r >= r0; r--) {
       const base = r * nx;
-      for (let q = c0; q <= c1; q++) {
-        const k = base + q;
-        out[k] -= colCp[k] * out[k + nx];
+      if (add && sum) {
+        for (let k = base + c0; k <= base + c1; k++) {
+          const x = out[k] - colCp[k] * out[k + nx];
+          out[k] = x;
+          sum[k] = add[k] + x;
+        }
+      } else {
+        for (let k = base + c0; k <= base + c1; k++) out[k] -= colCp[k] * out[k + nx];
+      }
+    }
+  }
+
+  /** out = alpha (L u + rate u) + beta u + gamma v on the window (zero-flux at its sides); out ≠ u, v. */
+  function combine(u: Float64Array, alpha: number, beta: number, gamma: number, v: Float64Array, out: Float64Array): void {
+    const { r0, r1, c0, c1 } = w!;
+    for (let r = r0; r <= r1; r++) {
+      const base = r * nx;
+      const first = base + c0;
+      const last = base + c1;
+      const hasN = r > r0;
+      const hasS = r < r1;
+      // Flux through the west face of k, carried over from the east face of k − 1 (same value, one product).
+      let fw = 0;
+      for (let k = first; k <= last; k++) {
+        const vk = u[k] * ir[k];
+        let sNS = 0;
+        if (hasN) sNS += gy[k - nx] * (u[k - nx] * ir[k - nx] - vk);
+        if (hasS) sNS += gy[k] * (u[k + nx] * ir[k + nx] - vk);
+        const fe = k < last ? gx[k] * (u[k + 1] * ir[k + 1] - vk) : 0;
+        const lu = fe - fw + sNS - (lethalX[k] + lethalY[k]) * vk;
+        out[k] = alpha * (lu + rate[k] * u[k]) + beta * u[k] + gamma * v[k];
+        fw = fe;
       }
     }
   }
@@ -226,11 +271,9 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
     // Mid-step predictor ũ = u⁰ + ((I − dt/2 Lx)(I − dt/2 Ly))⁻¹ dt/2 (L + G⁰) u⁰: O(dt²) locally, the
     // transect's predictor (I − dt/2 L)ũ = (1 + dt/2 g⁰)u⁰ where the state is uniform across, and exact at
     // steady states (so that they stay fixed points of the whole step); negative values are read as 0.
-    applyRasterOperator(op, win, u0, mid, rate);
-    for (let r = r0; r <= r1; r++) for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) mid[k] *= halfDt;
-    rowSolve(halfDt, mid, mid, 'none');
-    colSolve(halfDt, mid, mid);
-    for (let r = r0; r <= r1; r++) for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) mid[k] += u0[k];
+    combine(u0, halfDt, 0, 0, u0, work);
+    rowSolve(halfDt, work, work, zeros);
+    colSolve(halfDt, work, work, u0, mid);
     let maxPositive = 0;
     const quarter = 0.25 * c * dt;
     for (let r = r0; r <= r1; r++) {
@@ -253,23 +296,18 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
     if (ok) {
       const tau = theta * dt;
       // Stage 1 (trapezoidal rule over γ dt): x = u⁰ + (Px Py)⁻¹ 2τ A u⁰.
-      applyRasterOperator(op, win, u0, work, rate);
-      for (let r = r0; r <= r1; r++) for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) work[k] *= 2 * tau;
-      rowSolve(tau, work, work, 'rates');
-      colSolve(tau, work, work);
-      for (let r = r0; r <= r1; r++) for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) u[k] = u0[k] + work[k];
+      combine(u0, 2 * tau, 0, 0, u0, work);
+      rowSolve(tau, work, work, rate);
+      colSolve(tau, work, work, u0, u);
       // Stage 2 (BDF2): y = x + (Px Py)⁻¹ (c* x − c_old u⁰ − M x), M x = x − τ A x.
-      applyRasterOperator(op, win, u, tmp, rate);
-      for (let r = r0; r <= r1; r++) {
-        for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) work[k] = (cStar - 1) * u[k] - cOld * u0[k] + tau * tmp[k];
-      }
-      rowSolve(tau, work, work, 'rates');
-      colSolve(tau, work, work);
+      combine(u, tau, cStar - 1, -cOld, u0, work);
+      rowSolve(tau, work, work, rate);
+      colSolve(tau, work, work, u, tmp);
       let min = 0;
       let max = 0;
       for (let r = r0; r <= r1; r++) {
         for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) {
-          const y = u[k] + work[k];
+          const y = tmp[k];
           u[k] = y;
           if (y < min) min = y;
           else if (y > max) max = y;
@@ -284,7 +322,8 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       for (let r = r0; r <= r1; r++) {
         for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) u[k] = (1 + dt * Math.max(rate[k], 0)) * u0[k];
       }
-      rowSolve(dt, u, u, 'sinks');
+      for (let r = r0; r <= r1; r++) for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) sinks[k] = rate[k] < 0 ? rate[k] : 0;
+      rowSolve(dt, u, u, sinks);
       colSolve(dt, u, u);
       for (let r = r0; r <= r1; r++) for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) if (u[k] < 0) u[k] = 0;
       counters.fallbackSteps++;
