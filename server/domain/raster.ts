@@ -36,5 +36,13 @@ export interface RasterLandscape extends RasterGeometry {
   /** Protected sites: name and the cells they cover (a point is one cell). */
   sites: { name: string; cells: Int32Array }[];
   /** Barrier options: id, label and the share of each cell inside the band (0–1). */
-  bands: { id: string; label: string; cover: Float32Array; treatment: 'clearing' | 'nonhost-planting'; areaM2: number }[];
+  bands: {
+    id: string;
+    label: string;
+    cover: Float32Array;
+    treatment: 'clearing' | 'nonhost-planting';
+    areaM2: number;
+    /** Band width across its centre line [m] when the band was given as a centre line and width (used for its 1-D cross-section). */
+    widthM?: number;
+  }[];
 }

@@ -1,0 +1,154 @@
+/**
+ * One 2-D run: the time loop over the raster stepper, recording per cell the first year the density reached
+ * the detection level and the established level, the sites' arrivals, and the occupied area over time.
+ */
+import { CancelledError } from '../../jobs/task-runner.ts';
+import type { LandscapeProblem, PointPest } from './problem.ts';
+import { problemStepper } from './problem.ts';
+import { establishedLevel, smallGroupsFail } from '../barrier-growth.ts';
+import type { LandscapeNumerics } from './result.ts';
+
+export interface RunSettings {
+  horizonYears: number;
+  detectionLevel: number;
+  shouldCancel?: () => boolean;
+  /** Fraction of this run's simulated time done. */
+  onProgress?: (fraction: number) => void;
+  /** Stop early once every site has seen the detection level and the established level (default false). */
+  stopWhenSitesReached?: boolean;
+  /** Record the occupied area every this many years (default 0.5). */
+  seriesEveryYears?: number;
+}
+
+export interface RawRun {
+  /** First year at the detection level per cell (NaN: never). */
+  detected: Float32Array;
+  /** First year at the established level per cell (NaN: never or not host). */
+  established: Float32Array;
+  u: Float64Array;
+  h: Float64Array;
+  series: { timesYears: number[]; occupiedKm2: number[]; totalInsects: number[] };
+  endYears: number;
+  numerics: LandscapeNumerics;
+}
+
+/** Established level per raster cell (Infinity where not host). */
+export function establishedAtCells(p: LandscapeProblem, pest: PointPest): Float64Array {
+  const n = p.hostAtCells.length;
+  const out = new Float64Array(n).fill(Infinity);
+  const cache = new Map<number, number>();
+  for (let k = 0; k < n; k++) {
+    if (!p.hostAtCells[k]) continue;
+    const h0 = p.stockingAtCells[k];
+    let v = cache.get(h0);
+    if (v === undefined) {
+      v = establishedLevel(pest.growth, h0);
+      cache.set(h0, v);
+    }
+    out[k] = v;
+  }
+  return out;
+}
+
+/** True when the pest has an Allee threshold (small groups fail): then a detected fringe need not breed. */
+export function fringeMatters(pest: PointPest): boolean {
+  return smallGroupsFail(pest.growth, 1);
+}
+
+export function runLandscapeProblem(p: LandscapeProblem, pest: PointPest, s: RunSettings): RawRun {
+  const started = Date.now();
+  const { nx, ny } = p.landscape;
+  const n = nx * ny;
+  const stepper = problemStepper(p);
+  const u = Float64Array.from(p.u0);
+  const h = Float64Array.from(p.stockingAtCells);
+  const prev = Float64Array.from(u);
+  const detected = new Float32Array(n).fill(NaN);
+  const established = new Float32Array(n).fill(NaN);
+  const estLevel = establishedAtCells(p, pest);
+  const level = s.detectionLevel;
+  const cellKm2 = p.mesh.cellKm * p.mesh.cellKm;
+  for (let k = 0; k < n; k++) {
+    if (u[k] >= level) detected[k] = 0;
+    if (u[k] >= estLevel[k]) established[k] = 0;
+  }
+  const series = { timesYears: [] as number[], occupiedKm2: [] as number[], totalInsects: [] as number[] };
+  const every = s.seriesEveryYears ?? 0.5;
+  let nextRecord = 0;
+  let occupied = 0;
+  for (let k = 0; k < n; k++) if (detected[k] === 0) occupied++;
+  const record = (t: number) => {
+    let total = 0;
+    const w = stepper.window();
+    for (let r = w.r0; r <= w.r1; r++) for (let q = w.c0, k = r * nx + w.c0; q <= w.c1; q++, k++) total += u[k];
+    series.timesYears.push(t);
+    series.occupiedKm2.push(occupied * cellKm2);
+    series.totalInsects.push(total * cellKm2);
+  };
+  record(0);
+  nextRecord = every;
+  const dt = p.stepYears;
+  const nSteps = Math.max(1, Math.ceil(s.horizonYears / dt - 1e-9));
+  const siteCells = p.landscape.sites.map((site) => site.cells);
+  let t = 0;
+  let steps = 0;
+  for (let i = 0; i < nSteps; i++) {
+    const step = Math.min(dt, s.horizonYears - t);
+    if (!(step > 0)) break;
+    if (s.shouldCancel?.()) throw new CancelledError();
+    stepper.step(u, h, step);
+    steps++;
+    const tNew = i === nSteps - 1 ? s.horizonYears : t + step;
+    const w = stepper.window();
+    for (let r = w.r0; r <= w.r1; r++) {
+      for (let q = w.c0, k = r * nx + w.c0; q <= w.c1; q++, k++) {
+        const now = u[k];
+        const before = prev[k];
+        if (now >= level && !(detected[k] >= 0)) {
+          const frac = now > before ? (level - before) / (now - before) : 1;
+          detected[k] = t + Math.min(1, Math.max(0, frac)) * (tNew - t);
+          occupied++;
+        }
+        if (now >= estLevel[k] && !(established[k] >= 0)) {
+          const e = estLevel[k];
+          const frac = now > before ? (e - before) / (now - before) : 1;
+          established[k] = t + Math.min(1, Math.max(0, frac)) * (tNew - t);
+        }
+        prev[k] = now;
+      }
+    }
+    t = tNew;
+    if (t >= nextRecord - 1e-9 || i === nSteps - 1) {
+      record(t);
+      nextRecord += every;
+    }
+    if (i % 20 === 0) s.onProgress?.(t / s.horizonYears);
+    if (s.stopWhenSitesReached && siteCells.length > 0) {
+      const all = siteCells.every((cells) => Array.from(cells).some((k) => detected[k] >= 0 && (established[k] >= 0 || !p.hostAtCells[k])));
+      if (all) break;
+    }
+  }
+  // Outside cells carry no arrival.
+  for (let k = 0; k < n; k++) if (!p.op.insideAtCells[k]) detected[k] = NaN;
+  const c = stepper.counters();
+  return {
+    detected,
+    established,
+    u,
+    h,
+    series,
+    endYears: t,
+    numerics: {
+      cellM: p.landscape.cellM,
+      stepYears: dt,
+      steps,
+      fallbackSteps: c.fallbackSteps,
+      activeCellsMax: c.activeCellsMax,
+      mapCells: n,
+      method:
+        'finite volumes on the square raster (residence-index form, harmonic face conductances), ' +
+        'TR-BDF2 with rates frozen at mid-step and each stage solved by an approximately factorised line correction',
+      wallMs: Date.now() - started,
+    },
+  };
+}

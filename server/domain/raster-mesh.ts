@@ -1,0 +1,114 @@
+/**
+ * The square raster behind the Mesh interface. Cells are the map cells that are not 'outside' (nodata,
+ * water, built-up), numbered in raster order (row-major, row 0 north); faces join 4-neighbours that are
+ * both inside. 'Outside' cells have no face: when they are impassable nothing crosses, when they are lethal
+ * the operator holds the density at zero on the far side of the face (a Dirichlet face, listed per cell in
+ * `lethalFacesAtCells`); map edges likewise (reflecting: nothing; lethal: a Dirichlet face).
+ *
+ * Mesh coordinates are the map's projected coordinates in km: x east, y north.
+ */
+import type { Mesh } from './mesh.ts';
+import { RASTER_CLASSES, type RasterGeometry } from './raster.ts';
+
+const OUTSIDE = RASTER_CLASSES.indexOf('outside');
+
+export interface RasterMesh extends Mesh {
+  readonly dim: 2;
+  readonly nx: number;
+  readonly ny: number;
+  /** Cell side [km]. */
+  readonly cellKm: number;
+  /** Raster index (row·nx + col) of each mesh cell, length nCells. */
+  readonly rasterOfCell: Int32Array;
+  /** Mesh cell of each raster index, −1 for outside cells, length nx·ny. */
+  readonly cellOfRaster: Int32Array;
+  /**
+   * Number of Dirichlet (u = 0) faces of each mesh cell: sides towards a lethal 'outside' cell or a lethal
+   * map edge. 0 everywhere when both are reflecting/impassable. Length nCells.
+   */
+  readonly lethalFacesAtCells: Uint8Array;
+}
+
+/**
+ * Builds the mesh of a raster.
+ *
+ * @param geometry - raster geometry (cell side in m, origin in m)
+ * @param classAtCells - class index per raster cell (RASTER_CLASSES)
+ * @param outside - what 'outside' cells are to the pest
+ * @param mapEdges - what lies beyond the map's edges
+ */
+export function makeRasterMesh(
+  geometry: RasterGeometry,
+  classAtCells: Uint8Array,
+  outside: 'impassable' | 'lethal',
+  mapEdges: 'reflecting' | 'lethal' = 'reflecting',
+): RasterMesh {
+  const { nx, ny } = geometry;
+  if (classAtCells.length !== nx * ny) throw new RangeError(`classAtCells has ${classAtCells.length} entries; the raster has ${nx}×${ny}`);
+  const cellKm = geometry.cellM / 1000;
+  const cellOfRaster = new Int32Array(nx * ny).fill(-1);
+  let nCells = 0;
+  for (let k = 0; k < nx * ny; k++) if (classAtCells[k] !== OUTSIDE) cellOfRaster[k] = nCells++;
+  const rasterOfCell = new Int32Array(nCells);
+  const volumes = new Float64Array(nCells).fill(cellKm * cellKm);
+  const centres = new Float64Array(2 * nCells);
+  const lethalFacesAtCells = new Uint8Array(nCells);
+  const x0 = geometry.originXM / 1000;
+  const y0 = geometry.originYM / 1000;
+  const faces: number[] = [];
+  for (let row = 0; row < ny; row++) {
+    for (let col = 0; col < nx; col++) {
+      const k = row * nx + col;
+      const c = cellOfRaster[k];
+      if (c < 0) continue;
+      rasterOfCell[c] = k;
+      centres[2 * c] = x0 + (col + 0.5) * cellKm;
+      centres[2 * c + 1] = y0 - (row + 0.5) * cellKm;
+      let lethal = 0;
+      // East and south neighbours carry the face (each face once, low index first).
+      const sides: [number, number, boolean][] = [
+        [row, col + 1, true],
+        [row + 1, col, true],
+        [row, col - 1, false],
+        [row - 1, col, false],
+      ];
+      for (const [r, q, own] of sides) {
+        if (r < 0 || r >= ny || q < 0 || q >= nx) {
+          if (mapEdges === 'lethal') lethal++;
+          continue;
+        }
+        const j = cellOfRaster[r * nx + q];
+        if (j < 0) {
+          if (outside === 'lethal') lethal++;
+          continue;
+        }
+        if (own) faces.push(c, j);
+      }
+      lethalFacesAtCells[c] = lethal;
+    }
+  }
+  const nFaces = faces.length / 2;
+  return {
+    dim: 2,
+    nx,
+    ny,
+    cellKm,
+    nCells,
+    nFaces,
+    volumes,
+    centres,
+    faceCells: Int32Array.from(faces),
+    faceAreas: new Float64Array(nFaces).fill(cellKm),
+    faceDistances: new Float64Array(nFaces).fill(cellKm),
+    rasterOfCell,
+    cellOfRaster,
+    lethalFacesAtCells,
+    locate(x: number, y?: number): number {
+      if (y === undefined) return -1;
+      const col = Math.floor((x - x0) / cellKm);
+      const row = Math.floor((y0 - y) / cellKm);
+      if (col < 0 || col >= nx || row < 0 || row >= ny) return -1;
+      return cellOfRaster[row * nx + col];
+    },
+  };
+}
