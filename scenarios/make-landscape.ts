@@ -51,7 +51,7 @@ function ground(x: number, y: number): { code: number; stems: number } {
   if (y < south || y > north) return { code: DEMO_CODES.farmland, stems: 0 };
   // Two non-host (broadleaf) stands.
   if (inEllipse(x, y, 21.5, 14.2, 2.0, 1.3) || inEllipse(x, y, 7.5, 5.0, 1.6, 0.9)) return { code: DEMO_CODES.nonhost, stems: 0 };
-  const stems = 430 + 140 * Math.sin(x / 2.7 + 0.5) * Math.cos(y / 3.3) + 60 * Math.sin(x / 0.8 + y / 1.1);
+  const stems = 560 + 90 * Math.sin(x / 2.7 + 0.5) * Math.cos(y / 3.3) + 30 * Math.sin(x / 0.8 + y / 1.1);
   return { code: DEMO_CODES.host, stems: Math.round(Math.max(80, stems)) };
 }
 
@@ -139,12 +139,12 @@ export async function makeDemoLandscape(): Promise<Record<string, Uint8Array>> {
       format: 'geotiff',
       file: 'ossenvale-valley-host.tif',
       unit: 'stems-per-ha',
-      stemsPerHaAtFullCover: 650,
+      stemsPerHaAtFullCover: 600,
       classes: { file: 'ossenvale-valley-classes.tif', codes: { 'host-forest': [1], 'non-host-forest': [2], clearing: [3], outside: [4, 5] } },
       cellM: 200,
     },
     coordinates: 'map',
-    infestation: { places: [{ point: at(3.5, 10.5), radiusM: 1200 }], density: 1 },
+    infestation: { places: [{ polygon: [[at(0, 7.5), at(2.5, 7.2), at(3.4, 10.0), at(2.6, 13.0), at(0, 13.2)]] }], density: 1 },
     sites: [
       { name: 'Ossenvale town edge', place: { point: at(24.0, 10.2) } },
       { name: 'Marrowin seed orchard', place: { polygon: [[at(27.2, 14.0), at(28.4, 14.0), at(28.4, 15.0), at(27.2, 15.0)]] } },
@@ -170,7 +170,7 @@ export async function makeDemoLandscape(): Promise<Record<string, Uint8Array>> {
     ...common,
     map: { format: 'geojson', file: 'ossenvale-valley-stands.geojson', uncovered: 'clearing', cellM: 250 },
     coordinates: 'lonlat',
-    infestation: { places: [{ point: lonlat(at(3.5, 10.5)), radiusM: 1200 }] },
+    infestation: { places: [{ polygon: [[lonlat(at(0.1, 7.5)), lonlat(at(2.5, 7.2)), lonlat(at(3.4, 10.0)), lonlat(at(2.6, 13.0)), lonlat(at(0.1, 13.2))]] }] },
     sites: [{ name: 'Ossenvale town edge', place: { point: lonlat(at(24.0, 10.2)) } }],
     bands: {
       costPerStem: 35,

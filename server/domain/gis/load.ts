@@ -338,7 +338,14 @@ export async function loadLandscape(scenario: LandscapeScenario | PointLandscape
       missProblems.push({ path, value: o.name, message: 'covers no host forest on the map: the band misses the forest (check its coordinates and the coordinates setting)' });
       return;
     }
-    bands.push({ id: `option-${i + 1}`, label: o.name, cover, treatment: o.cover === 'clearing' ? 'clearing' : 'nonhost-planting', areaM2: area * grid.cellM * grid.cellM });
+    bands.push({
+      id: `option-${i + 1}`,
+      label: o.name,
+      cover,
+      treatment: o.cover === 'clearing' ? 'clearing' : 'nonhost-planting',
+      areaM2: area * grid.cellM * grid.cellM,
+      ...(o.line ? { widthM: o.widthM } : {}),
+    });
     bandPolygons.push(poly);
   });
   if (placeProblems.length) throw new MapPlacementError(placeProblems);
