@@ -9,6 +9,7 @@ import { InputError, formatProblems } from './model/errors.ts';
 import { evaluateScenarioParallel } from './analysis/evaluate-parallel.ts';
 import { textSummary } from './report/text-summary.ts';
 import { renderBriefing } from './report/briefing.ts';
+import { isLandscapeText, runLandscapeCli } from './landscape-cli.ts';
 
 const USAGE = `usage: npm run evaluate -- <scenario.json> [--json] [--out FILE] [--pdf FILE]
   --json        print the result document (JSON) instead of the readable summary
@@ -165,6 +166,10 @@ export async function main(argv: string[]): Promise<number> {
     return 1;
   }
   try {
+    if (isLandscapeText(text)) {
+      const progress = progressBar(!args.quiet && process.stderr.isTTY === true);
+      return await runLandscapeCli(text, { file: args.file, json: args.json, out: args.out, pdf: args.pdf, progress, write: writeOutput });
+    }
     const scenario = parseScenarioText(text);
     // Ctrl-C stops an ensemble cleanly (the draws done so far are reported); a second Ctrl-C quits.
     let cancelled = false;

@@ -127,10 +127,10 @@ function pathOf(poly: Polygon, fr: Frame): string {
 }
 
 /** Band outlines with their key letters (option k: the colour, dash and letter of optionStyle(k)). */
-function bandsLayer(base: MapBase, fr: Frame, only: number | null): string {
+function bandsLayer(base: MapBase, fr: Frame, only: number | 'all' | 'none'): string {
   let s = '';
   base.bands.forEach((b, k) => {
-    if (only !== null && k !== only) return;
+    if (only === 'none' || (only !== 'all' && k !== only)) return;
     const st = optionStyle(k);
     const d = pathOf(b.polygon, fr);
     s += el('path', { d, fill: '#ffffff', 'fill-opacity': 0.55, stroke: '#000000', 'stroke-width': 2.6, 'fill-rule': 'evenodd' });
@@ -231,11 +231,11 @@ const box = (fill: string, extra = '') => rect(0, 0, 16, 10, { fill, stroke: '#5
 const waterSwatch = () => box(rgbToHex(CLASS_COLOURS.outside), line(0, 3, 16, 3, { stroke: rgbToHex(CLASS_COLOURS.outsideLine), 'stroke-width': 0.8 }) + line(0, 7, 16, 7, { stroke: rgbToHex(CLASS_COLOURS.outsideLine), 'stroke-width': 0.8 }));
 const hatchSwatch = () => box(rgbToHex(CLASS_COLOURS.nonhost), line(0, 10, 10, 0, { stroke: rgbToHex(CLASS_COLOURS.nonhostHatch), 'stroke-width': 0.8 }) + line(6, 10, 16, 0, { stroke: rgbToHex(CLASS_COLOURS.nonhostHatch), 'stroke-width': 0.8 }));
 
-function overlaySwatches(base: MapBase, only: number | null, contourStep: number | null): Swatch[] {
+function overlaySwatches(base: MapBase, only: number | 'all' | 'none', contourStep: number | null): Swatch[] {
   const out: Swatch[] = [];
   if (contourStep !== null) out.push({ label: `front line every ${contourStep} years (thicker every ${2 * contourStep})`, svg: line(0, 5, 16, 5, { stroke: '#000000', 'stroke-width': 1.2 }) });
   base.bands.forEach((b, k) => {
-    if (only !== null && k !== only) return;
+    if (only === 'none' || (only !== 'all' && k !== only)) return;
     const st = optionStyle(k);
     out.push({ label: `${optionKey(k)}: ${b.label}`, svg: rect(0, 1, 16, 8, { fill: '#ffffff', stroke: st.stroke, 'stroke-width': 1.6, 'stroke-dasharray': st.dash || undefined }) });
   });
@@ -297,14 +297,14 @@ export function hostCoverMap(base: MapBase, size: MapSize = {}): Chart {
     { label: 'non-host forest', svg: hatchSwatch() },
     { label: 'open ground (farmland, clearings)', svg: box(rgbToHex(CLASS_COLOURS.open)) },
     { label: 'outside the habitat (water, built-up, no data)', svg: waterSwatch() },
-    ...overlaySwatches(base, null, null),
+    ...overlaySwatches(base, 'all', null),
   ];
   return assemble(
     base,
     width,
     'The map: host forest, band options, infestation and protected sites',
     'Darker green is more host; letters mark the band options, numbers the protected sites.',
-    (fr) => rasterLayer(base, fr, (i) => classColour(base, i)) + bandsLayer(base, fr, null) + infestedLayer(base, fr) + sitesLayer(base, fr),
+    (fr) => rasterLayer(base, fr, (i) => classColour(base, i)) + bandsLayer(base, fr, 'all') + infestedLayer(base, fr) + sitesLayer(base, fr),
     legend,
   );
 }
@@ -352,7 +352,7 @@ export function arrivalMap(base: MapBase, a: ArrivalMapInput, size: MapSize = {}
   }
   legend.push({ label: `not reached within ${a.horizonYears} years`, svg: box(rgbToHex(CLASS_COLOURS.unreached)) });
   legend.push({ label: 'outside the habitat (water, built-up)', svg: waterSwatch() });
-  legend.push(...overlaySwatches(base, a.band, step));
+  legend.push(...overlaySwatches(base, a.band ?? 'none', step));
   const layers = (fr: Frame) => {
     let s = rasterLayer(base, fr, colourAt);
     for (const c of lines) {
@@ -374,7 +374,7 @@ export function arrivalMap(base: MapBase, a: ArrivalMapInput, size: MapSize = {}
         s += text(lx, ly, lab, { size: 8.5, valign: 'middle', bold: major });
       }
     }
-    return s + bandsLayer(base, fr, a.band) + infestedLayer(base, fr) + sitesLayer(base, fr);
+    return s + bandsLayer(base, fr, a.band ?? 'none') + infestedLayer(base, fr) + sitesLayer(base, fr);
   };
   return assemble(base, width, a.title, `Darker = reached earlier; black lines show the front every ${step} years (labels: year).`, layers, legend);
 }
