@@ -15,6 +15,7 @@ import { NON_FINITE_CODE } from './numerics/finite.ts';
 import { textSummary } from './report/text-summary.ts';
 import { renderBriefing } from './report/briefing.ts';
 import { briefingTextProblems } from './report/pdf/fonts.ts';
+import { isLandscapeText, runLandscapeCli } from './landscape-cli.ts';
 
 const USAGE = `usage: npm run evaluate -- <scenario.json> [--json] [--out FILE] [--pdf FILE]
   --json        print the result document (JSON) instead of the readable summary
@@ -309,6 +310,10 @@ export async function main(argv: string[]): Promise<number> {
     return 1;
   }
   try {
+    if (isLandscapeText(text)) {
+      const progress = progressBar(!args.quiet && process.stderr.isTTY === true);
+      return await runLandscapeCli(text, { file: args.file, json: args.json, out: args.out, pdf: args.pdf, progress, write: (option, path, data) => writeOutputs([{ option, path, data }]) });
+    }
     const scenario = parseScenarioText(text);
     if (args.pdf) {
       // Refused before the run: text the briefing's fonts cannot draw (report/pdf/fonts.ts).

@@ -1,0 +1,185 @@
+/**
+ * A landscape scenario from file, form or API to its result document: load the map (server/domain/gis),
+ * run the 2-D analysis (`evaluateLandscape`, server/analysis/landscape/) and summarise per option what a
+ * decision needs — verdict, the way the pest gets past (through / around / none), arrivals at each
+ * protected site, trees removed and cost. CLI, web routes and the briefing all call this one function.
+ */
+import { createHash } from 'node:crypto';
+import type { LandscapeScenario } from '../model/landscape.ts';
+import { pointLandscapeScenario } from '../model/landscape.ts';
+import { fingerprint } from '../model/canonical.ts';
+import { TOOL } from '../version.ts';
+import { loadLandscape, type LoadedLandscape, type MapFiles } from '../domain/gis/load.ts';
+import { evaluateLandscape } from './landscape/evaluate.ts';
+import { fieldToJson, type LandscapeResult, type WayPast } from './landscape/result.ts';
+import { CAUTIONS } from './cautions.ts';
+
+export const LANDSCAPE_DOCUMENT_VERSION = 1;
+
+/** One site's arrival for an option, against doing nothing. */
+export interface LandscapeArrivalRow {
+  site: string;
+  /** Breeding-population arrival without the band / with it [yr since start]; null = not within the horizon. */
+  baselineYears: number | null;
+  optionYears: number | null;
+  /** Years bought (positive) or lost (negative); null unless both arrive. */
+  delayYears: number | null;
+  wayPast: WayPast | null;
+  sentence: string;
+}
+
+/** What the CLI's --json prints per option: the decision summary, then the full result under `result`. */
+export interface LandscapeOptionSummary {
+  key: string;
+  name: string;
+  verdict: { kind: string; sentence: string; why: string };
+  /** How the pest gets past the band: through it, around its ends, or not at all within the horizon. */
+  wayPast: WayPast;
+  wayPastSentence: string;
+  arrivals: LandscapeArrivalRow[];
+  /** Host stems inside the band (band cover × host stems per ha × area). */
+  treesRemoved: number;
+  bandAreaHa: number;
+  cost: { stems: number | null; area: number | null; total: number | null; unit: string | null };
+  /** The band's 1-D cross-section critical width [m] (a transect result beside the 2-D one), when computed. */
+  crossSectionCriticalWidthM: [number, number] | null;
+  pinningVerified: boolean;
+}
+
+export interface LandscapeDocument {
+  documentVersion: number;
+  kind: 'landscape';
+  tool: { name: string; version: string };
+  /** SHA-256 of the canonical scenario together with the SHA-256 of each map file it names. */
+  scenarioFingerprint: string;
+  mapFiles: Record<string, string>;
+  runAt: string;
+  title: string;
+  description: string;
+  region?: string;
+  pest: { name: string; illustrative: boolean };
+  horizonYears: number;
+  detectionLevel: number;
+  map: {
+    crs: { code: string; name: string };
+    cellM: number;
+    nx: number;
+    ny: number;
+    originXM: number;
+    originYM: number;
+    outside: 'impassable' | 'lethal';
+    notes: string[];
+  };
+  baseline: { arrivals: { site: string; detectedYears: number | null; breedingYears: number | null }[] };
+  options: LandscapeOptionSummary[];
+  cautions: string[];
+  notes: string[];
+}
+
+/** A loaded map, its result and the document, kept together for maps and downloads. */
+export interface LandscapeEvaluation {
+  loaded: LoadedLandscape;
+  result: LandscapeResult;
+  doc: LandscapeDocument;
+}
+
+export interface LandscapeRunOptions {
+  onProgress?: (fraction: number, message: string) => void;
+  shouldCancel?: () => boolean;
+  /** Run date (ISO); now by default. */
+  runAt?: string;
+  /** Skip the band's 1-D cross-section analysis (quicker; tests). */
+  crossSection?: boolean;
+}
+
+const sha256 = (b: Uint8Array) => createHash('sha256').update(b).digest('hex');
+
+/** Names of the map files a scenario reads. */
+export function mapFileNames(s: Pick<LandscapeScenario, 'map'>): string[] {
+  const m = s.map;
+  return m.format === 'geotiff' && m.classes ? [m.file, m.classes.file] : [m.file];
+}
+
+/** Fingerprint of a scenario with its map files (a change to either changes it). */
+export function landscapeFingerprint(s: LandscapeScenario, files: MapFiles): { fingerprint: string; mapFiles: Record<string, string> } {
+  const mapFiles = Object.fromEntries(mapFileNames(s).map((n) => [n, files[n] ? sha256(files[n]) : 'missing']));
+  return { fingerprint: fingerprint({ scenario: s, mapFiles }), mapFiles };
+}
+
+const round2 = (v: number | null) => (v === null || !Number.isFinite(v) ? null : Math.round(v * 100) / 100);
+
+/**
+ * Loads the map and evaluates every band option.
+ * @throws the loader's named map errors (MapError subclasses, with problems) and the analysis's InputError
+ */
+export async function evaluateLandscapeScenario(scenario: LandscapeScenario, files: MapFiles, opts: LandscapeRunOptions = {}): Promise<LandscapeEvaluation> {
+  const s = pointLandscapeScenario(scenario);
+  const loaded = await loadLandscape(scenario, files);
+  const result = evaluateLandscape(loaded, scenario.pest, {
+    horizonYears: s.horizonYears,
+    detectionLevel: s.detectionLevel,
+    stepYears: s.numerics.stepYears,
+    mapEdges: 'reflecting',
+    infestedDensity: s.infestation.density,
+    costPerStem: s.bands.costPerStem,
+    costUnit: s.bands.costUnit,
+    crossSection: opts.crossSection,
+    shouldCancel: opts.shouldCancel,
+    onProgress: opts.onProgress,
+  });
+  const { fingerprint: fp, mapFiles } = landscapeFingerprint(scenario, files);
+  const cautions = [...result.cautions];
+  for (const c of CAUTIONS) if (!cautions.includes(c)) cautions.push(c);
+  const doc: LandscapeDocument = {
+    documentVersion: LANDSCAPE_DOCUMENT_VERSION,
+    kind: 'landscape',
+    tool: { ...TOOL },
+    scenarioFingerprint: fp,
+    mapFiles,
+    runAt: opts.runAt ?? new Date().toISOString(),
+    title: s.title,
+    description: s.description,
+    region: s.region,
+    pest: { name: s.pest.name, illustrative: s.pest.illustrative },
+    horizonYears: s.horizonYears,
+    detectionLevel: s.detectionLevel,
+    map: { crs: { code: loaded.crs.code, name: loaded.crs.name }, cellM: result.grid.cellM, nx: result.grid.nx, ny: result.grid.ny, originXM: result.grid.originXM, originYM: result.grid.originYM, outside: loaded.outside, notes: loaded.notes },
+    baseline: { arrivals: result.baseline.sites.map((a) => ({ site: a.name, detectedYears: round2(a.detectedYears), breedingYears: round2(a.breedingYears) })) },
+    options: result.options.map((o, k) => {
+      const areaHa = o.areaM2 / 1e4;
+      const areaCost = s.bands.costPerHa !== undefined ? s.bands.costPerHa * areaHa : null;
+      const stemCost = o.trees.cost;
+      return {
+        key: String.fromCharCode(65 + k), // A, B, … (≤ 8 options): the letters the maps and tables use
+        name: o.label,
+        verdict: o.verdict,
+        wayPast: o.wayPast,
+        wayPastSentence: o.wayPastSentence,
+        arrivals: o.sites.map((v) => ({ site: v.name, baselineYears: round2(v.baselineArrivalYears), optionYears: round2(v.optionArrivalYears), delayYears: round2(v.delayYears), wayPast: v.wayPast, sentence: v.sentence })),
+        treesRemoved: Math.round(o.trees.stemsRemoved),
+        bandAreaHa: Math.round(areaHa * 100) / 100,
+        cost: {
+          stems: stemCost,
+          area: areaCost,
+          total: stemCost === null && areaCost === null ? null : (stemCost ?? 0) + (areaCost ?? 0),
+          unit: s.bands.costUnit ?? null,
+        },
+        crossSectionCriticalWidthM: o.crossSection?.bracketM ?? null,
+        pinningVerified: o.pinning.verified,
+      };
+    }),
+    cautions,
+    notes: [...loaded.notes, ...result.notes],
+  };
+  return { loaded, result, doc };
+}
+
+/** The document with the full result attached, as JSON text (typed-array fields as plain arrays, NaN → null). */
+export function landscapeJson(ev: Pick<LandscapeEvaluation, 'doc' | 'result'>): string {
+  const r = ev.result;
+  const run = (x: LandscapeResult['baseline']) => ({ ...x, arrival: { maxYears: x.arrival.maxYears, years: fieldToJson(x.arrival) } });
+  const result = { ...r, baseline: run(r.baseline), options: r.options.map((o) => ({ ...o, run: run(o.run) })) };
+  // The summary indented for reading; the full result (with its per-cell fields) on one line.
+  const head = JSON.stringify(ev.doc, null, 1);
+  return `${head.slice(0, -2)},\n "result": ${JSON.stringify(result)}\n}\n`;
+}
