@@ -122,7 +122,7 @@ describe('bad options get clear errors', () => {
   it('width ≤ 0', () => {
     const p = problems({ ...base, barrier: { lengthKm: 1, options: [{ name: 'x', fromKm: 10, widthM: 0 }] } });
     expect(p[0].path).toBe('barrier.options[0].widthM');
-    expect(p[0].message).toMatch(/> 0/);
+    expect(p[0].message).toMatch(/≥ 1/);
   });
   it('site inside the initial infestation', () => {
     const p = problems({ ...base, sites: [{ name: 'Mill', atKm: 2 }] });
