@@ -163,10 +163,11 @@ describe('the result page', () => {
     const csv = await t.app.inject(`${resultUrl}/series.csv`);
     expect(csv.headers['content-type']).toMatch(/text\/csv/);
     const lines = csv.body.trim().split('\r\n');
-    expect(lines[0]).toBe('layout,time_years,right_front_km,left_front_km,total_insects_km');
+    expect(lines[0]).toBe('layout,time_years,right_front_km,left_front_km,total_insects_km,front_towards_clearing_is');
     const rows = lines.slice(1);
     expect(rows.length).toBe(doc.baseline.series.timesYears.length + doc.options[0].run.series.timesYears.length);
-    expect(rows[0]).toBe(`"baseline",0,${doc.baseline.series.rightFrontKm[0]},${doc.baseline.series.leftFrontKm[0]},${doc.baseline.series.totalInsects[0]}`);
+    expect(rows[0]).toBe(`"baseline",0,${doc.baseline.series.rightFrontKm[0]},${doc.baseline.series.leftFrontKm[0]},${doc.baseline.series.totalInsects[0]},`);
+    expect(rows.at(-1)).toMatch(/,"(breeding front|thin non-breeding fringe only)"$/);
     expect(rows.at(-1)).toMatch(/^"Cut at km 2",6,/);
     const scenario = await t.app.inject(`${resultUrl}/scenario.json`);
     expect(parseScenarioText(scenario.body)).toEqual(quick());

@@ -43,6 +43,27 @@ interface Series {
   endLabel: string;
   times: number[];
   values: (number | null)[];
+  /** Per point: only the thin non-breeding fringe is there (beyond a clearing the breeding front has not crossed). */
+  fringe?: boolean[];
+  /** Where the breeding front is held meanwhile: at the clearing (its far edge, where the fringe starts) [km]. */
+  heldAtKm?: number;
+}
+
+/**
+ * Points of an option's front that lie beyond its clearing while the breeding front has not crossed it (held,
+ * or before the crossing year): what the detection level sees there is the thin fringe, not the pest arriving.
+ */
+export function fringeMask(o: OptionPart, times: number[], values: (number | null)[], side: 'right' | 'left'): boolean[] {
+  const c = optionInterval(o);
+  const held = o.pinned === true || o.verdict?.kind === 'holds' || o.verdict?.kind === 'marginal';
+  const crossing = o.crossingYears ? o.crossingYears.option : undefined;
+  if (!held && crossing === undefined) return times.map(() => false);
+  return times.map((t, i) => {
+    const v = values[i];
+    if (v === null || !isNum(v)) return false;
+    const beyond = side === 'right' ? v > c.toKm : v < c.fromKm;
+    return beyond && (held || crossing === null || t < (crossing as number));
+  });
 }
 
 /** Markers per line, spread along the time axis and offset per series so they do not sit on each other. */
@@ -69,14 +90,19 @@ export function frontPositionChart(input: FrontChartInput, size: ChartSize = {})
   }
   input.options.forEach((o, k) => {
     const st = optionStyle(k);
+    const side = sideOf(o, infestation);
+    const values = front(o.run.series, side);
     series.push({
       label: `${o.name} (${Math.round(o.widthM)} m)`,
       style: st,
       endLabel: st.key,
       times: o.run.series.timesYears,
-      values: front(o.run.series, sideOf(o, infestation)),
+      values,
+      fringe: fringeMask(o, o.run.series.timesYears, values, side),
+      heldAtKm: side === 'right' ? optionInterval(o).toKm : optionInterval(o).fromKm,
     });
   });
+  const anyFringe = series.some((s) => s.fringe?.some(Boolean));
 
   const [x0, x1] = transectExtent(input.baseline.layout);
   const tMax = Math.max(input.horizonYears, ...series.flatMap((s) => s.times.filter(isNum)));
@@ -86,6 +112,7 @@ export function frontPositionChart(input: FrontChartInput, size: ChartSize = {})
   const legendEntries: LegendEntry[] = series.map((s) => ({ label: s.label, style: s.style }));
   legendEntries.push({ label: 'clearing of an option (letter at the right)', swatch: rect(0, 0, 24, 10, { fill: '#d0d0d0', stroke: '#777777', 'stroke-width': 0.6 }) });
   const sites = (input.sites ?? input.baseline.arrivals).map((s, i) => ({ ...s, i })).filter((s) => isNum(s.atKm) && s.atKm >= x0 && s.atKm <= x1);
+  if (anyFringe) legendEntries.push({ label: 'faint: only a thin non-breeding fringe beyond a clearing that holds the breeding front (not an arrival)', swatch: line(0, 5, 24, 5, { stroke: '#777777', 'stroke-width': 1, 'stroke-opacity': 0.5, 'stroke-dasharray': '2 2' }) });
   if (sites.length) legendEntries.push({ label: 'protected site (name or number as in the tables)', swatch: line(0, 5, 24, 5, { stroke: '#555555', 'stroke-dasharray': '1.5 2.5', 'stroke-width': 1.2 }) });
 
   const box0: Box = { left: 0, top: 12, width: 0, height: plotHeight };
@@ -130,13 +157,26 @@ export function frontPositionChart(input: FrontChartInput, size: ChartSize = {})
   // Lines: baseline first (underneath), options on top. Missing values (no front) leave gaps.
   const ends: { y: number; x: number; s: Series }[] = [];
   series.forEach((s, k) => {
-    const pts: [number, number][] = s.times.map((t, i) => [t, s.values[i] ?? NaN]);
+    const fr = s.fringe ?? [];
+    const raw: [number, number][] = s.times.map((t, i) => [t, s.values[i] ?? NaN]);
+    // Where only the fringe is beyond the clearing, the breeding front is held at the clearing: the line in the
+    // option's style stays at the clearing, and the fringe is drawn faint and thin beyond it.
+    const pts: [number, number][] = raw.map((p, i) => (fr[i] && s.heldAtKm !== undefined ? [p[0], s.heldAtKm] : p));
     const path = d3line<[number, number]>()
       .defined((p) => isNum(p[0]) && isNum(p[1]))
       .x((p) => xScale(p[0]))
       .y((p) => yScale(p[1]))
       .digits(2)(pts);
     if (path) body += el('path', { d: path, ...strokeAttrs(s.style) });
+    if (fr.some(Boolean)) {
+      const faint = (i: number) => fr[i] || (i + 1 < fr.length && fr[i + 1]);
+      const fpath = d3line<[number, number]>()
+        .defined((p, i) => isNum(p[0]) && isNum(p[1]) && faint(i))
+        .x((p) => xScale(p[0]))
+        .y((p) => yScale(p[1]))
+        .digits(2)(raw);
+      if (fpath) body += el('path', { d: fpath, fill: 'none', stroke: s.style.stroke, 'stroke-width': 1, 'stroke-opacity': 0.5, 'stroke-dasharray': '2 2' });
+    }
     const defined = pts.map((p, i) => (isNum(p[0]) && isNum(p[1]) ? i : -1)).filter((i) => i >= 0);
     if (!defined.length) return;
     if (s.style.marker) {

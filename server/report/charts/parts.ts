@@ -7,7 +7,8 @@ import { isNum } from './svg.ts';
 
 export type RunPart = Pick<RunResult, 'series' | 'layout' | 'profiles' | 'spaceTime' | 'arrivals'>;
 /** An option as the charts need it; the full verdict fields are not required. */
-export type OptionPart = Pick<OptionResult, 'name' | 'fromKm' | 'widthM'> & Partial<Pick<OptionResult, 'cover'>> & { run: Pick<RunResult, 'series' | 'profiles'> };
+export type OptionPart = Pick<OptionResult, 'name' | 'fromKm' | 'widthM'> &
+  Partial<Pick<OptionResult, 'cover' | 'pinned' | 'crossingYears' | 'verdict'>> & { run: Pick<RunResult, 'series' | 'profiles'> };
 export interface SitePart {
   name: string;
   atKm: number;

@@ -55,11 +55,8 @@ export function spaceTimeChart(run: Pick<RunResult, 'spaceTime'> & Partial<Pick<
   const plotHeight = o.plotHeight ?? 200;
   const { xKm, timesYears, density } = run.spaceTime;
   const title = `Where and when the pest is present${o.runLabel ? ` — ${o.runLabel}` : ''}`;
-  const siteKey = (o.sites ?? []).map((site, i) => `${siteNumber(i)} = ${site.name}`).join(', ');
-  const hint =
-    'Darker = denser; white = below the detection level. A colour edge that turns vertical has stopped moving.' +
-    (o.clearing ? ' Dashed lines: the edges of the clearing.' : '') +
-    (siteKey ? ` Dotted lines: protected sites (${siteKey}).` : '');
+  const siteKey = (o.sites ?? []).map((site, i) => `${siteNumber(i)} ${site.name}`).join(' · ');
+  const hint = 'Darker = denser; white = below the detection level. A colour edge that turns vertical has stopped moving.';
   const ok = xKm.length > 0 && timesYears.length > 0 && xKm.every(isNum) && timesYears.every(isNum);
   // The transect's extent when the layout is known (cell centres stop half a cell short of the ends).
   const xs = scaleLinear().domain(run.layout?.length ? transectExtent(run.layout) : ok ? [Math.min(...xKm), Math.max(...xKm)] : [0, 1]);
@@ -69,7 +66,9 @@ export function spaceTimeChart(run: Pick<RunResult, 'spaceTime'> & Partial<Pick<
   const box: Box = { left, top: 10, width: width - left - legendW - 10, height: plotHeight };
   xs.range([box.left, right(box)]);
   ts.range([bottom(box), box.top]);
-  const height = bottom(box) + BOTTOM_AXIS_SPACE + 6;
+  // A key line under the axis names every line drawn over the map: the clearing's edges and each site by its number.
+  const keyText = [o.clearing ? 'dashed: edges of the clearing' : '', siteKey ? `dotted: protected sites — ${siteKey}` : ''].filter(Boolean).join('; ');
+  const height = bottom(box) + BOTTOM_AXIS_SPACE + 6 + (keyText ? 16 : 0);
   let body = '';
   let maxD = 0;
   for (const row of density) for (const v of row) if (isNum(v) && v > maxD) maxD = v;
@@ -116,6 +115,7 @@ export function spaceTimeChart(run: Pick<RunResult, 'spaceTime'> & Partial<Pick<
     body += haloText(Math.min(px + 3, right(box) - 10), bottom(box) - 14, siteNumber(i), 10, '#000000');
   });
   body += axisBottom(xs, box, { label: 'position along the transect (km)' });
+  if (keyText) body += text(box.left, bottom(box) + BOTTOM_AXIS_SPACE + 8, fitText(keyText, width - box.left - 8, 10), { size: 10, valign: 'top' });
   body += axisLeft(ts, box, { label: 'time (yr)' });
   // Class legend at the right: one swatch per density class with its lower bound.
   const lx = right(box) + 12;
