@@ -13,6 +13,9 @@
  */
 import { documentHeader, evaluateScenario } from '../analysis/evaluate/evaluate.ts';
 import { planEnsemble, summariseEnsemble, type DrawOutcome, type EnsemblePlan } from '../analysis/ensemble/ensemble.ts';
+import { recommendWidth } from '../analysis/recommended-width.ts';
+import { checkFiniteResult } from '../numerics/finite.ts';
+import { ComputationError, isNonFinite } from '../analysis/finite-guard.ts';
 import { analyseBypass } from '../analysis/bypass/analyse-bypass.ts';
 import type { ResultDocument } from '../analysis/result.ts';
 import { buildProblem } from '../problem/problem.ts';
@@ -85,8 +88,10 @@ export function runPoint(task: PointTask, ctx: TaskContext = NO_CONTEXT): PointO
       onProgress: (f, stage) => ctx.progress(Math.min(f, 0.999), stage === 'done' ? 'central values done' : stage),
     });
     if (ctx.shouldCancel()) return { kind: 'cancelled' };
+    checkFiniteResult(document); // non-finite numbers never become a verdict (numerics/finite.ts)
     return { kind: 'done', document: toJsonSafe(document) };
   } catch (e) {
+    if (isNonFinite(e) && !(e instanceof InputError)) return { kind: 'invalid', code: new ComputationError(e.message).code, problems: new ComputationError(e.message).problems };
     if (e instanceof InputError) return { kind: 'invalid', code: e.code, problems: e.problems };
     throw e;
   }
@@ -106,8 +111,10 @@ export function runFinish(task: FinishTask, ctx: TaskContext = NO_CONTEXT): unkn
     ...(single.mosaics?.length ? { mosaics: single.mosaics } : {}),
     uncertainty,
     ...(bypass ? { bypass } : {}),
+    recommendedWidth: recommendWidth({ options: single.options, uncertainty, bypass }),
     cautions: single.cautions,
   };
+  checkFiniteResult(document); // non-finite numbers never become a verdict (numerics/finite.ts)
   return toJsonSafe(document);
 }
 
