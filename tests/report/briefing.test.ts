@@ -193,9 +193,9 @@ describe('briefing stress: 8 options, 12 sites, a 200-character title', () => {
   it('has the expected page count (checked by eye once: every section starts where shown, no near-empty pages)', () => {
     // Cover 2 pages (8 bottom lines), transect 1, fronts and host 1, width–delay 4 (two per page), space–time
     // maps 2 (9 maps), mosaics 2, options and arrivals 1½, uncertainty ½ + ½, parameters 1 + limits, cautions 1.
-    expect(r.pages.length).toBe(17);
-    expect(r.layout.pages).toBe(17);
-    expect(r.layout.sections.map((s) => s.page)).toEqual([1, 3, 4, 5, 9, 11, 13, 14, 15, 16, 17]);
+    expect(r.pages.length).toBe(18);
+    expect(r.layout.pages).toBe(18);
+    expect(r.layout.sections.map((s) => s.page)).toEqual([1, 3, 4, 5, 9, 12, 14, 15, 16, 17, 18]);
     expectOnEveryPageFooter(r.pages, r.doc);
   });
 
@@ -220,7 +220,7 @@ describe('briefing stress: 8 options, 12 sites, a 200-character title', () => {
       ctx.skip();
     }
     const pages = rasterise(r.buf, DPI);
-    expect(pages.length).toBe(17);
+    expect(pages.length).toBe(18);
     const m = 30;
     pages.forEach((p, i) => {
       const w = PAGE.width;
