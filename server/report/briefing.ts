@@ -4,7 +4,7 @@
  * assumptions and limits, cautions; a reproducibility footer on every page. Drawn with pdfkit; all text in
  * the embedded DejaVu fonts (selectable, with km², ±, –, ≥, λ, Δ).
  */
-import PDFDocument from 'pdfkit';
+import { openBriefingPdf } from './pdf/document.ts';
 import type { ResultDocument } from '../analysis/result.ts';
 import type { Scenario } from '../model/scenario.ts';
 import { TOOL } from '../version.ts';
@@ -30,7 +30,7 @@ import {
   treesText,
   uncertainPaths,
 } from './briefing-text.ts';
-import { FONT, registerFonts } from './pdf/fonts.ts';
+import { FONT } from './pdf/fonts.ts';
 import { headline, recommendationWords, siteEvent, spreadBeyondText, transportNote, verdictWords } from './decision.ts';
 import { Flow, type Column, type PageBox } from './pdf/flow.ts';
 
@@ -75,29 +75,12 @@ export function footerLines(doc: ResultDocument, i: number, n: number): [string,
  * @returns the PDF file
  */
 export async function renderBriefing(doc: ResultDocument, opts: BriefingOptions = {}): Promise<Buffer> {
-  const pdf = new PDFDocument({
-    size: [PAGE.width, PAGE.height],
-    margins: { top: PAGE.top, left: PAGE.left, right: PAGE.width - PAGE.right, bottom: PAGE.height - PAGE.bottom },
-    bufferPages: true,
-    autoFirstPage: true,
-    info: {
-      Title: doc.title,
-      Subject: 'Briefing: will a host-free clearing stop the pest?',
-      Author: `${TOOL.name} ${TOOL.version}`,
-      Creator: `${TOOL.name} ${TOOL.version}`,
-      Producer: `${TOOL.name} (pdfkit)`,
-      Keywords: `scenario ${doc.scenarioFingerprint}`,
-      CreationDate: opts.creationDate ?? new Date(),
-    },
+  const { pdf, flow, bytes: done } = openBriefingPdf(PAGE, {
+    title: doc.title,
+    subject: 'Briefing: will a host-free clearing stop the pest?',
+    scenarioFingerprint: doc.scenarioFingerprint,
+    creationDate: opts.creationDate,
   });
-  const chunks: Buffer[] = [];
-  pdf.on('data', (c: Buffer) => chunks.push(c));
-  const done = new Promise<Buffer>((resolve, reject) => {
-    pdf.on('end', () => resolve(Buffer.concat(chunks)));
-    pdf.on('error', reject);
-  });
-  registerFonts(pdf);
-  const flow = new Flow(pdf, PAGE);
 
   cover(flow, doc, opts);
   transectSection(flow, doc, opts);

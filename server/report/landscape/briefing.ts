@@ -6,11 +6,10 @@
  * page, fingerprint of the scenario with its map files). Shares the transect briefing's page box, fonts and
  * flowing layout (server/report/briefing.ts, server/report/pdf/).
  */
-import PDFDocument from 'pdfkit';
+import { openBriefingPdf } from '../pdf/document.ts';
 import type { LandscapeDocument } from '../../analysis/landscape-scenario.ts';
-import { TOOL } from '../../version.ts';
 import { PAGE, runDateText, type BriefingLayout } from '../briefing.ts';
-import { FONT, registerFonts } from '../pdf/fonts.ts';
+import { FONT } from '../pdf/fonts.ts';
 import { Flow, type Column } from '../pdf/flow.ts';
 import { drawChart } from '../pdf/chart.ts';
 import { years } from '../format.ts';
@@ -40,29 +39,12 @@ const WAY: Record<string, string> = { through: 'through the band', around: 'arou
  * @param maps - from `mapsForLandscape` (host map first, then the baseline, then one per option)
  */
 export async function renderLandscapeBriefing(doc: LandscapeDocument, maps: IdMap[], opts: LandscapeBriefingOptions = {}): Promise<Buffer> {
-  const pdf = new PDFDocument({
-    size: [PAGE.width, PAGE.height],
-    margins: { top: PAGE.top, left: PAGE.left, right: PAGE.width - PAGE.right, bottom: PAGE.height - PAGE.bottom },
-    bufferPages: true,
-    autoFirstPage: true,
-    info: {
-      Title: doc.title,
-      Subject: 'Briefing: will a band cut through the forest stop the pest, or will it get through or around?',
-      Author: `${TOOL.name} ${TOOL.version}`,
-      Creator: `${TOOL.name} ${TOOL.version}`,
-      Producer: `${TOOL.name} (pdfkit)`,
-      Keywords: `scenario ${doc.scenarioFingerprint}`,
-      CreationDate: opts.creationDate ?? new Date(),
-    },
+  const { pdf, flow, bytes: done } = openBriefingPdf(PAGE, {
+    title: doc.title,
+    subject: 'Briefing: will a band cut through the forest stop the pest, or will it get through or around?',
+    scenarioFingerprint: doc.scenarioFingerprint,
+    creationDate: opts.creationDate,
   });
-  const chunks: Buffer[] = [];
-  pdf.on('data', (c: Buffer) => chunks.push(c));
-  const done = new Promise<Buffer>((resolve, reject) => {
-    pdf.on('end', () => resolve(Buffer.concat(chunks)));
-    pdf.on('error', reject);
-  });
-  registerFonts(pdf);
-  const flow = new Flow(pdf, PAGE);
 
   cover(flow, doc);
   mapsSection(flow, maps);
