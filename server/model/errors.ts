@@ -48,6 +48,13 @@ export function formatPath(path: readonly PropertyKey[]): string {
   return out;
 }
 
+/** The path array of a dotted path such as `barrier.options[0].widthM` (the inverse of formatPath). */
+export function pathFromDotted(path: string): (string | number)[] {
+  const out: (string | number)[] = [];
+  for (const m of path.matchAll(/([^.[\]]+)|\[(\d+)\]/g)) out.push(m[2] !== undefined ? Number(m[2]) : m[1]);
+  return out;
+}
+
 /** Value at `path` inside `root`, or undefined. */
 export function valueAt(root: unknown, path: readonly PropertyKey[]): unknown {
   let cur: unknown = root;

@@ -3,7 +3,7 @@ import { FIELDS, describeRange, type FieldSpec } from './fields.ts';
 import { PestSchema, NON_HOST_PEST_FIELDS } from './pest.ts';
 import { valueSchema, resolveQuantities, type Resolved } from './quantity.ts';
 import { HostForestSegmentSchema, UncertaintySchema, SCENARIO_VERSION } from './scenario.ts';
-import { ScenarioError, problemsFromZod, type Problem } from './errors.ts';
+import { ScenarioError, pathFromDotted, problemsFromZod, type Problem } from './errors.ts';
 
 /**
  * The landscape scenario: the team's own map (a GeoTIFF of host per cell, or a GeoJSON of stand polygons),
@@ -288,12 +288,6 @@ export const LandscapeScenarioSchema = ObjectSchema.superRefine((s, ctx) => {
     ctx.addIssue({ code: 'custom', path: pathFromDotted(p.path), input: p.value, message: p.message });
   }
 });
-
-function pathFromDotted(path: string): (string | number)[] {
-  const out: (string | number)[] = [];
-  for (const m of path.matchAll(/([^.[\]]+)|\[(\d+)\]/g)) out.push(m[2] !== undefined ? Number(m[2]) : m[1]);
-  return out;
-}
 
 export type LandscapeScenario = z.infer<typeof LandscapeScenarioSchema>;
 export type LandscapeScenarioInput = z.input<typeof LandscapeScenarioSchema>;

@@ -2,7 +2,7 @@ import { z } from 'zod';
 import { FIELDS, describeRange } from './fields.ts';
 import { PestSchema, NON_HOST_PEST_FIELDS } from './pest.ts';
 import { quantitySchema, valueSchema, resolveQuantities, type Resolved } from './quantity.ts';
-import { ScenarioError, problemsFromZod, formatPath, type Problem } from './errors.ts';
+import { ScenarioError, problemsFromZod, formatPath, pathFromDotted, type Problem } from './errors.ts';
 import { JsonTextError, parseJsonText } from './json-text.ts';
 import { textField } from './text.ts';
 
@@ -317,12 +317,6 @@ export const ScenarioSchema = ScenarioObjectSchema.superRefine((s, ctx) => {
     ctx.addIssue({ code: 'custom', path: pathFromDotted(p.path), input: p.value, message: p.message });
   }
 });
-
-function pathFromDotted(path: string): (string | number)[] {
-  const out: (string | number)[] = [];
-  for (const m of path.matchAll(/([^.[\]]+)|\[(\d+)\]/g)) out.push(m[2] !== undefined ? Number(m[2]) : m[1]);
-  return out;
-}
 
 /** A validated scenario; numeric parameters may still be distributions. */
 export type Scenario = z.infer<typeof ScenarioSchema>;
