@@ -201,8 +201,9 @@ export function parameterRows(scenario: Scenario, raw?: unknown, used?: RunResul
   const add = (group: string, path: (string | number)[], spec: FieldSpec | null, label?: string, unit?: string) => {
     const v = valueAt(scenario, path);
     if (v === undefined) return;
-    // A value fitted to survey records says so ("fitted to 37 detections, 2019–2025"; analysis/calibration/fit.ts).
-    const fitted = scenario.calibration?.paths.includes(path.join('.')) ? scenario.calibration.sentence : undefined;
+    // A value fitted to survey records says so ("fitted to 37 detections, 2019–2025"; analysis/calibration/fit.ts);
+    // adoption always writes a distribution, so a value since replaced by a plain number is no longer the fit's.
+    const fitted = scenario.calibration?.paths.includes(path.join('.')) && isDistribution(v) ? scenario.calibration.sentence : undefined;
     rows.push({ group, label: label ?? spec?.label ?? String(path[path.length - 1]), value: quantityText(v), unit: unit ?? (spec?.unit || NO_UNIT), source: fitted ?? sourceText(spec, path, v, ctx) });
   };
   const pest = 'Pest profile';

@@ -12,6 +12,9 @@ describe("briefing parameter table: values fitted to survey records", () => {
     expect(rows.find((r) => r.label === 'Movement in host forest')?.source).toBe(sentence);
     expect(rows.filter((r) => r.source === sentence).length).toBe(1);
     expect(parameterRows(base).some((r) => r.source.includes('fitted to'))).toBe(false);
+    // A fitted value later replaced by a plain number no longer claims the fit.
+    const edited = parseScenario({ ...base, pest: { ...base.pest, diffusionHost: 0.3 }, calibration: { sentence, paths: ['pest.diffusionHost'] } });
+    expect(parameterRows(edited).some((r) => r.source === sentence)).toBe(false);
   });
   it('the provenance field is validated like any other', () => {
     expect(() => parseScenario({ ...base, calibration: { sentence: '' } })).toThrow(/calibration.sentence/);
