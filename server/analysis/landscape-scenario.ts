@@ -12,7 +12,7 @@ import { TOOL } from '../version.ts';
 import { loadLandscape, type LoadedLandscape, type MapFiles } from '../domain/gis/load.ts';
 import { evaluateLandscape } from './landscape/evaluate.ts';
 import { fieldToJson, type LandscapeResult, type WayPast } from './landscape/result.ts';
-import { CAUTIONS } from './cautions.ts';
+import { CAUTIONS } from './evaluate/cautions.ts';
 
 export const LANDSCAPE_DOCUMENT_VERSION = 1;
 

@@ -2,7 +2,7 @@
  * The one resolution policy: cell size and time step of every run, and the limits on both. Every run an
  * evaluation makes (baseline, option runs, window runs, bypass runs, mosaic patterns, ensemble draws) takes
  * its resolution from here, and the web server's limit check counts cells with the same functions
- * (web/limits.ts via plannedRuns in analysis/planned-runs.ts), so what it reports is what the run uses.
+ * (web/limits.ts via plannedRuns in analysis/evaluate/planned-runs.ts), so what it reports is what the run uses.
  */
 import { habitatCoefficients } from '../model/habitat.ts';
 import { growthRateScale } from '../model/growth.ts';

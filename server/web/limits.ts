@@ -32,7 +32,7 @@ export const DEFAULT_LIMITS: WebLimits = {
 
 /**
  * Checks a validated scenario against the limits before it is queued: every full-layout run the evaluation
- * will make (baseline, options, bypass runs, mosaic patterns, ensemble draws; see analysis/planned-runs.ts)
+ * will make (baseline, options, bypass runs, mosaic patterns, ensemble draws; see analysis/evaluate/planned-runs.ts)
  * is counted with the run's own resolution policy, so the count quoted is the one the run would use.
  * @throws LimitError listing every limit the scenario breaks
  */

@@ -6,8 +6,8 @@
 import type { Problem } from '../model/errors.ts';
 import { habitatCoefficients } from '../model/habitat.ts';
 import { pointScenario, type Scenario } from '../model/scenario.ts';
-import { buildLayout } from '../analysis/layout.ts';
-import { chooseResolution, discretise, growthRateScale } from '../analysis/discretise.ts';
+import { buildLayout } from '../problem/layout.ts';
+import { chooseResolution, discretise, growthRateScale } from '../problem/discretise.ts';
 
 /** Cells and steps of a run below which neither is called the cause (a few hundred ms of computing). */
 const TYPICAL_CELLS = 2_000;

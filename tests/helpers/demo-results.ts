@@ -9,7 +9,7 @@ import { existsSync, mkdirSync, readFileSync, readdirSync, statSync, writeFileSy
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { parseScenario, type Scenario } from '../../server/model/scenario.ts';
-import { evaluateScenario } from '../../server/analysis/evaluate.ts';
+import { evaluateScenario } from '../../server/analysis/evaluate/evaluate.ts';
 import type { ResultDocument } from '../../server/analysis/result.ts';
 
 const ROOT = fileURLToPath(new URL('../../', import.meta.url));

@@ -1,6 +1,6 @@
 /**
  * Direct access to the engine's numerics for convergence studies: the same operator, steppers and split
- * time loop that analysis/simulate.ts wires together, on grids the tests build themselves (including
+ * time loop that analysis/run/simulate.ts wires together, on grids the tests build themselves (including
  * piecewise-uniform grids with very different cell sizes per piece).
  */
 import type { Grid } from '../../server/numerics/grid.ts';

@@ -7,7 +7,7 @@ import { makePoolRunner } from '../../server/jobs/pool-runner.ts';
 import { makeInlineRunner } from '../../server/jobs/inline-runner.ts';
 import { CancelledError } from '../../server/jobs/task-runner.ts';
 import { runEvaluation } from '../../server/jobs/evaluation-job.ts';
-import { evaluateScenario } from '../../server/analysis/evaluate.ts';
+import { evaluateScenario } from '../../server/analysis/evaluate/evaluate.ts';
 import { parseScenario } from '../../server/model/scenario.ts';
 import { smallEnsembleScenario } from '../analysis/ensemble/ensemble-fixture.ts';
 import { comparable } from './compare.ts';

@@ -11,7 +11,7 @@ import { join } from 'node:path';
 import { randomUUID } from 'node:crypto';
 import { buildApp } from '../../server/app.ts';
 import { makeQueueRunner } from '../../server/jobs/queue-runner.ts';
-import { evaluateScenario } from '../../server/analysis/evaluate.ts';
+import { evaluateScenario } from '../../server/analysis/evaluate/evaluate.ts';
 import { parseScenario } from '../../server/model/scenario.ts';
 import { smallEnsembleScenario } from '../analysis/ensemble/ensemble-fixture.ts';
 import { FIXTURE_SCENARIOS_DIR, waitForJob } from '../helpers/build-app.ts';

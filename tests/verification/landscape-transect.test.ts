@@ -9,11 +9,11 @@
 import { describe, expect, it } from 'vitest';
 import { makeLandscape } from '../helpers/landscape.ts';
 import { hostSegment, testPest, testScenario } from '../helpers/scenario.ts';
-import { buildLayout } from '../../server/analysis/layout.ts';
-import { chooseResolution } from '../../server/analysis/discretise.ts';
-import { runLayout } from '../../server/analysis/simulate.ts';
-import { rightFrontKm } from '../../server/analysis/trackers.ts';
-import { analyseOption, criticalWidth } from '../../server/analysis/barrier.ts';
+import { buildLayout } from '../../server/problem/layout.ts';
+import { chooseResolution } from '../../server/problem/discretise.ts';
+import { runLayout } from '../../server/analysis/run/simulate.ts';
+import { rightFrontKm } from '../../server/analysis/run/trackers.ts';
+import { analyseOption, criticalWidth } from '../../server/analysis/verdict/barrier.ts';
 import { evaluateLandscape } from '../../server/analysis/landscape/evaluate.ts';
 import { landscapeProblem, problemStepper } from '../../server/analysis/landscape/problem.ts';
 

@@ -10,7 +10,7 @@ import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { buildApp } from '../../server/app.ts';
 import { openStore } from '../../server/web/store.ts';
-import { evaluateScenario } from '../../server/analysis/evaluate.ts';
+import { evaluateScenario } from '../../server/analysis/evaluate/evaluate.ts';
 import { parseScenario } from '../../server/model/scenario.ts';
 import { jobPayload, statusText, timeLeftText } from '../../server/web/routes/run-pages.ts';
 import type { JobView } from '../../server/web/jobs.ts';

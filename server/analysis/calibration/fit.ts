@@ -12,8 +12,8 @@ import { isDistribution, quantile, centralValue, type Distribution, type Quantit
 import { InputError } from '../../model/errors.ts';
 import { SurveyError, surveyProblems, type SurveyTable } from '../../model/survey.ts';
 import { makeRng } from '../../numerics/rng.ts';
-import { buildLayout } from '../layout.ts';
-import { runLayout } from '../simulate.ts';
+import { buildLayout } from '../../problem/layout.ts';
+import { runLayout } from '../run/simulate.ts';
 import { fitFront, type FrontFit, type FlaggedRecord } from './front.ts';
 import { movementRateFromSpeed, unitSpeed, type UnitSpeed } from './inversion.ts';
 import { densitiesAtStart, detectionProbability, recordArrays, simulateAtPositions, type StartStretch } from './likelihood.ts';

@@ -12,8 +12,8 @@
 import type { PointScenario } from '../../model/scenario.ts';
 import type { PointGrowth } from '../../model/growth.ts';
 import { lowDensityRate } from '../../model/growth.ts';
-import { strongAllee } from '../barrier-growth.ts';
-import { measureMosaicSpeed } from '../mosaic.ts';
+import { strongAllee } from '../run/barrier-growth.ts';
+import { measureMosaicSpeed } from '../mosaic/mosaic.ts';
 
 /** Fisher–KPP speed c = 2√(rD) [km/yr]. */
 export function fisherSpeed(rate: number, diffusion: number): number {

@@ -12,10 +12,10 @@
  */
 import type { PointScenario } from '../../model/scenario.ts';
 import type { Observer, FieldState } from '../../numerics/time-loop.ts';
-import { buildLayout } from '../layout.ts';
-import { runLayout } from '../simulate.ts';
-import { discretise, type Resolution } from '../discretise.ts';
-import { makeProbe, probeValue, type PointProbe } from '../trackers.ts';
+import { buildLayout } from '../../problem/layout.ts';
+import { runLayout } from '../run/simulate.ts';
+import { discretise, type Resolution } from '../../problem/discretise.ts';
+import { makeProbe, probeValue, type PointProbe } from '../run/trackers.ts';
 import { goldenSectionMin } from '../../numerics/minimise.ts';
 
 /** Rate of detections that no density explains (ε). */

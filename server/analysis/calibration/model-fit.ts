@@ -11,8 +11,8 @@ import type { PointScenario } from '../../model/scenario.ts';
 import { FIELDS } from '../../model/fields.ts';
 import { InputError } from '../../model/errors.ts';
 import { goldenSectionMin } from '../../numerics/minimise.ts';
-import { buildLayout } from '../layout.ts';
-import { chooseResolution, type Resolution } from '../discretise.ts';
+import { buildLayout } from '../../problem/layout.ts';
+import { chooseResolution, type Resolution } from '../../problem/discretise.ts';
 import { CHI2_1_90 } from './statistics.ts';
 import { fitNuisance, simulateAtPositions, type NuisanceFit, type RecordArrays, type StartStretch } from './likelihood.ts';
 

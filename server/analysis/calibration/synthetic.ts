@@ -6,8 +6,8 @@
 import type { PointScenario } from '../../model/scenario.ts';
 import type { SurveyRecord } from '../../model/survey.ts';
 import type { Rng } from '../../numerics/rng.ts';
-import { buildLayout } from '../layout.ts';
-import { chooseResolution, type Resolution } from '../discretise.ts';
+import { buildLayout } from '../../problem/layout.ts';
+import { chooseResolution, type Resolution } from '../../problem/discretise.ts';
 import { detectionProbability, simulateAtPositions, type PositionSeries, type StartStretch } from './likelihood.ts';
 
 /** Where and when the team surveys: the same positions every year, with one effort. */

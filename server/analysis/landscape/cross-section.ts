@@ -1,14 +1,14 @@
 /**
  * The band's cross-section: the 1-D transect analysis along the band's normal (host forest — band — host
  * forest at the stocking around the band), whose critical width (the narrowest band that pins a front in
- * 1-D, bisection on full-model runs; see analysis/barrier.ts) is reported beside the 2-D result, stated as
+ * 1-D, bisection on full-model runs; see analysis/verdict/barrier.ts) is reported beside the 2-D result, stated as
  * a 1-D result: in 2-D a band can also be bypassed around its ends, and a curved front meets it differently.
  */
 import type { RasterLandscape } from '../../domain/raster.ts';
 import { parseScenario, pointScenario } from '../../model/scenario.ts';
 import { InputError } from '../../model/errors.ts';
-import { criticalWidth } from '../barrier.ts';
-import { growthRateScale } from '../discretise.ts';
+import { criticalWidth } from '../verdict/barrier.ts';
+import { growthRateScale } from '../../problem/discretise.ts';
 import type { LandscapeProblem, PointPest } from './problem.ts';
 import type { LandscapeOptionResult, LandscapeSettings } from './result.ts';
 

@@ -12,7 +12,7 @@ import { formatPath } from '../../model/errors.ts';
 import { latinHypercube, makeRng } from '../../numerics/rng.ts';
 import { registerTask } from '../../jobs/tasks.ts';
 import type { TaskRunner } from '../../jobs/task-runner.ts';
-import { clipToField, fieldOfPath, probability } from '../ensemble.ts';
+import { clipToField, fieldOfPath, probability } from '../ensemble/ensemble.ts';
 import { evaluateLandscape, cellFactor } from './evaluate.ts';
 import { automaticStepYears, CLASS_HABITAT, coarsenLandscape, type PointPest } from './problem.ts';
 import type { LandscapeEnsembleResult, LandscapeSettings, WayPast } from './result.ts';

@@ -7,7 +7,7 @@ import { RASTER_CLASSES, type RasterLandscape } from '../../domain/raster.ts';
 import type { Pest } from '../../model/pest.ts';
 import { resolveQuantities } from '../../model/quantity.ts';
 import { InputError } from '../../model/errors.ts';
-import { CAUTIONS } from '../cautions.ts';
+import { CAUTIONS } from '../evaluate/cautions.ts';
 import { coarsenLandscape, landscapeProblem, type LandscapeProblem, type PointPest } from './problem.ts';
 import { fringeMatters, runLandscapeProblem, type RawRun } from './run.ts';
 import { bandDepth, bottleneckArrival } from './paths.ts';

@@ -19,8 +19,8 @@
  *    normal step; the deviation must shrink in both runs.
  * With host depletion the transect's die-out (upper-solution) bound is not carried over to maps: not verified.
  */
-import { strongAllee, potentialThreshold } from '../barrier-growth.ts';
-import { growthRateScale } from '../discretise.ts';
+import { strongAllee, potentialThreshold } from '../run/barrier-growth.ts';
+import { growthRateScale } from '../../problem/discretise.ts';
 import { applyRasterOperator } from '../../numerics/raster/operator.ts';
 import { CancelledError } from '../../jobs/task-runner.ts';
 import { problemStepper, type LandscapeProblem, type PointPest } from './problem.ts';

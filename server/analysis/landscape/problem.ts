@@ -11,8 +11,8 @@ import type { Habitat, PointScenario } from '../../model/scenario.ts';
 import { LimitError } from '../../model/errors.ts';
 import { makeRasterOperator, type RasterOperator } from '../../numerics/raster/operator.ts';
 import { makeRasterStepper, type RasterStepper } from '../../numerics/raster/stepper.ts';
-import { chooseResolution, growthRateScale } from '../discretise.ts';
-import type { Piece } from '../layout.ts';
+import { chooseResolution, growthRateScale } from '../../problem/discretise.ts';
+import type { Piece } from '../../problem/layout.ts';
 
 export type PointPest = PointScenario['pest'];
 

@@ -5,7 +5,8 @@
 import { CancelledError } from '../../jobs/task-runner.ts';
 import type { LandscapeProblem, PointPest } from './problem.ts';
 import { problemStepper } from './problem.ts';
-import { establishedLevel, smallGroupsFail } from '../barrier-growth.ts';
+import { establishedLevel } from '../run/barrier-growth.ts';
+import { hasStrongAllee } from '../../model/growth.ts';
 import type { LandscapeNumerics } from './result.ts';
 
 export interface RunSettings {
@@ -52,7 +53,7 @@ export function establishedAtCells(p: LandscapeProblem, pest: PointPest): Float6
 
 /** True when the pest has an Allee threshold (small groups fail): then a detected fringe need not breed. */
 export function fringeMatters(pest: PointPest): boolean {
-  return smallGroupsFail(pest.growth, 1);
+  return hasStrongAllee(pest.growth, 1);
 }
 
 export function runLandscapeProblem(p: LandscapeProblem, pest: PointPest, s: RunSettings): RawRun {

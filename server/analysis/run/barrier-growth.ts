@@ -45,9 +45,6 @@ export function potential(g: PointGrowth, h: number): (u: number) => number {
   };
 }
 
-/** The one definition lives in model/growth.ts (`hasStrongAllee`); this name stays for one round. */
-export { hasStrongAllee as smallGroupsFail } from '../../model/growth.ts';
-
 /**
  * Strong Allee effect with a carrying capacity at host fraction h: small groups fail and the density settles
  * at a capacity (what the bistable front, its potential F and the phase-plane criterion need).

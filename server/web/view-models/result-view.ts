@@ -1,6 +1,6 @@
 /**
  * View-models of the results and compare pages: the result document's numbers as text, in tables.
- * Formatting only — every number shown was computed by the analysis (server/analysis/evaluate.ts); the
+ * Formatting only — every number shown was computed by the analysis (server/analysis/evaluate/evaluate.ts); the
  * decision words (headline, verdict with transport risk, recommended width, site events, width–delay cells,
  * spread rates) come from server/report/decision.ts, which the CLI and the briefing use too.
  * Option fields filled by the barrier analysis (verdict, sites, trees, critical width, width–delay) are

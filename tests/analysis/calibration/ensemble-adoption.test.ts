@@ -5,7 +5,7 @@ import { parseSurveyCsv } from '../../../server/model/survey.ts';
 import { adoptFit, fitSurvey } from '../../../server/analysis/calibration/fit.ts';
 import { withValue } from '../../../server/analysis/calibration/model-fit.ts';
 import { normalCdf } from '../../../server/analysis/calibration/statistics.ts';
-import { coarsened, evaluatePoint, runEnsemble } from '../../../server/analysis/ensemble.ts';
+import { coarsened, evaluatePoint, runEnsemble } from '../../../server/analysis/ensemble/ensemble.ts';
 import { RECORDS_FILE, SCENARIO_FILE, TRUTH } from '../../../scenarios/generate-survey-records.ts';
 
 /**

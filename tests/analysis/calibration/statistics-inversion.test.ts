@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { expectAllClose } from '../../helpers/close.ts';
 import { normalCdf, studentTQuantile, theilSenLine, leastSquaresLine, CHI2_1_90, Z90 } from '../../../server/analysis/calibration/statistics.ts';
 import { fisherMovementRate, fisherSpeed, nagumoMovementRate, nagumoSpeed, movementRateFromSpeed, unitSpeed } from '../../../server/analysis/calibration/inversion.ts';
-import { measureMosaicSpeed } from '../../../server/analysis/mosaic.ts';
+import { measureMosaicSpeed } from '../../../server/analysis/mosaic/mosaic.ts';
 import { testPest, testScenario, hostSegment } from '../../helpers/scenario.ts';
 import type { ScenarioInput } from '../../../server/model/scenario.ts';
 

@@ -1,2 +1,0 @@
-/** Moved to server/analysis/ensemble/ensemble.ts; this re-export stays for one round so other branches keep compiling. */
-export * from './ensemble/ensemble.ts';
