@@ -140,7 +140,7 @@ function crossedHabitats(s: PointScenario, positions: number[], start: { fromKm:
 const STRATA = (n: number) => Array.from({ length: n }, (_, k) => (k + 0.5) / n);
 
 /** Lognormal whose 5 % and 95 % points are the range's ends. */
-function lognormalFor([lo, hi]: [number, number]): Distribution {
+export function lognormalFor([lo, hi]: [number, number]): Distribution {
   return { dist: 'lognormal', median: sig(Math.sqrt(lo * hi)), spread: sig(Math.max(1, Math.exp(Math.log(hi / lo) / (2 * Z90)))) };
 }
 
@@ -177,9 +177,12 @@ function mixtureQuantile(parts: { w: number; mu: number; sLo: number; sHi: numbe
   return 0.5 * (lo + hi);
 }
 
-/** D from the front's spread rate, carrying an uncertain growth rate through by seeded Monte Carlo. */
-function quickEstimate(s: Scenario, point: PointScenario, front: FrontFit): QuickEstimate {
-  const unit = unitSpeed(point);
+/**
+ * D from the front's spread rate, carrying an uncertain growth rate through by seeded Monte Carlo.
+ * @param stocking - host stocking of the forest the front spread through (1: fully stocked)
+ */
+export function quickEstimate(s: Scenario, point: PointScenario, front: FrontFit, stocking = 1): QuickEstimate {
+  const unit = unitSpeed(point, stocking);
   if (front.kmPerYear === null || !(front.kmPerYear > 0) || unit.kmPerYear === null) {
     return { unitSpeed: unit, diffusion: null, interval90: null, note: front.kmPerYear !== null && front.kmPerYear <= 0 ? 'the front does not advance: no movement rate follows from its speed' : unit.note };
   }
@@ -203,7 +206,7 @@ function quickEstimate(s: Scenario, point: PointScenario, front: FrontFit): Quic
   for (let i = 0; i < 4000; i++) {
     const ci = c + se * studentTQuantile(rng.nextOpen(), Math.max(1, front.degreesOfFreedom));
     const r = quantile(prior, rng.nextOpen());
-    const u = unitSpeed(withValue(point, gp, r)).kmPerYear as number;
+    const u = unitSpeed(withValue(point, gp, r), stocking).kmPerYear as number;
     draws.push(ci > 0 ? movementRateFromSpeed(ci, u) : 0);
   }
   draws.sort((a, b) => a - b);
