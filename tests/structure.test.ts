@@ -105,7 +105,6 @@ const COVERED_ELSEWHERE: Record<string, Cover> = {
   'server/analysis/calibration/front.ts': { by: ['tests/analysis/calibration/fit.test.ts', 'tests/analysis/calibration/map-fit.test.ts'], why: INDIRECT },
   'server/analysis/calibration/inversion.ts': { by: ['tests/analysis/calibration/statistics-inversion.test.ts'], why: INDIRECT },
   'server/analysis/calibration/statistics.ts': { by: ['tests/analysis/calibration/statistics-inversion.test.ts', 'tests/analysis/calibration/ensemble-adoption.test.ts'], why: INDIRECT },
-  'server/analysis/mosaic/mosaic.ts': { by: ['tests/verification/mosaic.test.ts', 'tests/analysis/calibration/statistics-inversion.test.ts'], why: INDIRECT },
   'server/domain/gis/contours.ts': { by: ['tests/report/maps/maps.test.ts'], why: INDIRECT },
   'server/domain/gis/errors.ts': { by: ['tests/domain/gis/geotiff.test.ts', 'tests/domain/gis/load.test.ts'], why: INDIRECT },
   'server/domain/gis/geojson.ts': { by: ['tests/domain/gis/rasterise.test.ts', 'tests/domain/gis/downloads.test.ts'], why: INDIRECT },
