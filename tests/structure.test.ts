@@ -112,11 +112,7 @@ const COVERED_ELSEWHERE: Record<string, Cover> = {
   'server/domain/gis/resample.ts': { by: ['tests/domain/gis/demo-landscape.test.ts', 'tests/domain/gis/load.test.ts'], why: INDIRECT },
   'server/jobs/json-safe.ts': { by: ['tests/numerics/finite.test.ts', 'tests/golden/demos.test.ts'], why: INDIRECT },
   'server/jobs/task-runner.ts': { by: ['tests/jobs/inline-runner.test.ts', 'tests/jobs/pool-runner.test.ts'], why: INDIRECT },
-  'server/model/errors.ts': { by: ['tests/model/landscape.test.ts', 'tests/model/scenario-validation.test.ts'], why: INDIRECT },
-  'server/model/fields.ts': { by: ['tests/model/quantity.test.ts', 'tests/analysis/ensemble/ensemble-resolution.test.ts'], why: INDIRECT },
-  'server/model/text.ts': { by: ['tests/model/canonical.test.ts', 'tests/model/landscape.test.ts'], why: INDIRECT },
   'server/report/decision.ts': { by: ['tests/report/briefing.test.ts'], why: INDIRECT },
-  'server/report/format.ts': { by: ['tests/analysis/ensemble/ensemble.test.ts', 'tests/report/briefing.test.ts'], why: INDIRECT },
   // web/
   'server/web/briefing-worker.ts': { by: ['tests/web/api.test.ts'], why: WORKER + ' (the briefing download renders in it)' },
   'server/web/briefings.ts': { by: ['tests/web/api.test.ts'], why: WEB },
