@@ -43,7 +43,6 @@ const COVERED_ELSEWHERE: Record<string, Cover> = {
   // analysis/
   'server/analysis/bypass/analyse-bypass.ts': { by: ['tests/analysis/evaluate/evaluate.test.ts', 'tests/golden/demos.test.ts'], why: 'adds the bypass section around the kernel (bypass.ts, tested on its own); its numbers are pinned by the golden demo documents' },
   'server/analysis/calibration/fit-worker.ts': { by: ['tests/web/fit-pages.test.ts'], why: WORKER + ' (the fit page runs the fit in it)' },
-  'server/analysis/calibration/likelihood.ts': { by: ['tests/analysis/calibration/fit.test.ts', 'tests/analysis/calibration/map-fit.test.ts'], why: 'detection likelihood inside the fit: recovery of known parameters from engine-simulated records with fixed seeds' },
   'server/analysis/calibration/model-fit.ts': { by: ['tests/analysis/calibration/fit.test.ts', 'tests/analysis/calibration/ensemble-adoption.test.ts'], why: 'profile likelihood over D: checked by recovery on simulated records and by the adopted range in the ensemble' },
   'server/analysis/calibration/synthetic.ts': { by: ['tests/analysis/calibration/fit.test.ts', 'tests/analysis/calibration/map-fit.test.ts'], why: 'test-data generator (records from known parameters): it is the truth side of the recovery tests' },
   'server/analysis/ensemble/ensemble-pool.ts': { by: ['tests/analysis/ensemble/ensemble.test.ts'], why: 'pool wrapper: the ensemble test checks pool and inline give identical draws' },
@@ -102,16 +101,14 @@ const COVERED_ELSEWHERE: Record<string, Cover> = {
   'server/report/pdf/flow.ts': { by: ['tests/report/briefing.test.ts'], why: PDF + ' (the stress test pins the page count)' },
   'server/report/text-summary.ts': { by: ['tests/web/consistency.test.ts', 'tests/cli.test.ts'], why: 'the text summary: the consistency test checks it says what the web page and briefing say' },
   // No test of its own yet: checked only indirectly, through the tests named (the next ones to write).
-  'server/analysis/calibration/front.ts': { by: ['tests/analysis/calibration/fit.test.ts', 'tests/analysis/calibration/map-fit.test.ts'], why: INDIRECT },
-  'server/analysis/calibration/inversion.ts': { by: ['tests/analysis/calibration/statistics-inversion.test.ts'], why: INDIRECT },
-  'server/analysis/calibration/statistics.ts': { by: ['tests/analysis/calibration/statistics-inversion.test.ts', 'tests/analysis/calibration/ensemble-adoption.test.ts'], why: INDIRECT },
+  'server/analysis/calibration/inversion.ts': { by: ['tests/analysis/calibration/statistics-inversion.test.ts'], why: 'closed-form Fisher–KPP and Nagumo inversions to round-off, and the engine-measured unit speed: one test file with statistics.ts (not split while the calibration tests are being edited elsewhere)' },
+  'server/analysis/calibration/statistics.ts': { by: ['tests/analysis/calibration/statistics-inversion.test.ts'], why: 't quantiles against the printed table and scipy, normal points, Theil–Sen and least squares by hand: one test file with inversion.ts' },
   'server/domain/gis/contours.ts': { by: ['tests/report/maps/maps.test.ts'], why: INDIRECT },
   'server/domain/gis/errors.ts': { by: ['tests/domain/gis/geotiff.test.ts', 'tests/domain/gis/load.test.ts'], why: INDIRECT },
   'server/domain/gis/geojson.ts': { by: ['tests/domain/gis/rasterise.test.ts', 'tests/domain/gis/downloads.test.ts'], why: INDIRECT },
   'server/domain/gis/geometry.ts': { by: ['tests/report/maps/maps.test.ts', 'tests/domain/gis/rasterise.test.ts'], why: INDIRECT },
   'server/domain/gis/resample.ts': { by: ['tests/domain/gis/demo-landscape.test.ts', 'tests/domain/gis/load.test.ts'], why: INDIRECT },
-  'server/jobs/json-safe.ts': { by: ['tests/numerics/finite.test.ts', 'tests/golden/demos.test.ts'], why: INDIRECT },
-  'server/jobs/task-runner.ts': { by: ['tests/jobs/inline-runner.test.ts', 'tests/jobs/pool-runner.test.ts'], why: INDIRECT },
+  'server/jobs/task-runner.ts': { by: ['tests/jobs/inline-runner.test.ts', 'tests/jobs/pool-runner.test.ts'], why: 'the TaskRunner interface with two constants and the CancelledError class; the runner tests check the contract (order, cancel, progress) on every runner' },
   'server/report/decision.ts': { by: ['tests/report/briefing.test.ts'], why: INDIRECT },
   // web/
   'server/web/briefing-worker.ts': { by: ['tests/web/api.test.ts'], why: WORKER + ' (the briefing download renders in it)' },
