@@ -23,7 +23,9 @@ import { RASTER_CLASSES, type RasterLandscape } from '../../domain/raster.ts';
 import { fitFront, type FrontFit, type FlaggedRecord } from './front.ts';
 import { unitSpeed } from './inversion.ts';
 import { studentTQuantile } from './statistics.ts';
-import { FIT_CAUTIONS, lognormalFor, quickEstimate, type FittedParameter, type QuickEstimate } from './fit.ts';
+import { FIT_CAUTIONS } from './fit.ts';
+import { quickEstimate, type QuickEstimate } from './quick.ts';
+import { lognormalFor, type FittedParameter } from './ranges.ts';
 
 /** The infestation's centre [map m] and its equivalent radius √(A/π) [km]. */
 export interface MapOrigin {
