@@ -1,7 +1,7 @@
 /** The ensemble plan: parameter order and labels, clipping into range, Latin hypercube strata, draws through quantiles. */
 import { describe, expect, it } from 'vitest';
 import { clipToField, drawScenario, drawToleranceM, drawValues, fieldOfPath, parameterLabel, planEnsemble } from '../../../server/analysis/ensemble/plan.ts';
-import { FIELDS } from '../../../server/model/fields.ts';
+import { FIELDS, type FieldSpec } from '../../../server/model/fields.ts';
 import { parseScenario, pointScenario } from '../../../server/model/scenario.ts';
 import { normalQuantile } from '../../../server/model/quantity.ts';
 import { expectAllClose } from '../../helpers/close.ts';
@@ -54,19 +54,20 @@ describe('planEnsemble', () => {
   it('drawScenario: the point scenario holds the draw and the central values elsewhere', () => {
     const d = drawScenario(scenario, plan, 3);
     expect(d.point.pest.diffusionHost).toBe(d.values[0]);
-    expect(d.point.transect.segments[0].stocking).toBe(d.values[2]);
+    expect((d.point.transect.segments[0] as { stocking: number }).stocking).toBe(d.values[2]);
     expect(d.point.pest.edgePreferenceOpen).toBe(0.5);
   });
 });
 
 describe('clipToField and drawToleranceM', () => {
   it('values outside a field are moved to its bounds (1e-9 inside an exclusive bound)', () => {
-    const spec = { ...FIELDS.edgePreferenceOpen };
-    expect(clipToField(spec, 0.3)).toBe(0.3);
-    const lowClip = clipToField(spec, spec.min - 1);
-    const highClip = clipToField(spec, spec.max + 1);
-    expect(lowClip).toBe(spec.minExclusive ? spec.min + 1e-9 * Math.max(1, Math.abs(spec.min)) : spec.min);
-    expect(highClip).toBe(spec.maxExclusive ? spec.max - 1e-9 * Math.max(1, Math.abs(spec.max)) : spec.max);
+    const inclusive: FieldSpec = FIELDS.edgePreferenceOpen; // [1e-6, 0.999999], bounds allowed
+    expect(clipToField(inclusive, 0.3)).toBe(0.3);
+    expect(clipToField(inclusive, -2)).toBe(1e-6);
+    expect(clipToField(inclusive, 1.5)).toBe(0.999999);
+    const exclusive: FieldSpec = { ...inclusive, min: 0, max: 50, minExclusive: true, maxExclusive: true };
+    expect(clipToField(exclusive, 0)).toBe(1e-9); // 0 + 1e-9 × max(1, |0|)
+    expect(clipToField(exclusive, 70)).toBe(50 - 1e-9 * 50);
   });
   it('tolerance: the scenario’s (default 10 m) or 2 % of the width, whichever is larger', () => {
     const p = pointScenario(scenario);
