@@ -5,7 +5,7 @@
  */
 import { FIELDS } from '../model/fields.ts';
 import type { Problem } from '../model/errors.ts';
-import { applies, DIST_PARTS, EXTRA_INPUT, FORM_SECTIONS, ROW_GROUPS, type FormFieldDef, type FormState } from './form-state.ts';
+import { applies, DIST_PARTS, EXTRA_INPUT, FORM_SECTIONS, ROW_GROUPS, type FormFieldDef, type FormState } from './form-layout.ts';
 import { readNumberList, readNumberText } from './form-number.ts';
 import { rowIndices, UNSAFE_KEYS } from './form-rows.ts';
 

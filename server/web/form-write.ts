@@ -4,7 +4,7 @@
  */
 import { valueAt } from '../model/errors.ts';
 import { isDistribution } from '../model/quantity.ts';
-import { ALL_DIST_PARTS, EXTRA_INPUT, FORM_SECTIONS, ROW_GROUPS, type FormFieldDef, type FormState } from './form-state.ts';
+import { ALL_DIST_PARTS, EXTRA_INPUT, FORM_SECTIONS, ROW_GROUPS, type FormFieldDef, type FormState } from './form-layout.ts';
 
 type Obj = Record<string, unknown>;
 
