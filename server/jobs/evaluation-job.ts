@@ -161,9 +161,10 @@ export async function runEvaluation(scenario: Scenario, runner: TaskRunner, hook
     const draws: unknown[] = [];
     for (let k = 0; k < chunks.length; k++) draws.push(...(done.get(k) as unknown[]));
     progress(0.999, 'summarising the ensemble');
+    const capacity = runner.capacity?.() ?? { tasks: runner.concurrency, text: `this machine, ${runner.concurrency} thread${runner.concurrency === 1 ? '' : 's'}` };
     const [doc] = await runner.map<FinishTask, unknown>(
       'evaluation-finish',
-      [{ scenario, document, draws, threads: runner.concurrency, wallMs: ensembleMs }],
+      [{ scenario, document, draws, threads: capacity.tasks, ranOn: capacity.text, wallMs: ensembleMs }],
       { signal: inner.signal, key: `${key}:finish` },
     );
     return { kind: 'done', document: fromJsonSafe<ResultDocument>(doc) };

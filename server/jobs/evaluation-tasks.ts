@@ -50,6 +50,8 @@ export interface FinishTask {
   draws: unknown;
   /** Workers that shared the draws (reported in the document). */
   threads: number;
+  /** Where the draws ran, in words (reported in the document). */
+  ranOn?: string;
   /** Wall time of the ensemble [ms]. */
   wallMs: number;
 }
@@ -153,7 +155,10 @@ export function runPoint(task: PointTask, ctx: TaskContext = NO_CONTEXT): PointO
 export function runFinish(task: FinishTask, ctx: TaskContext = NO_CONTEXT): unknown {
   const single = fromJsonSafe<ResultDocument>(task.document);
   const draws = fromJsonSafe<DrawOutcome[]>(task.draws);
-  const uncertainty = summariseEnsemble(task.scenario, planOf(task.scenario), draws, { status: 'completed', threads: task.threads, wallMs: task.wallMs });
+  const uncertainty = {
+    ...summariseEnsemble(task.scenario, planOf(task.scenario), draws, { status: 'completed', threads: task.threads, wallMs: task.wallMs }),
+    ...(task.ranOn ? { ranOn: task.ranOn } : {}),
+  };
   const bypass = analyseBypass(buildProblem(resolve(task.scenario)), single.options, uncertainty, () => ctx.shouldCancel());
   if (ctx.shouldCancel()) throw new CancelledError();
   const document: ResultDocument = {

@@ -184,6 +184,8 @@ export async function makeQueueRunner(opts: QueueRunnerOptions): Promise<QueueRu
     },
     concurrency: Math.max(1, opts.concurrency ?? 4),
     workers: () => workerCount,
+    // Each queue worker runs THREADS tasks at once; the web server sees processes, not their threads.
+    capacity: () => ({ tasks: Math.max(1, workerCount), text: `${workerCount} queue worker${workerCount === 1 ? '' : 's'}` }),
     health(): RunnerHealth {
       if (!healthy) return { ok: false, message: `Queue unavailable, retrying (${problem}). Accepted work is kept.` };
       if (workerCount === 0) return { ok: false, message: 'No queue worker is connected: the work waits in the queue until one starts (npm run worker).' };
