@@ -3,7 +3,8 @@
  * worker processes of one thread each, Redis on 127.0.0.1 started here and stopped by PID), in one run,
  * interleaved (pool 1, queue 1, queue 2, pool 2, then again) so drifting machine load hits all alike.
  * Reports the 2-worker speed-up of the queue (target ≥ 1.8× on two free cores) and the queue's overhead
- * against the pool at equal worker count (target ≤ 10 %), and checks that the four give the same document.
+ * against the pool at equal worker count (target ≤ 10 %), and checks that the four, 3 queue workers and one
+ * thread without any runner (evaluateScenario) give the same document.
  * Workers and pool threads are started and warmed before the clock starts (start-up is not part of a run).
  *
  * The ensemble: the small test transect without barrier options at 10 m cells (each draw is one baseline run
@@ -15,6 +16,7 @@
 import { loadavg } from 'node:os';
 import { randomUUID } from 'node:crypto';
 import { parseScenario } from '../server/model/scenario.ts';
+import { evaluateScenario } from '../server/analysis/evaluate/evaluate.ts';
 import { makePoolRunner } from '../server/jobs/pool-runner.ts';
 import { makeQueueRunner } from '../server/jobs/queue-runner.ts';
 import { chunkCount, runEvaluation } from '../server/jobs/evaluation-job.ts';
@@ -85,6 +87,12 @@ try {
     load.push(loadavg()[0]);
     console.log(`round ${round + 1}: pool 1 thread ${times.pool1.at(-1)!.toFixed(2)} s, queue 1 worker ${times.queue1.at(-1)!.toFixed(2)} s, queue 2 workers ${times.queue2.at(-1)!.toFixed(2)} s, pool 2 threads ${times.pool2.at(-1)!.toFixed(2)} s`);
   }
+  // Same numbers everywhere: three queue workers, and one thread with no runner at all (evaluateScenario).
+  const extra = [await startQueueWorker(env), await startQueueWorker(env)];
+  await warm(queue);
+  docs.add((await timed(queue)).doc);
+  await Promise.all(extra.map((w) => w.kill()));
+  docs.add(comparable(JSON.parse(JSON.stringify(evaluateScenario(scenario)))));
   await Promise.all([queue.close(), pool1.close(), pool2.close()]);
 } finally {
   await Promise.allSettled(workers.map((w) => w.kill()));
@@ -106,5 +114,5 @@ console.log(`\n${DRAWS}-draw ensemble (${CELL_M} m cells, ${chunkCount(scenario)
 console.log(`median times: pool 1 thread ${med('pool1')} s, queue 1 worker ${med('queue1')} s, queue 2 workers ${med('queue2')} s, pool 2 threads ${med('pool2')} s`);
 console.log(`queue, 2 workers vs 1: speed-up ${speedup.toFixed(2)}× (target ≥ 1.8×: ${verdict(speedup >= 1.8)}); the local pool's 2 threads vs 1 in the same rounds: ${poolSpeedup.toFixed(2)}×`);
 console.log(`queue vs local pool, 1 worker: overhead ${(100 * over1).toFixed(1)} % (target ≤ 10 %: ${verdict(over1 <= 0.1)}); 2 workers: ${(100 * over2).toFixed(1)} % (${verdict(over2 <= 0.1)})`);
-console.log(`same document from all four: ${docs.size === 1 ? 'yes' : `NO (${docs.size} different)`}`);
+console.log(`same document from the pool (1 and 2 threads), 1, 2 and 3 queue workers and one thread without a runner: ${docs.size === 1 ? 'yes' : `NO (${docs.size} different)`}`);
 if (docs.size !== 1) process.exitCode = 1;
