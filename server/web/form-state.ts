@@ -41,6 +41,8 @@ export interface FormFieldDef {
   kind: InputKind;
   /** Key in FIELDS for label, unit, range and help (number and quantity inputs). */
   field?: keyof typeof FIELDS;
+  /** A movement rate that may also be typed as a typical distance moved per year (form-read.ts converts it). */
+  distanceInput?: true;
   label?: string;
   help?: string;
   choices?: readonly { value: string; label: string }[];
@@ -139,8 +141,8 @@ export const FORM_SECTIONS: readonly { id: string; title: string; intro?: string
       { path: 'pest.name', kind: 'text', label: 'Pest name', help: 'Name of the pest or of the profile used.' },
       { path: 'pest.illustrative', kind: 'checkbox', label: 'Illustrative values', help: 'Tick when the numbers are made up for a demonstration; every output then says so.' },
       { path: 'pest.notes', kind: 'textarea', label: 'Notes on the profile', help: 'Where the numbers come from.' },
-      { path: 'pest.diffusionHost', kind: 'quantity', field: 'diffusionHost' },
-      { path: 'pest.diffusionOpen', kind: 'quantity', field: 'diffusionOpen' },
+      { path: 'pest.diffusionHost', kind: 'quantity', field: 'diffusionHost', distanceInput: true },
+      { path: 'pest.diffusionOpen', kind: 'quantity', field: 'diffusionOpen', distanceInput: true },
       { path: 'pest.edgePreferenceOpen', kind: 'quantity', field: 'edgePreferenceOpen' },
       { path: 'pest.mortalityOpen', kind: 'quantity', field: 'mortalityOpen' },
       { path: 'pest.hostKillRate', kind: 'quantity', field: 'hostKillRate' },
@@ -173,7 +175,7 @@ export const FORM_SECTIONS: readonly { id: string; title: string; intro?: string
     id: 'nonhost',
     title: 'Non-host forest (needed only when the layout or an option has non-host forest)',
     fields: [
-      { path: 'pest.diffusionNonHost', kind: 'quantity', field: 'diffusionNonHost' },
+      { path: 'pest.diffusionNonHost', kind: 'quantity', field: 'diffusionNonHost', distanceInput: true },
       { path: 'pest.edgePreferenceNonHost', kind: 'quantity', field: 'edgePreferenceNonHost' },
       { path: 'pest.mortalityNonHost', kind: 'quantity', field: 'mortalityNonHost' },
     ],

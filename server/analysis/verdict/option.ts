@@ -245,14 +245,14 @@ export function analyseOption(sp: PointScenario | Problem, option: BarrierOption
     kind = marginal ? 'marginal' : 'holds';
     sentence = marginal
       ? `Marginal: the front was held in this run, but ${option.widthM} m is within the critical-width bracket's uncertainty (${bracket![0].toFixed(0)}–${bracket![1].toFixed(0)} m).`
-      : 'Holds: the front is pinned at the clearing and stays there (holds indefinitely under this model).';
+      : 'Holds: the front stops at the clearing and stays there (checked: under this model it holds indefinitely).';
   } else if (marginal) {
     kind = 'marginal';
-    sentence = `Marginal: ${option.widthM} m is within the critical-width bracket (${bracket![0].toFixed(0)}–${bracket![1].toFixed(0)} m); near this width the front lingers for a long time and pinning was not verified.`;
+    sentence = `Marginal: ${option.widthM} m is within the critical-width bracket (${bracket![0].toFixed(0)}–${bracket![1].toFixed(0)} m); near this width the front lingers for a long time, and it was not shown to stay stopped.`;
   } else if (optCross === null && baseCross !== null) {
     kind = 'not-crossed';
     sentence =
-      `Not crossed within the ${s.horizonYears}-year horizon (without the clearing the front passes this point in year ${baseCross.toFixed(1)}), but not shown to be pinned.` +
+      `Not crossed within the ${s.horizonYears}-year horizon (without the clearing the front passes this point in year ${baseCross.toFixed(1)}), but not shown to stay stopped.` +
       (projCross !== null ? ` Projected crossing: year ${projCross.toFixed(1)}.` : ' The extended run neither crossed nor settled.');
   } else if (optCross === null && baseCross === null) {
     kind = 'not-reached';
@@ -308,10 +308,10 @@ export function analyseOption(sp: PointScenario | Problem, option: BarrierOption
           method: PINNING_METHODS[pinningMode(s, 1)],
           detail:
             optCross !== null
-              ? 'not pinned: the front crossed the clearing'
+              ? 'not stopped: the front crossed the clearing'
               : pinningMode(s, 1) === 'none'
-                ? 'not applicable: no strong Allee effect'
-                : 'no verified steady state: a front that is still at the clearing when the run ends is not evidence of pinning (near the critical width fronts linger for a long time)',
+                ? 'not applicable: small groups of this pest do not die out (no strong Allee effect), so no clearing stops its front for good'
+                : 'not shown to stay stopped: a front still at the clearing when the run ends is no evidence that it stays there (near the critical width fronts linger for a long time; no steady state was verified)',
         },
     crossingYears: { baseline: baseCross, option: optCross, projected: projCross },
     sites,
