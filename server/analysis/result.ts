@@ -392,6 +392,8 @@ export interface UncertaintyResult {
   /** Worker threads used and wall time [ms] (does not change the numbers). */
   threads: number;
   wallMs: number;
+  /** Where the draws ran, in words ("this machine, 2 worker threads", "2 queue workers"); absent: `threads` threads here. */
+  ranOn?: string;
 }
 
 /** Human-carried bypass risk of one option (from the central-value run, and over the ensemble when there is one). */
