@@ -73,8 +73,16 @@ export interface RunResult {
     steps: number;
     /** Steps the step controller rejected and redid (always 0 with fixed steps). */
     rejectedSteps: number;
-    /** How step sizes were chosen: 'fixed' (the resolution's stepYears, the last step shortened to the end). */
+    /**
+     * How step sizes were chosen: 'fixed' (the resolution's stepYears, the last step shortened to the end) or
+     * 'adaptive' (error-controlled NDF steps at `tolerance`; stepYears is then the output interval).
+     */
     stepControl: 'fixed' | 'adaptive';
+    /** Relative tolerance of the adaptive steps (adaptive only). */
+    tolerance?: number;
+    /** Jacobian evaluations and factorisations of the adaptive integrator (adaptive only). */
+    jacobianEvaluations?: number;
+    factorisations?: number;
     fallbackSteps: number;
     reactionSubsteps: number;
     wallMs: number;

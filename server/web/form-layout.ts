@@ -225,6 +225,7 @@ export const FORM_SECTIONS: readonly { id: string; title: string; intro?: string
       { path: 'detectionLevel', kind: 'number', field: 'detectionLevel' },
       { path: 'numerics.cellM', kind: 'number', field: 'cellM' },
       { path: 'numerics.stepYears', kind: 'number', field: 'stepYears' },
+      { path: 'numerics.tolerance', kind: 'number', field: 'tolerance' },
     ],
   },
   {

@@ -55,7 +55,7 @@ const KNOWN: Record<string, readonly string[]> = {
   'transect.ends': ['left', 'right'],
   infestation: ['fromKm', 'toKm', 'density'],
   barrier: ['lengthKm', 'costPerStem', 'costUnit', 'options', 'toleranceM', 'curveWidthsM'],
-  numerics: ['cellM', 'stepYears'],
+  numerics: ['cellM', 'stepYears', 'tolerance'],
   uncertainty: ['draws', 'seed', 'targetStandardError', 'criticalWidth', 'resolutionFactor'],
   transport: ['ratePerKm2Year', 'kernel', 'establishmentProbability', 'forwardShare', 'bandWidthKm'],
   'transport.kernel': ['shape', 'meanKm', 'points'],
