@@ -78,6 +78,7 @@ const COVERED_ELSEWHERE: Record<string, Cover> = {
   // numerics/
   'server/numerics/raster/operator.ts': { by: ['tests/verification/landscape-numerics.test.ts', 'tests/verification/landscape-critical-patch.test.ts'], why: '2-D operator: checked against closed-form eigenvalues and the 1-D transect in the landscape verification tests' },
   'server/numerics/raster/stepper.ts': { by: ['tests/verification/landscape-numerics.test.ts', 'tests/verification/landscape-radial.test.ts'], why: '2-D stepper: convergence order and radial front speed in the landscape verification tests' },
+  'server/numerics/steppers/reaction-diffusion-system.ts': { by: ['tests/numerics/steppers/adaptive-loop.test.ts', 'tests/verification/adaptive-fronts.test.ts'], why: 'the engine equations as a stiff system (residual, Jacobian, lockstep solve) for the NDF stepper: its orders and its agreement with the coupled TR-BDF2 runs are the test' },
   // report/
   'server/report/briefing-text.ts': { by: ['tests/report/briefing.test.ts', 'tests/report/briefing-provenance.test.ts'], why: 'the briefing\'s words and tables; read back from the PDF and checked in the briefing tests' },
   'server/report/charts/for-result.ts': { by: ['tests/report/charts/charts.test.ts'], why: CHART },

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
-import { makeLockstepTridiagonal } from '../../server/numerics/linear/lockstep-tridiagonal.ts';
-import { makeTridiagonalSolver } from '../../server/numerics/tridiagonal.ts';
-import { expectAllClose } from '../helpers/close.ts';
+import { makeLockstepTridiagonal } from '../../../server/numerics/linear/lockstep-tridiagonal.ts';
+import { makeTridiagonalSolver } from '../../../server/numerics/tridiagonal.ts';
+import { expectAllClose } from '../../helpers/close.ts';
 
 /** Residual max |A x − b| of a tridiagonal system (an independent check of any solve). */
 function residual(lo: Float64Array, di: Float64Array, up: Float64Array, x: Float64Array, b: Float64Array, m: number): number {
