@@ -3,7 +3,7 @@
  * centre line as "x y" points separated by ";"), posted as `band[k].name` … ; the "Add a band" and
  * "Remove" buttons post the form with an `action` and the page comes back with the row added or removed.
  * Rows become the scenario's `bands.options` and are then checked by the one landscape schema, so the
- * problems name the same fields as in a file (bands.options.1.widthM …).
+ * problems name the same fields as in a file (bands.options[1].widthM …).
  */
 import type { Problem } from '../model/errors.ts';
 
@@ -67,12 +67,12 @@ export function rowsToBands(rows: readonly BandRow[]): { options: Record<string,
       try {
         o.polygon = JSON.parse(r.polygon);
       } catch {
-        problems.push({ path: `bands.options.${k}.polygon`, value: r.polygon.slice(0, 40), message: 'is not readable as a polygon' });
+        problems.push({ path: `bands.options[${k}].polygon`, value: r.polygon.slice(0, 40), message: 'is not readable as a polygon' });
       }
       return o;
     }
     const w = Number(r.widthM.replace(',', '.'));
-    if (r.widthM === '' || !Number.isFinite(w)) problems.push({ path: `bands.options.${k}.widthM`, value: r.widthM, message: 'must be a width in metres (a number such as 600)' });
+    if (r.widthM === '' || !Number.isFinite(w)) problems.push({ path: `bands.options[${k}].widthM`, value: r.widthM, message: 'must be a width in metres (a number such as 600)' });
     else o.widthM = w;
     const pts = r.line
       .split(';')
@@ -80,8 +80,8 @@ export function rowsToBands(rows: readonly BandRow[]): { options: Record<string,
       .filter(Boolean)
       .map((p) => p.split(/[\s,]+/).map(Number));
     const bad = pts.findIndex((p) => p.length !== 2 || !p.every(Number.isFinite));
-    if (bad >= 0) problems.push({ path: `bands.options.${k}.line`, value: r.line.slice(0, 60), message: `point ${bad + 1} is not two numbers "x y" (points are separated by ";")` });
-    else if (pts.length < 2) problems.push({ path: `bands.options.${k}.line`, value: r.line.slice(0, 60), message: 'a centre line needs at least 2 points "x y; x y"' });
+    if (bad >= 0) problems.push({ path: `bands.options[${k}].line`, value: r.line.slice(0, 60), message: `point ${bad + 1} is not two numbers "x y" (points are separated by ";")` });
+    else if (pts.length < 2) problems.push({ path: `bands.options[${k}].line`, value: r.line.slice(0, 60), message: 'a centre line needs at least 2 points "x y; x y"' });
     else o.line = pts;
     return o;
   });

@@ -117,7 +117,7 @@ export default async function landscapePages(app: FastifyInstance, deps: Landsca
           n: k + 1,
           letter: String.fromCharCode(65 + k),
           clearing: r.cover === 'clearing',
-          bad: { name: bad.has(`bands.options.${k}.name`), widthM: bad.has(`bands.options.${k}.widthM`), line: bad.has(`bands.options.${k}.line`) },
+          bad: { name: bad.has(`bands.options[${k}].name`), widthM: bad.has(`bands.options[${k}].widthM`), line: bad.has(`bands.options[${k}].line`) },
         })),
         bandCount: rows.length,
         canAdd: rows.length < MAX_BAND_ROWS,
