@@ -44,9 +44,12 @@ describe.skipIf(!hasChromium)('demo map in a real browser', () => {
     await page.goto(`${base}/landscapes/${DEMO_REF}`);
     await page.click('button.place-line[data-row="0"]');
     const svg = page.locator('#band-preview svg').first();
-    const box = (await svg.boundingBox())!;
-    // Three clicks down the middle of the drawn map (the frame starts below the title strip).
-    for (const fy of [0.3, 0.5, 0.7]) await page.mouse.click(box.x + box.width * 0.5, box.y + box.height * fy);
+    await svg.scrollIntoViewIfNeeded();
+    // Three clicks down the middle of the drawn map (its frame is the upper part of the figure, above the legend).
+    for (const fy of [0.15, 0.3, 0.45]) {
+      const box = (await svg.boundingBox())!;
+      await page.mouse.click(box.x + box.width * 0.5, box.y + box.height * fy);
+    }
     await page.click('button.place-line[data-row="0"]'); // Finish
     const line = await page.inputValue('#band-0-line');
     const pts = line.split(';').map((p) => p.trim().split(' ').map(Number));
