@@ -211,8 +211,7 @@ export function makeLandscapeJobs(opts: LandscapeJobOptions): LandscapeJobs {
 
   // Take up the map evaluations an earlier run of the server left queued or running (from the start: a map
   // run is short, and its pieces are not checkpointed).
-  for (const r of store.unfinished()) {
-    if (r.kind !== LANDSCAPE_JOB_KIND) continue;
+  for (const r of store.unfinished(LANDSCAPE_JOB_KIND)) {
     if (r.status === 'cancelling') {
       store.update(r.id, { status: 'cancelled', stage: 'cancelled', message: 'Cancelled; the server restarted before it stopped.', finishedAt: new Date().toISOString() });
       continue;
