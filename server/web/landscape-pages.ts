@@ -195,7 +195,7 @@ export default async function landscapePages(app: FastifyInstance, deps: Landsca
     postBands(reply, runBase(req.params.id), req.body ?? {}),
   );
 
-  app.post('/landscapes/upload', { config: deps.computeRateLimit ? { ...deps.formPost } : deps.formPost }, async (req, reply) => {
+  app.post('/landscapes/upload', { config: { rateLimit: deps.computeRateLimit } }, async (req, reply) => {
     const max = deps.landscapeUploadBytes;
     if (!req.isMultipart()) return listPage(reply, [{ path: 'scenario', value: undefined, message: 'choose the scenario file (.json) and the map file to upload' }], 400);
     const got: Record<string, { filename: string; bytes: Buffer }> = {};

@@ -12,19 +12,26 @@ import { buildApp, type AppOptions } from '../../server/app.ts';
 export const DEMO_LANDSCAPES_DIR = fileURLToPath(new URL('../../scenarios/landscapes/', import.meta.url));
 export const DEMO_REF = 'demo-ossenvale-valley';
 
-export async function landscapeApp(options: AppOptions = {}): Promise<{ app: FastifyInstance; close: () => Promise<void> }> {
-  const root = mkdtempSync(join(tmpdir(), 'barrier-land-'));
+/** An app on a fresh folder, or on `root` of an earlier one (a restart: same database); `keep` leaves the folder. */
+export async function landscapeApp(
+  options: AppOptions = {},
+  at: { root?: string; keep?: boolean } = {},
+): Promise<{ app: FastifyInstance; root: string; close: () => Promise<void> }> {
+  const root = at.root ?? mkdtempSync(join(tmpdir(), 'barrier-land-'));
   const scenariosDir = join(root, 'scenarios');
   const dataDir = join(root, 'data');
-  mkdirSync(scenariosDir);
-  symlinkSync(DEMO_LANDSCAPES_DIR, join(scenariosDir, 'landscapes'));
+  if (!at.root) {
+    mkdirSync(scenariosDir);
+    symlinkSync(DEMO_LANDSCAPES_DIR, join(scenariosDir, 'landscapes'));
+  }
   const app = await buildApp({ scenariosDir, dataDir, workerThreads: 1, ensembleThreads: 1, ...options });
   await app.ready();
   return {
     app,
+    root,
     async close() {
       await app.close();
-      rmSync(root, { recursive: true, force: true });
+      if (!at.keep) rmSync(root, { recursive: true, force: true });
     },
   };
 }
