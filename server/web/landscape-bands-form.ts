@@ -19,7 +19,8 @@ export interface BandRow {
 
 export const MAX_BAND_ROWS = 8;
 
-const fmt = (v: number) => String(Math.round(v * 100) / 100);
+/** Points as typed back: 6 decimals keep longitude/latitude to about 0.1 m and metres to a micrometre. */
+const fmt = (v: number) => String(Math.round(v * 1e6) / 1e6);
 
 /** Scenario band options → table rows. */
 export function bandsToRows(options: readonly Record<string, unknown>[]): BandRow[] {

@@ -126,6 +126,26 @@ describe('map upload limits', () => {
     expectProblem(noMap.body, 'host', /map file/);
   });
 
+  it('GeoJSON stands (longitude/latitude) upload and queue too; the stands demo shows its bands in degrees', async () => {
+    const s = JSON.parse(readFileSync(join(DEMO_LANDSCAPES_DIR, 'ossenvale-valley-stands.json'), 'utf8'));
+    const stands = readFileSync(join(DEMO_LANDSCAPES_DIR, 'ossenvale-valley-stands.geojson'));
+    s.map.cellM = 1000; // coarse: the queued run is cancelled below anyway
+    const r = await upload([scenarioPart(s), { name: 'host', filename: 'stands.geojson', type: 'application/geo+json', bytes: stands }]);
+    expect(r.statusCode, r.body.slice(0, 2000)).toBe(303);
+    await app.inject({ method: 'POST', url: `/landscape-runs/${runIdOf(r.headers.location)}/cancel` });
+    const page = await app.inject('/landscapes/demo-ossenvale-valley-stands');
+    expect(page.statusCode).toBe(200);
+    expect(page.body).toContain('longitude latitude [°]');
+    const line = /name="band\[0\]\.line"[^>]*>([^<]*)</.exec(page.body)![1];
+    const typed = s.bands.options[0].line as number[][];
+    const back = line.split(';').map((p) => p.trim().split(' ').map(Number));
+    expect(back.length).toBe(typed.length);
+    back.forEach((p, k) => {
+      expect(Math.abs(p[0] - typed[k][0])).toBeLessThan(1e-6);
+      expect(Math.abs(p[1] - typed[k][1])).toBeLessThan(1e-6);
+    });
+  });
+
   it('a valid upload is queued as a map evaluation and can be cancelled', async () => {
     const r = await upload([scenarioPart(demoJson()), hostPart(), classesPart()]);
     expect(r.statusCode, r.body.slice(0, 2000)).toBe(303);

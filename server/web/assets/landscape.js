@@ -9,7 +9,8 @@
     var f = fig.dataset;
     var left = Number(f.left), top = Number(f.top), scale = Number(f.scale), x0 = Number(f.x0), y0 = Number(f.y0);
     var active = null; // { field, points, button }
-    document.querySelectorAll('.js-only').forEach(function (el) { el.hidden = false; });
+    // Clicks give map metres; a scenario in longitude/latitude keeps the typed table only.
+    if (!f.lonlat) document.querySelectorAll('.js-only').forEach(function (el) { el.hidden = false; });
     var finish = function () {
       if (!active) return;
       active.button.textContent = 'Place on the map';
