@@ -1,5 +1,6 @@
 // Landscape pages, with JavaScript: (1) on the band table, "Place on the map" then clicks on the map preview
-// write a band's centre line into its text field (map coordinates from the preview's frame); (2) on a
+// write a band's centre line into its text field (map metres from the preview's frame;
+// not offered when the scenario's points are longitude/latitude); (2) on a
 // running evaluation, the page reloads when the job has moved on (without JavaScript a <noscript> refresh does it).
 (function () {
   'use strict';
