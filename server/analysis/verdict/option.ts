@@ -244,15 +244,15 @@ export function analyseOption(sp: PointScenario | Problem, option: BarrierOption
   } else if (pinned) {
     kind = marginal ? 'marginal' : 'holds';
     sentence = marginal
-      ? `Marginal: the front was held in this run, but ${option.widthM} m is within the critical-width bracket's uncertainty (${bracket![0].toFixed(0)}–${bracket![1].toFixed(0)} m).`
-      : 'Holds: the front is pinned at the clearing and stays there (holds indefinitely under this model).';
+      ? `Marginal: the front was held in this run, but ${option.widthM} m is within the uncertainty of the narrowest width that stops the front (${bracket![0].toFixed(0)}–${bracket![1].toFixed(0)} m).`
+      : 'Holds: the front stops at the clearing and stays there (holds indefinitely under this model; in technical terms the front is pinned).';
   } else if (marginal) {
     kind = 'marginal';
-    sentence = `Marginal: ${option.widthM} m is within the critical-width bracket (${bracket![0].toFixed(0)}–${bracket![1].toFixed(0)} m); near this width the front lingers for a long time and pinning was not verified.`;
+    sentence = `Marginal: ${option.widthM} m is within the uncertainty of the narrowest width that stops the front (${bracket![0].toFixed(0)}–${bracket![1].toFixed(0)} m); near this width the front lingers for a long time and it was not shown to stop for good.`;
   } else if (optCross === null && baseCross !== null) {
     kind = 'not-crossed';
     sentence =
-      `Not crossed within the ${s.horizonYears}-year horizon (without the clearing the front passes this point in year ${baseCross.toFixed(1)}), but not shown to be pinned.` +
+      `Not crossed within the ${s.horizonYears}-year horizon (without the clearing the front passes this point in year ${baseCross.toFixed(1)}), but not shown to stop there for good.` +
       (projCross !== null ? ` Projected crossing: year ${projCross.toFixed(1)}.` : ' The extended run neither crossed nor settled.');
   } else if (optCross === null && baseCross === null) {
     kind = 'not-reached';
@@ -308,9 +308,9 @@ export function analyseOption(sp: PointScenario | Problem, option: BarrierOption
           method: PINNING_METHODS[pinningMode(s, 1)],
           detail:
             optCross !== null
-              ? 'not pinned: the front crossed the clearing'
+              ? 'not stopped (not pinned): the front crossed the clearing'
               : pinningMode(s, 1) === 'none'
-                ? 'not applicable: no strong Allee effect'
+                ? 'not applicable: small groups of this pest do not die out (no strong Allee effect), so no clearing stops it'
                 : 'no verified steady state: a front that is still at the clearing when the run ends is not evidence of pinning (near the critical width fronts linger for a long time)',
         },
     crossingYears: { baseline: baseCross, option: optCross, projected: projCross },
