@@ -4,7 +4,7 @@
  * width for one option. `BENCH_DRAWS=N` changes the draws, `BENCH_FACTOR=F` the draws' resolution factor (default 2).
  */
 import { parseScenario } from '../server/model/scenario.ts';
-import { runEnsembleParallel, defaultThreads } from '../server/analysis/ensemble/ensemble-pool.ts';
+import { runEnsembleParallel, defaultThreads } from '../server/jobs/parallel.ts';
 import { ensembleProblem } from './problems.ts';
 
 const draws = Number(process.env.BENCH_DRAWS ?? 1000);

@@ -43,4 +43,6 @@ for rtol in d['rtols']:
         dt = min(dt, time.perf_counter() - t0)
     out.append({'rtol': rtol, 'seconds': dt, 'status': int(sol.status), 'nfev': int(sol.nfev), 'njev': int(sol.njev), 'nlu': int(sol.nlu),
                 'u': sol.y[:n, -1].tolist()})
+import scipy
+print(f'scipy {scipy.__version__}, numpy {np.__version__}', file=sys.stderr)
 print(json.dumps(out))

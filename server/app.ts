@@ -20,7 +20,7 @@ import jsonBody from './web/plugins/json-body.ts';
 import { openStore, type StoreOptions } from './web/store.ts';
 import { loadDemos, makeCatalogue } from './web/catalogue.ts';
 import { makeJobRunner } from './web/jobs.ts';
-import { makeBriefingRenderer } from './web/briefings.ts';
+import { makeBriefingJobs } from './web/briefings.ts';
 import { makePoolRunner, defaultThreadCount } from './jobs/pool-runner.ts';
 import type { TaskRunner } from './jobs/task-runner.ts';
 import { makeStreamGate, DEFAULT_STREAM_LIMITS, type StreamLimits } from './web/streams.ts';
@@ -103,7 +103,11 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
     onError: (err) => app.log.error({ err }, 'evaluation failed'),
     log: (msg) => app.log.info(msg),
   });
-  const briefings = makeBriefingRenderer();
+  const briefings = makeBriefingJobs({
+    store,
+    onError: (err) => app.log.error({ err }, 'briefing failed'),
+    log: (msg) => app.log.info(msg),
+  });
   // Before the listener closes: no new work, progress streams ended (they would hold the close), compute stopped.
   app.addHook('preClose', async () => {
     await jobs.shutdown(options.shutdownGraceMs);

@@ -9,7 +9,7 @@ import { accessSync, closeSync, constants, existsSync, fsyncSync, openSync, read
 import { dirname, basename, join } from 'node:path';
 import { parseScenarioText } from './model/scenario.ts';
 import { InputError, formatProblems } from './model/errors.ts';
-import { evaluateScenarioParallel } from './analysis/evaluate/evaluate.ts';
+import { evaluateScenarioParallel } from './jobs/parallel.ts';
 import { parseJsonText } from './model/json-text.ts';
 import { NON_FINITE_CODE } from './numerics/finite.ts';
 import { textSummary } from './report/text-summary.ts';

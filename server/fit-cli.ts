@@ -2,14 +2,22 @@
  * Command line: `npm run fit -- <scenario.json> <records.csv> [--start FROM:TO] [--out FILE] [--json]`.
  * Fits the scenario's movement rate (and, where given as ranges and the records allow, growth rate and edge
  * preference) to survey records, prints the fit and writes the scenario with the fitted ranges adopted.
+ * A landscape scenario takes records with map positions (x, y) and is fitted from its radial front
+ * (analysis/calibration/map-fit.ts); its map files are read from the scenario's folder.
  */
 import { readFileSync } from 'node:fs';
-import { basename } from 'node:path';
+import { basename, dirname } from 'node:path';
 import { parseScenarioText } from './model/scenario.ts';
 import { InputError, formatProblems } from './model/errors.ts';
 import { parseSurveyCsv } from './model/survey.ts';
 import { adoptFit, fitSurvey, type FitOptions } from './analysis/calibration/fit.ts';
-import { fitSummaryText } from './report/fit-text.ts';
+import { fitSummaryText, mapFitSummaryText } from './report/fit-text.ts';
+import { coordinatesOf, parseLandscapeScenario } from './model/landscape.ts';
+import { parseJsonText } from './model/json-text.ts';
+import { loadLandscape } from './domain/gis/load.ts';
+import { mapFileNames } from './analysis/landscape-scenario.ts';
+import { adoptMapFit, fitMapSurvey } from './analysis/calibration/map-fit.ts';
+import { isLandscapeText, readMapFiles } from './landscape-cli.ts';
 import { unwritableReason, writeAtomically } from './cli.ts';
 
 const USAGE = `usage: npm run fit -- <scenario.json> <records.csv> [--start FROM:TO] [--lead YEARS] [--out FILE] [--json]
@@ -68,11 +76,22 @@ function readText(path: string, what: string): string {
 export async function main(argv: string[], out: (s: string) => void = (s) => process.stdout.write(s), err: (s: string) => void = (s) => process.stderr.write(s)): Promise<number> {
   try {
     const args = parseFitArgs(argv);
-    const scenario = parseScenarioText(readText(args.scenario, 'scenario file'));
+    const text = readText(args.scenario, 'scenario file');
     const table = parseSurveyCsv(readText(args.records, 'records file'));
     const target = args.out ?? `${basename(args.scenario, '.json')}-fitted.json`;
     const why = unwritableReason(target);
     if (why) throw new InputError('USAGE', [{ path: '--out', value: target, message: why }]);
+    if (isLandscapeText(text)) {
+      if (args.start || args.lead !== undefined) throw new InputError('USAGE', [{ path: args.start ? '--start' : '--lead', value: args.start ? `${args.start.fromKm}:${args.start.toKm}` : args.lead, message: 'applies to transects only (on a map the spread starts from the scenario’s infestation)' }]);
+      const landscape = parseLandscapeScenario(parseJsonText(text));
+      const loaded = await loadLandscape(landscape, readMapFiles(mapFileNames(landscape), dirname(args.scenario)));
+      const toMap = coordinatesOf(landscape) === 'lonlat' ? loaded.projector.fromLonLat : undefined;
+      const fit = fitMapSurvey(landscape, loaded, table, { toMap });
+      writeAtomically(target, JSON.stringify(adoptMapFit(landscape, fit), null, 2) + '\n');
+      out(args.json ? JSON.stringify(fit, null, 2) + '\n' : mapFitSummaryText(fit) + `\nScenario with the fitted range written to ${target}.\n`);
+      return 0;
+    }
+    const scenario = parseScenarioText(text);
     const opts: FitOptions = { start: args.start, leadYears: args.lead };
     const fit = fitSurvey(scenario, table, opts);
     const adopted = adoptFit(scenario, fit);

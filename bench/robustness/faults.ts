@@ -7,7 +7,10 @@
  *     scenarios, killed (SIGKILL or SIGTERM) around the time the files are written; after each, the next run's
  *     recovery (recoverOutputs) is applied. Counts hidden leftovers before and after recovery, and pairs whose
  *     PDF and JSON come from different runs (scenario fingerprints differ).
- * Prints the figures; exits 1 when an acknowledged save is lost, a leftover survives recovery or a mixed pair remains.
+ *  3. Jobs: up to 4 times, start the server, have 3 evaluations (12-draw ensembles) accepted, SIGKILL it at a
+ *     random moment; then start it once more and check that every accepted evaluation finishes ('done').
+ * Prints the figures; exits 1 when an acknowledged save is lost, a leftover survives recovery, a mixed pair
+ * remains or an accepted evaluation does not finish.
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import { existsSync, mkdtempSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
@@ -17,6 +20,7 @@ import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { recoverOutputs } from '../../server/cli.ts';
 import { FIXTURE_SCENARIOS_DIR } from '../../tests/helpers/build-app.ts';
+import { smallEnsembleScenario } from '../../tests/analysis/ensemble/ensemble-fixture.ts';
 
 const root = fileURLToPath(new URL('../..', import.meta.url));
 const trials = Number(process.argv[2] ?? 8);
@@ -53,6 +57,9 @@ async function startServer(dataDir: string, port: number): Promise<ChildProcess>
   throw new Error('server did not start within 30 s');
 }
 
+/** Resolves when the process has exited (also when it already had: an 'exit' listener added late never fires). */
+const exited = (c: ChildProcess) => new Promise<void>((r) => (c.exitCode !== null || c.signalCode !== null ? r() : c.once('exit', () => r())));
+
 let failed = false;
 
 // ---- 1. server kill / restart ----------------------------------------------------------------------
@@ -81,8 +88,9 @@ let failed = false;
     await sleep(300 + Math.random() * 1200);
     server.kill('SIGKILL');
     running = false;
+    const gone = exited(server);
     await Promise.all(clients);
-    await new Promise((r) => server.once('exit', r));
+    await gone;
   }
   const server = await startServer(dataDir, port);
   for (const ref of acknowledged) {
@@ -129,10 +137,10 @@ let failed = false;
     const child = run(files[k % 2]);
     t0 = performance.now();
     await sleep(fullMs * (0.6 + Math.random() * 0.5));
-    const exited = child.exitCode !== null;
+    const finishedFirst = child.exitCode !== null;
     child.kill(k % 3 === 0 ? 'SIGTERM' : 'SIGKILL');
-    await new Promise((r) => (child.exitCode !== null ? r(null) : child.once('exit', r)));
-    if (!exited) killedMidway++;
+    await exited(child);
+    if (!finishedFirst) killedMidway++;
     if (hidden().length) leftBefore++;
     recoverOutputs([out, pdf]);
     if (hidden().length) leftAfter++;
@@ -145,5 +153,55 @@ let failed = false;
   if (leftAfter || mixed) failed = true;
   rmSync(dir, { recursive: true, force: true });
 }
-process.stdout.write(`faults: ${failed ? 'FAILED' : 'no acknowledged save lost, no leftover after recovery, no mixed pair'}\n`);
+// ---- 3. evaluations accepted (202), server killed, started again: every one finishes ---------------------
+{
+  const dataDir = mkdtempSync(join(tmpdir(), 'barrier-faults-jobs-'));
+  const port = await freePort();
+  const scenario = smallEnsembleScenario({ uncertainty: { draws: 12, seed: 6, criticalWidth: false } });
+  const accepted: string[] = [];
+  const cycles = Math.min(trials, 4);
+  for (let k = 0; k < cycles; k++) {
+    const server = await startServer(dataDir, port);
+    for (let j = 0; j < 3; j++) {
+      const r = await fetch(`http://127.0.0.1:${port}/api/evaluations`, {
+        method: 'POST',
+        headers: { 'content-type': 'application/json' },
+        body: JSON.stringify({ scenario: { ...scenario, title: `fault job ${k}.${j}` } }),
+      });
+      if (r.status === 202) accepted.push(((await r.json()) as { id: string }).id);
+      else await r.arrayBuffer();
+    }
+    await sleep(300 + Math.random() * 1500);
+    const gone = exited(server);
+    server.kill('SIGKILL');
+    await gone;
+  }
+  const t0 = performance.now();
+  const server = await startServer(dataDir, port);
+  const states: Record<string, number> = {};
+  let resumed = 0;
+  for (const id of accepted) {
+    let s: { finished?: boolean; status?: string; resumed?: boolean } = {};
+    for (let i = 0; i < 1800 && !s.finished; i++) {
+      const r = await fetch(`http://127.0.0.1:${port}/api/evaluations/${id}`);
+      s = r.status === 200 ? ((await r.json()) as typeof s) : { finished: true, status: `HTTP ${r.status}` };
+      if (!s.finished) await sleep(100);
+    }
+    states[s.status ?? 'unknown'] = (states[s.status ?? 'unknown'] ?? 0) + 1;
+    if (s.resumed) resumed++;
+  }
+  const allMs = performance.now() - t0;
+  const stopAt = performance.now();
+  const gone = exited(server);
+  server.kill('SIGTERM');
+  await gone;
+  const done = states.done ?? 0;
+  process.stdout.write(
+    `jobs: ${cycles} SIGKILLs with evaluations accepted; ${accepted.length} accepted (202), after the restart ${JSON.stringify(states)} (${resumed} resumed), ` +
+      `all finished ${(allMs / 1000).toFixed(1)} s after the restart; SIGTERM exit after ${(performance.now() - stopAt).toFixed(0)} ms\n`,
+  );
+  if (done !== accepted.length) failed = true;
+  rmSync(dataDir, { recursive: true, force: true });
+}
+process.stdout.write(`faults: ${failed ? 'FAILED' : 'no acknowledged save lost, no leftover after recovery, no mixed pair, every accepted evaluation finished'}\n`);
 process.exitCode = failed ? 1 : 0;

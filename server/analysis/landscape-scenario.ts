@@ -57,7 +57,8 @@ export interface LandscapeDocument {
   title: string;
   description: string;
   region?: string;
-  pest: { name: string; illustrative: boolean };
+  /** `fitted`: the survey fit's provenance sentence, when the scenario's movement rate was fitted to records. */
+  pest: { name: string; illustrative: boolean; fitted?: string };
   horizonYears: number;
   detectionLevel: number;
   map: {
@@ -140,7 +141,7 @@ export async function evaluateLandscapeScenario(scenario: LandscapeScenario, fil
     title: s.title,
     description: s.description,
     region: s.region,
-    pest: { name: s.pest.name, illustrative: s.pest.illustrative },
+    pest: { name: s.pest.name, illustrative: s.pest.illustrative, ...(scenario.calibration ? { fitted: scenario.calibration.sentence } : {}) },
     horizonYears: s.horizonYears,
     detectionLevel: s.detectionLevel,
     map: { crs: { code: loaded.crs.code, name: loaded.crs.name }, cellM: result.grid.cellM, nx: result.grid.nx, ny: result.grid.ny, originXM: result.grid.originXM, originYM: result.grid.originYM, outside: loaded.outside, notes: loaded.notes },

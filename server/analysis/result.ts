@@ -73,8 +73,16 @@ export interface RunResult {
     steps: number;
     /** Steps the step controller rejected and redid (always 0 with fixed steps). */
     rejectedSteps: number;
-    /** How step sizes were chosen: 'fixed' (the resolution's stepYears, the last step shortened to the end). */
+    /**
+     * How step sizes were chosen: 'fixed' (the resolution's stepYears, the last step shortened to the end) or
+     * 'adaptive' (error-controlled NDF steps at `tolerance`; stepYears is then the output interval).
+     */
     stepControl: 'fixed' | 'adaptive';
+    /** Relative tolerance of the adaptive steps (adaptive only). */
+    tolerance?: number;
+    /** Jacobian evaluations and factorisations of the adaptive integrator (adaptive only). */
+    jacobianEvaluations?: number;
+    factorisations?: number;
     fallbackSteps: number;
     reactionSubsteps: number;
     wallMs: number;
@@ -392,6 +400,8 @@ export interface UncertaintyResult {
   /** Worker threads used and wall time [ms] (does not change the numbers). */
   threads: number;
   wallMs: number;
+  /** Where the draws ran, in words ("this machine, 2 worker threads", "2 queue workers"); absent: `threads` threads here. */
+  ranOn?: string;
 }
 
 /** Human-carried bypass risk of one option (from the central-value run, and over the ensemble when there is one). */

@@ -9,6 +9,7 @@ export function makeInlineRunner(): TaskRunner {
   return {
     where: 'this machine, one thread',
     concurrency: 1,
+    capacity: () => ({ tasks: 1, text: 'this machine, one thread' }),
     async map<P, R>(kind: TaskKind, payloads: readonly P[], opts: MapOptions<R> = {}): Promise<R[]> {
       const handler = taskHandler(kind);
       const results: R[] = [];

@@ -59,6 +59,7 @@ export function makePoolRunner(opts: PoolRunnerOptions = {}): PoolRunner {
     where: `this machine, ${threads} worker thread${threads === 1 ? '' : 's'}`,
     concurrency: threads,
     pending: () => inFlight,
+    capacity: () => ({ tasks: threads, text: `this machine, ${threads} worker thread${threads === 1 ? '' : 's'}` }),
     async map<P, R>(kind: TaskKind, payloads: readonly P[], o: MapOptions<R> = {}): Promise<R[]> {
       if (closed) throw new Error('the worker pool is closed');
       if (o.signal?.aborted) throw new CancelledError();

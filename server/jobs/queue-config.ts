@@ -37,6 +37,9 @@ export function redisConnection(url: string, name: string): Redis {
   });
 }
 
+/** Failure reason of a task a worker stopped because the web server cancelled it. */
+export const CANCELLED_REASON = 'cancelled by the web server';
+
 /** BullMQ job ids may not contain ':' (its key separator): task keys use '.' instead. */
 export const jobIdOf = (taskKey: string) => taskKey.replace(/:/g, '.');
 

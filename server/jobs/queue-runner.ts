@@ -17,7 +17,7 @@ import { Queue, QueueEvents, type JobsOptions } from 'bullmq';
 import type { Redis } from 'ioredis';
 import { TOOL } from '../version.ts';
 import { fromJsonSafe, toJsonSafe } from './json-safe.ts';
-import { cancelChannel, jobIdOf, queueName, redactedUrl, redisConnection } from './queue-config.ts';
+import { CANCELLED_REASON, cancelChannel, jobIdOf, queueName, redactedUrl, redisConnection } from './queue-config.ts';
 import { CancelledError, DETACH, type MapOptions, type RunnerHealth, type TaskKind, type TaskRunner } from './task-runner.ts';
 
 /** What a queue job carries. */
@@ -101,17 +101,41 @@ export async function makeQueueRunner(opts: QueueRunnerOptions): Promise<QueueRu
   };
   const parseReturn = (v: unknown) => fromJsonSafe(typeof v === 'string' ? JSON.parse(v) : v);
   events.on('completed', ({ jobId, returnvalue }) => settle(jobId, (w) => w.resolve(parseReturn(returnvalue))));
-  events.on('failed', ({ jobId, failedReason }) => settle(jobId, (w) => w.reject(new Error(failedReason))));
+  /**
+   * A task stopped by a cancel while batches here still wait for it (an identical scenario submitted twice,
+   * or another web server sharing the queue): it is added again for them instead of failing them.
+   */
+  const failed = (id: string, reason: string) => {
+    const ws = waiters.get(id);
+    if (ws?.length && reason === CANCELLED_REASON) {
+      opts.log?.(`task ${id} was cancelled for another batch; adding it again for the ${ws.length} still waiting`);
+      void add([id], [ws[0].data]).catch(() => {});
+      return;
+    }
+    settle(id, (w) => w.reject(new Error(reason)));
+  };
+  events.on('failed', ({ jobId, failedReason }) => failed(jobId, failedReason));
   events.on('progress', ({ jobId, data }) => {
     const d = data as { fraction?: number; stage?: string };
     if (typeof d?.fraction === 'number') for (const w of waiters.get(jobId) ?? []) w.onProgress?.(d.fraction, d.stage ?? '');
   });
 
   const add = async (ids: string[], datas: QueueJobData[]) => {
-    // A job of the same id left failed (an earlier cancel or refusal) would block the add: remove it first.
     const states = await Promise.all(ids.map((id) => queue.getJobState(id)));
-    await Promise.all(ids.map((id, i) => (states[i] === 'failed' ? queue.remove(id).catch(() => 0) : 0)));
-    await queue.addBulk(ids.map((id, i) => ({ name: datas[i].kind, data: datas[i], opts: { ...JOB_OPTIONS, jobId: id } })));
+    const fresh: number[] = [];
+    await Promise.all(
+      ids.map(async (id, i) => {
+        if (states[i] === 'completed') {
+          // The same piece finished for another batch (identical scenario) and is still held: take its result.
+          const job = await queue.getJob(id);
+          if (job?.finishedOn) return settle(id, (w) => w.resolve(parseReturn(job.returnvalue)));
+        }
+        // A job of the same id left failed (an earlier cancel or refusal) would block the add: remove it first.
+        if (states[i] === 'failed') await queue.remove(id).catch(() => 0);
+        fresh.push(i);
+      }),
+    );
+    if (fresh.length) await queue.addBulk(fresh.map((i) => ({ name: datas[i].kind, data: datas[i], opts: { ...JOB_OPTIONS, jobId: ids[i] } })));
   };
 
   let reconciling = false;
@@ -123,13 +147,17 @@ export async function makeQueueRunner(opts: QueueRunnerOptions): Promise<QueueRu
       workerCount = await queue.getWorkersCount();
       const ids = [...waiters.keys()];
       const lost: string[] = [];
-      for (const id of ids) {
-        const state = await queue.getJobState(id);
+      // States read 200 at a time (ioredis pipelines the commands): one round trip per batch, not per job.
+      const states: string[] = [];
+      for (let i = 0; i < ids.length; i += 200) states.push(...(await Promise.all(ids.slice(i, i + 200).map((id) => queue.getJobState(id)))));
+      for (const [n, id] of ids.entries()) {
+        const state = states[n];
+        if (!waiters.has(id)) continue;
         if (state === 'completed' || state === 'failed') {
           const job = await queue.getJob(id);
           if (!job) continue;
           if (state === 'completed') settle(id, (w) => w.resolve(parseReturn(job.returnvalue)));
-          else settle(id, (w) => w.reject(new Error(job.failedReason)));
+          else failed(id, job.failedReason);
         } else if (state === 'unknown') lost.push(id);
       }
       if (lost.length) {
@@ -156,6 +184,8 @@ export async function makeQueueRunner(opts: QueueRunnerOptions): Promise<QueueRu
     },
     concurrency: Math.max(1, opts.concurrency ?? 4),
     workers: () => workerCount,
+    // Each queue worker runs THREADS tasks at once; the web server sees processes, not their threads.
+    capacity: () => ({ tasks: Math.max(1, workerCount), text: `${workerCount} queue worker${workerCount === 1 ? '' : 's'}` }),
     health(): RunnerHealth {
       if (!healthy) return { ok: false, message: `Queue unavailable, retrying (${problem}). Accepted work is kept.` };
       if (workerCount === 0) return { ok: false, message: 'No queue worker is connected: the work waits in the queue until one starts (npm run worker).' };
@@ -177,25 +207,30 @@ export async function makeQueueRunner(opts: QueueRunnerOptions): Promise<QueueRu
       );
       const mine = new Set(ids);
       let cancelled = false;
-      /** Rejects this batch's outstanding tasks (other batches waiting on the same ids keep waiting). */
+      /**
+       * Rejects this batch's outstanding tasks; returns the ids no other batch of this runner waits for
+       * (only those may be removed or stopped: an identical scenario's batch shares the ids).
+       */
       const dropOwn = () => {
-        const open: string[] = [];
+        const alone: string[] = [];
         ids.forEach((id, i) => {
           const ws = waiters.get(id);
           if (!ws || !ws.includes(own[i])) return;
-          open.push(id);
           const rest = ws.filter((w) => w !== own[i]);
           if (rest.length) waiters.set(id, rest);
-          else waiters.delete(id);
+          else {
+            waiters.delete(id);
+            alone.push(id);
+          }
           own[i].reject(new CancelledError());
         });
-        return open;
+        return alone;
       };
       const stopOpen = () => {
         cancelled = true;
-        const open = dropOwn();
-        for (const id of open) void queue.remove(id).catch(() => 0); // waiting jobs go; active ones are locked by their worker
-        void pub.publish(cancelChannel(name), JSON.stringify(open)).catch(() => 0);
+        const alone = dropOwn();
+        for (const id of alone) void queue.remove(id).catch(() => 0); // waiting jobs go; active ones are locked by their worker
+        if (alone.length) void pub.publish(cancelChannel(name), JSON.stringify(alone)).catch(() => 0);
       };
       const onAbort = () => {
         if (o.signal?.reason !== DETACH) return stopOpen();
@@ -227,7 +262,8 @@ export async function makeQueueRunner(opts: QueueRunnerOptions): Promise<QueueRu
         );
         if (o.signal?.aborted) throw new CancelledError();
         if (failure !== undefined) throw failure;
-        for (const id of mine) void queue.remove(id).catch(() => 0); // stored by the caller; free Redis
+        // Stored by the caller: free Redis (unless another batch here still waits for the same piece).
+        for (const id of mine) if (!waiters.has(id)) void queue.remove(id).catch(() => 0);
         return results;
       } finally {
         o.signal?.removeEventListener('abort', onAbort);

@@ -15,7 +15,7 @@ import { Worker, UnrecoverableError, type Job } from 'bullmq';
 import { TOOL } from '../version.ts';
 import { fromJsonSafe, toJsonSafe } from './json-safe.ts';
 import { makePoolRunner, defaultThreadCount } from './pool-runner.ts';
-import { cancelChannel, queueName, redactedUrl, redisConnection, versionRefusal } from './queue-config.ts';
+import { CANCELLED_REASON, cancelChannel, queueName, redactedUrl, redisConnection, versionRefusal } from './queue-config.ts';
 import type { QueueJobData } from './queue-runner.ts';
 
 /** How long a stopping worker lets running tasks finish [ms]. */
@@ -69,7 +69,7 @@ async function processTask(job: Job<QueueJobData>): Promise<unknown> {
     });
     return toJsonSafe(result);
   } catch (e) {
-    if (ac.signal.aborted) throw new UnrecoverableError('cancelled by the web server');
+    if (ac.signal.aborted) throw new UnrecoverableError(CANCELLED_REASON);
     // A computation that fails fails again: no retry.
     throw new UnrecoverableError(e instanceof Error ? e.message : String(e));
   } finally {

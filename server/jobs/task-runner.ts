@@ -62,6 +62,11 @@ export interface TaskRunner {
   map<P, R>(kind: TaskKind, payloads: readonly P[], opts?: MapOptions<R>): Promise<R[]>;
   /** Releases threads, connections and listeners. */
   close(): Promise<void>;
+  /**
+   * Optional: how many tasks of one batch can run at the same time now, and where, in words for the result
+   * document ("this machine, 2 worker threads", "2 queue workers"). Default: `concurrency` threads here.
+   */
+  capacity?(): { tasks: number; text: string };
   /** Optional: whether the runner can take work now (a queue may be unreachable for a while). */
   health?(): RunnerHealth;
 }

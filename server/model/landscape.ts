@@ -2,7 +2,7 @@ import { z } from 'zod';
 import { FIELDS, describeRange, type FieldSpec } from './fields.ts';
 import { PestSchema, NON_HOST_PEST_FIELDS } from './pest.ts';
 import { valueSchema, resolveQuantities, type Resolved } from './quantity.ts';
-import { HostForestSegmentSchema, UncertaintySchema, SCENARIO_VERSION } from './scenario.ts';
+import { CalibrationNoteSchema, HostForestSegmentSchema, UncertaintySchema, SCENARIO_VERSION } from './scenario.ts';
 import { ScenarioError, pathFromDotted, problemsFromZod, type Problem } from './errors.ts';
 
 /**
@@ -237,6 +237,8 @@ const ObjectSchema = z.strictObject({
   /** Time step [yr]; automatic when absent (the cell size is map.cellM). */
   numerics: z.strictObject({ stepYears: valueSchema(FIELDS.stepYears).optional() }).default({}),
   uncertainty: UncertaintySchema.optional(),
+  /** Where fitted ranges came from (the map survey fit, server/analysis/calibration/map-fit.ts); the briefing shows it. */
+  calibration: CalibrationNoteSchema.optional(),
 });
 
 function crossChecks(s: z.infer<typeof ObjectSchema>): Problem[] {

@@ -103,8 +103,10 @@ export const MosaicSchema = z.strictObject({
 export const NumericsSchema = z.strictObject({
   /** Largest cell [m]; automatic when absent. */
   cellM: valueSchema(FIELDS.cellM).optional(),
-  /** Time step [yr]; automatic when absent. */
+  /** Fixed time step [yr]; absent: error-controlled steps at `tolerance`. */
   stepYears: valueSchema(FIELDS.stepYears).optional(),
+  /** Relative tolerance of the error-controlled time stepping (default in problem/resolution.ts); ignored with a fixed stepYears. */
+  tolerance: valueSchema(FIELDS.tolerance).optional(),
 });
 
 /**

@@ -8,6 +8,7 @@ import type { ReactionCounters, ReactionStepper } from './reaction.ts';
 import { fixedStepController, type StepController } from './controller.ts';
 import { splitStepper, type FieldStepper } from './stepper.ts';
 import type { FieldState, Observer } from './observers.ts';
+import type { AdaptiveCounters } from './steppers/adaptive-loop.ts';
 import { checkFiniteState } from './finite.ts';
 
 export type { FieldStepper, StepReport } from './stepper.ts';
@@ -46,6 +47,8 @@ export interface SolverResult {
     diffusion: DiffusionCounters;
     reaction: ReactionCounters;
     wallMs: number;
+    /** Counters of the adaptive integrator (numerics/steppers/adaptive-loop.ts), when it ran. */
+    adaptive?: AdaptiveCounters;
   };
 }
 

@@ -24,6 +24,12 @@ export interface Resolution {
   stepYears: number;
   autoCell: boolean;
   autoStep: boolean;
+  /**
+   * Relative tolerance of the adaptive integrator (numerics/steppers/): set when the step is automatic, and
+   * then `stepYears` is only the output interval at which observers see the state (dense output). Absent:
+   * fixed steps of `stepYears` (a user-given or coarsened step).
+   */
+  tolerance?: number;
 }
 
 /** Everything the solver needs, per cell (Float64Array layout: one entry per cell, left to right). */
@@ -62,6 +68,8 @@ export interface ResolutionOverrides {
   cellM?: number;
   /** Time step [yr]. */
   stepYears?: number;
+  /** Relative tolerance of the adaptive time stepping (without a fixed step). */
+  tolerance?: number;
 }
 
 export interface Problem {

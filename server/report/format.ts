@@ -19,7 +19,7 @@ export function years(x: number | null | undefined, none = '—'): string {
   return x === null || x === undefined || !Number.isFinite(x) ? none : fixed(x, 1);
 }
 
-/** A position or distance in km with up to 3 decimals (trailing zeros dropped below 10 km). */
+/** A position or distance in km: 2 decimals below 100 km, 1 from 100 km (fixed, so columns line up). */
 export function km(x: number | null | undefined, none = '—'): string {
   if (x === null || x === undefined || !Number.isFinite(x)) return none;
   return Math.abs(x) >= 100 ? fixed(x, 1) : fixed(x, 2);

@@ -2,7 +2,7 @@ import type { Store } from './store.ts';
 import type { Catalogue } from './catalogue.ts';
 import type { JobRunner } from './jobs.ts';
 import type { WebLimits } from './limits.ts';
-import type { BriefingRenderer } from './briefings.ts';
+import type { BriefingJobs } from './briefings.ts';
 import type { StreamGate } from './streams.ts';
 
 /** What route plugins need, passed as plugin options (no globals). */
@@ -11,7 +11,8 @@ export interface WebDeps {
   catalogue: Catalogue;
   jobs: JobRunner;
   limits: WebLimits;
-  briefings: BriefingRenderer;
+  /** PDF briefings as durable jobs (drawn in a worker thread, kept in the database). */
+  briefings: BriefingJobs;
   /** Caps on open progress streams (per evaluation, per client). */
   streams: StreamGate;
   /** Route config that switches the compute rate limit on. */

@@ -5,7 +5,7 @@
  */
 import { FIELDS } from '../model/fields.ts';
 import type { Problem } from '../model/errors.ts';
-import { applies, DIST_PARTS, EXTRA_INPUT, FORM_SECTIONS, ROW_GROUPS, type FormFieldDef, type FormState } from './form-state.ts';
+import { applies, DIST_PARTS, EXTRA_INPUT, FORM_SECTIONS, ROW_GROUPS, type FormFieldDef, type FormState } from './form-layout.ts';
 import { readNumberList, readNumberText } from './form-number.ts';
 import { rowIndices, UNSAFE_KEYS } from './form-rows.ts';
 
@@ -45,7 +45,45 @@ function readQuantity(state: FormState, name: string, unit: string, r: Reading):
   return out;
 }
 
+/** Unit of a movement rate typed as a distance: `${name}~as` = DISTANCE_AS. */
+export const DISTANCE_AS = 'distance';
+export const DISTANCE_UNIT = 'km/yr';
+
+/**
+ * A movement rate typed as the typical distance d an insect moves along the transect in a year (the
+ * root-mean-square displacement of a random walk, √(2·D·t) in one dimension: Einstein 1905; Berg, Random
+ * Walks in Biology, 1993): D = d²/(2·1 yr). A log-normal range of d is a log-normal range of D (median d²/2,
+ * spread factor squared, since ln D = 2 ln d − ln 2); a uniform or triangular range is not, so it is refused
+ * rather than reshaped. Each conversion is shown back as a note.
+ */
+function readDistance(state: FormState, name: string, r: Reading): unknown {
+  const kind = state[`${name}~kind`] ?? 'value';
+  const note = (d: number, D: number) => r.notes.push({ path: name, message: `a typical distance of ${num(d)} km a year read as a movement rate of ${num(d)}²/2 = ${num(D)} km²/yr (D = d²/2)` });
+  if (kind === 'value' || !(kind in DIST_PARTS)) {
+    const d = numberAt(state, name, DISTANCE_UNIT, r);
+    if (typeof d !== 'number') return d;
+    const D = (d * d) / 2;
+    note(d, D);
+    return D;
+  }
+  if (kind !== 'lognormal') {
+    r.problems.push({ path: `${name}~kind`, value: kind, message: 'a range of distances can be given as log-normal only (it then is a log-normal range of the movement rate); for a uniform or triangular range give the movement rate in km²/yr' });
+    return undefined;
+  }
+  const median = numberAt(state, `${name}~median`, DISTANCE_UNIT, r);
+  const spread = numberAt(state, `${name}~spread`, '', r);
+  if (typeof median !== 'number' || typeof spread !== 'number') return { dist: kind, median, spread };
+  const D = (median * median) / 2;
+  note(median, D);
+  return { dist: 'lognormal', median: D, spread: spread * spread };
+}
+
+function num(x: number): string {
+  return Number(x.toPrecision(4)).toString();
+}
+
 function readField(state: FormState, name: string, def: FormFieldDef, r: Reading): unknown {
+  if (def.kind === 'quantity' && def.distanceInput && state[`${name}~as`] === DISTANCE_AS) return readDistance(state, name, r);
   const unit = def.field ? FIELDS[def.field].unit : '';
   switch (def.kind) {
     case 'number':

@@ -7,7 +7,7 @@
  * (MAX_FORM_INPUTS, each group's maxRows): a post can never keep the event loop busy for long.
  */
 import { InputError } from '../model/errors.ts';
-import { ROW_GROUPS, type FormState, type RowGroupDef } from './form-state.ts';
+import { ROW_GROUPS, type FormState, type RowGroupDef } from './form-layout.ts';
 
 /** Keys never copied from user input (they would reach object prototypes). */
 export const UNSAFE_KEYS = new Set(['__proto__', 'prototype', 'constructor']);

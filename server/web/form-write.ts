@@ -4,7 +4,7 @@
  */
 import { valueAt } from '../model/errors.ts';
 import { isDistribution } from '../model/quantity.ts';
-import { ALL_DIST_PARTS, EXTRA_INPUT, FORM_SECTIONS, ROW_GROUPS, type FormFieldDef, type FormState } from './form-state.ts';
+import { ALL_DIST_PARTS, EXTRA_INPUT, FORM_SECTIONS, ROW_GROUPS, type FormFieldDef, type FormState } from './form-layout.ts';
 
 type Obj = Record<string, unknown>;
 
@@ -55,7 +55,7 @@ const KNOWN: Record<string, readonly string[]> = {
   'transect.ends': ['left', 'right'],
   infestation: ['fromKm', 'toKm', 'density'],
   barrier: ['lengthKm', 'costPerStem', 'costUnit', 'options', 'toleranceM', 'curveWidthsM'],
-  numerics: ['cellM', 'stepYears'],
+  numerics: ['cellM', 'stepYears', 'tolerance'],
   uncertainty: ['draws', 'seed', 'targetStandardError', 'criticalWidth', 'resolutionFactor'],
   transport: ['ratePerKm2Year', 'kernel', 'establishmentProbability', 'forwardShare', 'bandWidthKm'],
   'transport.kernel': ['shape', 'meanKm', 'points'],

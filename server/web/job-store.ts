@@ -1,8 +1,9 @@
 /**
- * Durable web jobs: every accepted evaluation is a row before the server answers 202, with its exact
+ * Durable web jobs: every accepted evaluation (and briefing) is a row before the server answers 202, with its exact
  * scenario, its state and the pieces of work already finished (the central-value document and each chunk
  * of ensemble draws, stored as they finish). On start the server resumes what was queued or running from
- * these rows (server/web/jobs.ts). Tables live in the same SQLite database as scenarios and results.
+ * these rows (server/web/jobs.ts, server/web/briefings.ts). A briefing job's row links to the result it
+ * draws and, once drawn, holds the PDF (briefing_jobs). Tables live in the same SQLite database as scenarios and results.
  */
 import type Database from 'better-sqlite3';
 import type { Problem } from '../model/errors.ts';
@@ -33,8 +34,8 @@ export interface JobStore {
   insert(job: StoredJob): void;
   update(id: string, patch: Partial<Omit<StoredJob, 'id' | 'scenario' | 'kind' | 'createdAt'>>): void;
   get(id: string): StoredJob | undefined;
-  /** Jobs left queued, running or stopping (oldest first): what a starting server must take up again. */
-  unfinished(): StoredJob[];
+  /** Jobs left queued, running or stopping (oldest first), of one kind or all: what a starting server must take up again. */
+  unfinished(kind?: string): StoredJob[];
   /** Stores the central-value document of a job (JSON text). */
   savePoint(id: string, text: string): void;
   point(id: string): string | undefined;
@@ -45,6 +46,19 @@ export interface JobStore {
   clearCheckpoint(id: string): void;
   /** Keeps the `keep` most recent finished jobs (their pages), deleting older ones. */
   prune(keep: number): void;
+  /** Briefing jobs (kind 'briefing'): the result a job draws, and its PDF once drawn. */
+  briefings: BriefingJobStore;
+}
+
+export interface BriefingJobStore {
+  /** Links a briefing job (its row inserted first) to the stored result it draws. */
+  insert(jobId: string, resultId: string): void;
+  /** The result a briefing job draws. */
+  resultOf(jobId: string): string | undefined;
+  savePdf(jobId: string, pdf: Buffer): void;
+  pdf(jobId: string): Buffer | undefined;
+  /** The newest briefing job of a result that is unfinished or has its PDF (reused by a new request). */
+  latestFor(resultId: string): { jobId: string; status: StoredJobStatus } | undefined;
 }
 
 interface JobRow {
@@ -85,6 +99,12 @@ export function createJobTables(db: Database.Database): void {
       point TEXT
     );
     CREATE INDEX IF NOT EXISTS jobs_by_status ON jobs (status, created_at);
+    CREATE TABLE IF NOT EXISTS briefing_jobs (
+      job_id TEXT PRIMARY KEY REFERENCES jobs (id) ON DELETE CASCADE,
+      result_id TEXT NOT NULL,
+      pdf BLOB
+    );
+    CREATE INDEX IF NOT EXISTS briefing_jobs_by_result ON briefing_jobs (result_id);
     CREATE TABLE IF NOT EXISTS job_chunks (
       job_id TEXT NOT NULL REFERENCES jobs (id) ON DELETE CASCADE,
       chunk INTEGER NOT NULL,
@@ -131,6 +151,16 @@ export function makeJobStore(db: Database.Database): JobStore {
     ),
     get: db.prepare<[string], JobRow>('SELECT * FROM jobs WHERE id = ?'),
     unfinished: db.prepare<[], JobRow>(`SELECT * FROM jobs WHERE status IN ('queued', 'running', 'cancelling') ORDER BY created_at, rowid`),
+    unfinishedOf: db.prepare<[string], JobRow>(`SELECT * FROM jobs WHERE kind = ? AND status IN ('queued', 'running', 'cancelling') ORDER BY created_at, rowid`),
+    briefingInsert: db.prepare<[string, string]>('INSERT INTO briefing_jobs (job_id, result_id) VALUES (?, ?)'),
+    briefingResult: db.prepare<[string], { result_id: string }>('SELECT result_id FROM briefing_jobs WHERE job_id = ?'),
+    briefingSave: db.prepare<[Buffer, string]>('UPDATE briefing_jobs SET pdf = ? WHERE job_id = ?'),
+    briefingPdf: db.prepare<[string], { pdf: Buffer | null }>('SELECT pdf FROM briefing_jobs WHERE job_id = ?'),
+    briefingLatest: db.prepare<[string], { job_id: string; status: StoredJobStatus }>(
+      `SELECT b.job_id, j.status FROM briefing_jobs b JOIN jobs j ON j.id = b.job_id
+       WHERE b.result_id = ? AND (j.status IN ('queued', 'running') OR (j.status = 'done' AND b.pdf IS NOT NULL))
+       ORDER BY j.created_at DESC, j.rowid DESC LIMIT 1`,
+    ),
     savePoint: db.prepare<[string, string]>('UPDATE jobs SET point = ? WHERE id = ?'),
     point: db.prepare<[string], { point: string | null }>('SELECT point FROM jobs WHERE id = ?'),
     saveChunk: db.prepare<[string, number, string]>('INSERT OR REPLACE INTO job_chunks (job_id, chunk, draws) VALUES (?, ?, ?)'),
@@ -165,12 +195,22 @@ export function makeJobStore(db: Database.Database): JobStore {
       const r = q.get.get(id);
       return r ? toJob(r) : undefined;
     },
-    unfinished: () => q.unfinished.all().map(toJob),
+    unfinished: (kind) => (kind === undefined ? q.unfinished.all() : q.unfinishedOf.all(kind)).map(toJob),
     savePoint: (id, text) => void q.savePoint.run(text, id),
     point: (id) => q.point.get(id)?.point ?? undefined,
     saveChunk: (id, chunk, text) => void q.saveChunk.run(id, chunk, text),
     chunks: (id) => new Map(q.chunks.all(id).map((r) => [r.chunk, r.draws])),
     clearCheckpoint: (id) => clear(id),
     prune: (keep) => void q.prune.run(keep),
+    briefings: {
+      insert: (jobId, resultId) => void q.briefingInsert.run(jobId, resultId),
+      resultOf: (jobId) => q.briefingResult.get(jobId)?.result_id,
+      savePdf: (jobId, pdf) => void q.briefingSave.run(pdf, jobId),
+      pdf: (jobId) => q.briefingPdf.get(jobId)?.pdf ?? undefined,
+      latestFor: (resultId) => {
+        const r = q.briefingLatest.get(resultId);
+        return r ? { jobId: r.job_id, status: r.status } : undefined;
+      },
+    },
   };
 }

@@ -304,7 +304,7 @@ export function makeJobRunner(opts: JobRunnerOptions): JobRunner {
   };
 
   // Take up what an earlier run of the server left queued or running.
-  for (const r of store.jobs.unfinished()) {
+  for (const r of store.jobs.unfinished('evaluation')) {
     const { ahead: _a, secondsLeft: _s, where: _w, trouble: _t, ...rowView } = fromRow(r);
     const job: Job = { view: rowView, scenario: r.scenario, waiters: [] };
     if (r.status === 'cancelling') {

@@ -1,10 +1,10 @@
 /**
- * Result documents compared across runners: everything but the run date, wall times and thread counts
+ * Result documents compared across runners: everything but the run date, wall times, thread counts and where the draws ran
  * (which say when and how, not what) must be identical, bit for bit.
  */
 import { stringifySafe } from '../../server/jobs/json-safe.ts';
 
-const VOLATILE = new Set(['runAt', 'wallMs', 'threads']);
+const VOLATILE = new Set(['runAt', 'wallMs', 'threads', 'ranOn']);
 
 /** The document with its volatile fields removed, as JSON text that keeps ±∞, NaN and −0. */
 export function comparable(doc: unknown): string {

@@ -126,6 +126,41 @@ describe.skipIf(!hasRedisServer)('queue runner with worker processes', () => {
     await a.kill();
   });
 
+  it('two evaluations of the same scenario at once share its task ids: both finish with the local numbers, also when one is cancelled half-way', async () => {
+    const env = isolated();
+    const a = await worker(env);
+    const r = await runner();
+    const logged: string[] = [];
+    const [one, two] = await Promise.all([runEvaluation(scenario, r), runEvaluation(scenario, r)]);
+    for (const out of [one, two]) expect(out.kind === 'done' && comparable(out.document)).toBe(localDoc);
+    // Again, the first cancelled after its third chunk: the cancel must not stop the pieces the second waits for.
+    const ac = new AbortController();
+    let chunks = 0;
+    const first = runEvaluation(scenario, r, { signal: ac.signal, onChunk: () => ++chunks === 3 && ac.abort() });
+    const second = runEvaluation(scenario, r, { onProgress: (_f, stage) => logged.push(stage) });
+    await expect(first).rejects.toBeInstanceOf(CancelledError);
+    const out = await second;
+    expect(out.kind === 'done' && comparable(out.document)).toBe(localDoc);
+    await a.kill();
+  });
+
+  it('a task cancelled for one batch while another batch waits for it is added again for the one still waiting', async () => {
+    const env = isolated();
+    const a = await worker(env);
+    const r = await runner();
+    const ac = new AbortController();
+    let started!: () => void;
+    const running = new Promise<void>((res) => (started = res));
+    const payload = [{ spinMs: 1_500, value: 5 }];
+    const cancelled = r.map<object, ProbeResult>('runner-probe', payload, { key: 'shared-probe', signal: ac.signal, onProgress: () => started() });
+    const kept = r.map<object, ProbeResult>('runner-probe', payload, { key: 'shared-probe' });
+    await running;
+    ac.abort();
+    await expect(cancelled).rejects.toBeInstanceOf(CancelledError);
+    expect((await kept)[0]).toEqual({ value: 5, pid: a.pid });
+    await a.kill();
+  });
+
   it('a worker running another tool version refuses the task and names both versions', async () => {
     const env = isolated();
     const a = await worker(env);

@@ -1,7 +1,8 @@
 /**
  * The web server in queue mode: an evaluation accepted while no queue worker runs waits in the queue;
  * the server stopped and started again takes it up (resumed after a restart) and, once a worker
- * connects, it finishes with the numbers of a local run. The run page says where the work runs.
+ * connects, it finishes with the numbers of a local run. The run page and the result say where the work ran
+ * (queue workers, not this machine's threads).
  * Skipped with a printed message where redis-server is not installed.
  */
 import { afterAll, describe, expect, it } from 'vitest';
@@ -39,6 +40,7 @@ describe.skipIf(!hasRedisServer)('web server in queue mode', () => {
       expect(waiting.finished).toBe(false);
       expect(waiting.where).toMatch(/^0 queue workers/);
       expect(waiting.trouble).toMatch(/^No queue worker is connected: the work waits in the queue until one starts/);
+      expect((await a.inject(`/runs/${id}`)).body).toMatch(/Runs on: <span data-where>0 queue workers \(Redis at redis:\/\/127\.0\.0\.1:\d+\)<\/span>/);
       await a.close();
       await r1.close();
 
@@ -52,7 +54,13 @@ describe.skipIf(!hasRedisServer)('web server in queue mode', () => {
       expect(done.status).toBe('done');
       expect(done.resumed).toBe(true);
       expect(done.where).toMatch(/^1 queue worker \(Redis at redis:\/\/127\.0\.0\.1:\d+\)$/);
+      // The run page and the result say where the work ran, not this machine's threads.
       const result = (await b.inject(`/api/results/${done.resultId}`)).json();
+      expect(result.document.uncertainty.ranOn).toBe('1 queue worker');
+      expect(result.document.uncertainty.threads).toBe(1);
+      const page = (await b.inject(`/results/${done.resultId}`)).body;
+      expect(page).toMatch(/ s on 1 queue worker\./);
+      expect(page).not.toMatch(/ s on \d+ threads?\./);
       expect(comparable(result.document)).toBe(comparable(JSON.parse(JSON.stringify(evaluateScenario(parseScenario(raw))))));
     } finally {
       for (const c of cleanup) await c().catch(() => {});

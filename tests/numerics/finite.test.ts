@@ -10,7 +10,7 @@ import { checkFiniteCoefficients, checkFiniteResult, checkFiniteState, firstNonF
 import { runTimeLoop, type FieldStepper } from '../../server/numerics/time-loop.ts';
 import { parseScenario, type Scenario } from '../../server/model/scenario.ts';
 import { ScenarioError } from '../../server/model/errors.ts';
-import { evaluateScenarioParallel } from '../../server/analysis/evaluate/evaluate.ts';
+import { evaluateScenarioParallel } from '../../server/jobs/parallel.ts';
 import { ComputationError } from '../../server/analysis/finite-guard.ts';
 
 const quickRaw = () => JSON.parse(readFileSync(new URL('../fixtures/quick-scenario.json', import.meta.url), 'utf8'));

@@ -49,18 +49,21 @@ describe('automatic resolution', () => {
 });
 
 describe('coarsened draws', () => {
-  it('cells factor× the finest automatic choice; the step stays within 0.5/m', () => {
+  it('cells factor× the finest automatic choice; adaptive steps at factor² × the tolerance (1e-5 · 3² = 9e-5)', () => {
     const p = buildProblem(s);
     const fine = mergedResolution(p, s.barrier!.options);
     const c = coarsenedProblem(p, 3);
     expect(c.numerics.cellM).toBeCloseTo(3 * fine.cellKm * 1000, 9);
-    expect(c.numerics.stepYears).toBeCloseTo(Math.min(3 * fine.stepYears, 0.5 / 4), 12);
+    expect(c.numerics.stepYears).toBeUndefined();
+    expect(c.numerics.tolerance).toBeCloseTo(9e-5, 15);
+    expect(mergedResolution(c, s.barrier!.options).tolerance).toBeCloseTo(9e-5, 15);
     expect(c.cache).toBe(p.cache);
     expect(coarsenedProblem(p, 1)).toBe(p);
   });
   it('values the user fixed are kept', () => {
     const c = coarsenedProblem(buildProblem({ ...s, numerics: { stepYears: 0.01 } }), 3);
     expect(c.numerics.stepYears).toBe(0.01);
+    expect(c.numerics.tolerance).toBeUndefined();
   });
 });
 

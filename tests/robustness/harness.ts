@@ -10,7 +10,7 @@ import type { FastifyInstance, InjectOptions } from 'fastify';
 import { parseScenario, type Scenario } from '../../server/model/scenario.ts';
 import { InputError } from '../../server/model/errors.ts';
 import { checkLimits, DEFAULT_LIMITS } from '../../server/web/limits.ts';
-import { evaluateScenarioParallel } from '../../server/analysis/evaluate/evaluate.ts';
+import { evaluateScenarioParallel } from '../../server/jobs/parallel.ts';
 import { nonFiniteNumbers } from '../../server/numerics/finite.ts';
 import { scenarioToForm } from '../../server/web/form-state.ts';
 import { hostileFormBodies, hostileRequests, mutatedScenarios } from './mutate.ts';

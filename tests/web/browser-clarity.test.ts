@@ -172,7 +172,7 @@ describe.skipIf(!hasChromium)('results a decision meeting can read (real browser
     expect(wide.join('; ')).toBe('');
   });
 
-  it('charts fill the column and their smallest text is at least 12 px at 100 % zoom; every density-map site line is named', async () => {
+  it('charts fill the column and their smallest text is at least 12 px at 100 % zoom, on a phone too; every density-map site line is named', async () => {
     const page = await open(resultUrl('clearing-holds'));
     const column = await page.locator('main').evaluate((m) => m.clientWidth - parseFloat(getComputedStyle(m).paddingLeft) - parseFloat(getComputedStyle(m).paddingRight));
     const charts = await page.locator('figure.chart svg').evaluateAll((svgs) =>
@@ -188,6 +188,18 @@ describe.skipIf(!hasChromium)('results a decision meeting can read (real browser
       expect(c.width).toBeGreaterThan(0.95 * column);
       expect(c.minPx).toBeGreaterThanOrEqual(12);
     }
+    // On a phone (390 px) the charts keep their text ≥ 12 px and scroll sideways in their own box.
+    const phone = await open(resultUrl('clearing-holds'), { width: 390, height: 800 });
+    const small = await phone.locator('figure.chart svg').evaluateAll((svgs) =>
+      svgs.map((svg) => {
+        const vb = (svg as SVGSVGElement).viewBox.baseVal;
+        const sizes = [...svg.querySelectorAll('text')].map((tx) => parseFloat(tx.getAttribute('font-size') ?? getComputedStyle(tx).fontSize));
+        return Math.min(...sizes) * (svg.clientWidth / vb.width);
+      }),
+    );
+    for (const px of small) expect(px).toBeGreaterThanOrEqual(12);
+    expect(await phone.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(390);
+    await phone.close();
     const map = page.locator('figure[data-chart="space-time-A"]');
     expect(await map.locator('svg').textContent()).toContain('dotted: protected sites — 1 Brackfen Mill village · 2 Saltrin Hollow seed orchard');
     await page.close();

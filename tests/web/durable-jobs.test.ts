@@ -13,7 +13,8 @@ import { openStore } from '../../server/web/store.ts';
 import { evaluateScenario } from '../../server/analysis/evaluate/evaluate.ts';
 import { parseScenario } from '../../server/model/scenario.ts';
 import { jobPayload, statusText, timeLeftText } from '../../server/web/routes/run-pages.ts';
-import type { JobView } from '../../server/web/jobs.ts';
+import { makeJobRunner, type JobView } from '../../server/web/jobs.ts';
+import { makePoolRunner } from '../../server/jobs/pool-runner.ts';
 import { smallEnsembleScenario } from '../analysis/ensemble/ensemble-fixture.ts';
 import { FIXTURE_SCENARIOS_DIR, waitForJob } from '../helpers/build-app.ts';
 import { comparable } from '../jobs/compare.ts';
@@ -93,6 +94,33 @@ describe('durable jobs (embedded)', () => {
     const store = openStore(dataDir);
     expect(store.jobs.get(id)?.status).toBe('queued');
     store.close();
+  });
+
+  it('shutdown says which evaluations were not finished (running and waiting), and they stay queued for the next start', async () => {
+    const store = openStore(newDir());
+    const runner = makePoolRunner({ threads: 1 });
+    const logged: string[] = [];
+    const jobs = makeJobRunner({ store, runner, concurrency: 1, wallSeconds: 600, maxQueued: 10, log: (m) => logged.push(m) });
+    try {
+      const scenario = parseScenario(slowRaw());
+      const first = jobs.submit({ scenario, scenarioRef: null });
+      const second = jobs.submit({ scenario: { ...scenario, title: 'second slow run' }, scenarioRef: null });
+      await new Promise((r) => setTimeout(r, 300));
+      const report = await jobs.shutdown(500);
+      expect(report.unfinished.map((u) => [u.id, u.status])).toEqual([
+        [first.id, 'running'],
+        [second.id, 'queued'],
+      ]);
+      const line = logged.find((m) => m.startsWith('stopping with 2 evaluation(s) not finished'));
+      expect(line).toContain(first.id);
+      expect(line).toContain('"second slow run"');
+      expect(store.jobs.unfinished('evaluation').map((r) => r.status)).toEqual(['queued', 'queued']);
+      expect(() => jobs.submit({ scenario, scenarioRef: null })).toThrow(/stopping/);
+    } finally {
+      await jobs.close();
+      await runner.close();
+      store.close();
+    }
   });
 
   it('caps progress streams per evaluation and per client (429 with a message)', async () => {

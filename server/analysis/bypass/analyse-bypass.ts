@@ -1,6 +1,6 @@
 /**
  * Adds the uncertainty (ensemble) and human-carried bypass sections to a result document. Called by
- * evaluateScenario (ensemble in this thread) and evaluateScenarioParallel (ensemble on a worker pool).
+ * evaluateScenario (ensemble in this thread) and evaluateScenarioParallel (jobs/parallel.ts: ensemble on a worker pool).
  */
 import type { PointScenario, Scenario } from '../../model/scenario.ts';
 import { asProblem, layoutOf, type Problem } from '../../problem/problem.ts';

@@ -7,18 +7,19 @@
  */
 import type { Scenario, ScenarioInput, PointScenario } from '../../model/scenario.ts';
 import { pointScenario, segmentBreaks } from '../../model/scenario.ts';
-import { FIELDS, type FieldSpec } from '../../model/fields.ts';
-import { isDistribution, quantile, centralValue, type Distribution, type Quantity } from '../../model/quantity.ts';
+import { isDistribution, quantile, centralValue, type Distribution } from '../../model/quantity.ts';
 import { InputError } from '../../model/errors.ts';
-import { SurveyError, surveyProblems, type SurveyTable } from '../../model/survey.ts';
-import { makeRng } from '../../numerics/rng.ts';
+import { SurveyError, surveyProblems, type SurveyRecord, type SurveyTable } from '../../model/survey.ts';
 import { buildLayout } from '../../problem/layout.ts';
 import { runLayout } from '../run/simulate.ts';
 import { fitFront, type FrontFit, type FlaggedRecord } from './front.ts';
-import { movementRateFromSpeed, unitSpeed, type UnitSpeed } from './inversion.ts';
 import { densitiesAtStart, detectionProbability, recordArrays, simulateAtPositions, type StartStretch } from './likelihood.ts';
 import { fitModel, withValue, type ConditionalProfile, type GridParameter, type ModelFitOutcome } from './model-fit.ts';
-import { CHI2_1_90, Z90, normalCdf, studentTQuantile } from './statistics.ts';
+import { quickEstimate, type QuickEstimate } from './quick.ts';
+import { STRATA, capital, fmt, growthPath, joinWords, specOf, summariseParameters, valueAtPath, type FittedParameter } from './ranges.ts';
+
+export type { FittedParameter } from './ranges.ts';
+export type { QuickEstimate } from './quick.ts';
 
 export interface FitOptions {
   /** The stretch the pest spread from at the start year [km]; the scenario's infestation when absent. */
@@ -35,31 +36,7 @@ export interface FitOptions {
   onProgress?: (fraction: number) => void;
 }
 
-/** One fitted (or considered) parameter. */
-export interface FittedParameter {
-  path: string;
-  label: string;
-  unit: string;
-  /** The scenario's value or distribution before the fit. */
-  prior: Quantity;
-  /** Best value (null when not fitted). */
-  estimate: number | null;
-  /** 90 % range (null when not identifiable). */
-  interval90: [number, number] | null;
-  identifiable: boolean;
-  method: string;
-  message: string;
-  /** The distribution to adopt (null: keep the prior). */
-  distribution: Distribution | null;
-}
 
-export interface QuickEstimate {
-  unitSpeed: UnitSpeed;
-  /** D from the front's spread rate [km²/yr] and its 90 % range (null when the front does not advance). */
-  diffusion: number | null;
-  interval90: [number, number] | null;
-  note: string;
-}
 
 export interface RecordResidual {
   row: string;
@@ -111,19 +88,8 @@ export const FIT_CAUTIONS: readonly string[] = [
   'Decisions on quarantine, host removal and movement controls rest with the local regulator; felling follows local regulations and licensed practice.',
 ];
 
-const growthPath = (s: Scenario): (string | number)[] => (s.pest.growth.form === 'mate-finding' ? ['pest', 'growth', 'birthRate'] : ['pest', 'growth', 'rate']);
 
-function valueAtPath(root: unknown, path: readonly (string | number)[]): unknown {
-  let cur = root as Record<string | number, unknown> | undefined;
-  for (const p of path) cur = cur?.[p] as Record<string | number, unknown> | undefined;
-  return cur;
-}
 
-function specOf(path: readonly (string | number)[]): FieldSpec {
-  const key = String(path[path.length - 1]);
-  if (key === 'rate') return FIELDS.growthRate;
-  return (FIELDS as Record<string, FieldSpec>)[key];
-}
 
 /** Habitats other than host forest that the records reach across from the starting stretch. */
 function crossedHabitats(s: PointScenario, positions: number[], start: { fromKm: number; toKm: number }): Set<string> {
@@ -137,83 +103,11 @@ function crossedHabitats(s: PointScenario, positions: number[], start: { fromKm:
   return out;
 }
 
-const STRATA = (n: number) => Array.from({ length: n }, (_, k) => (k + 0.5) / n);
 
-/** Lognormal whose 5 % and 95 % points are the range's ends. */
-function lognormalFor([lo, hi]: [number, number]): Distribution {
-  return { dist: 'lognormal', median: sig(Math.sqrt(lo * hi)), spread: sig(Math.max(1, Math.exp(Math.log(hi / lo) / (2 * Z90)))) };
-}
 
-/** Uniform whose 5 % and 95 % points are the range's ends, kept inside (0, 1). */
-function uniformFor([lo, hi]: [number, number], spec: FieldSpec): Distribution {
-  const pad = (hi - lo) / 18;
-  const min = Math.max(lo - pad, spec.min + 1e-3);
-  const max = Math.min(hi + pad, spec.max - 1e-3);
-  return { dist: 'uniform', min: sig(min), max: sig(max) };
-}
 
-function sig(x: number): number {
-  return Number(x.toPrecision(4));
-}
 
-/**
- * Quantile of a mixture of split-normal distributions in ln D (one per grid point, weights w), found by
- * bisection on the mixture's distribution function.
- */
-function mixtureQuantile(parts: { w: number; mu: number; sLo: number; sHi: number }[], p: number): number {
-  const cdf = (x: number) =>
-    parts.reduce((a, c) => {
-      // Split normal with the mode at mu: mass ½ on each side.
-      const z = x < c.mu ? 0.5 * 2 * normalCdf((x - c.mu) / c.sLo) : 0.5 + 0.5 * (2 * normalCdf((x - c.mu) / c.sHi) - 1);
-      return a + c.w * z;
-    }, 0);
-  let lo = Math.min(...parts.map((c) => c.mu - 10 * c.sLo));
-  let hi = Math.max(...parts.map((c) => c.mu + 10 * c.sHi));
-  for (let it = 0; it < 100; it++) {
-    const m = 0.5 * (lo + hi);
-    if (cdf(m) < p) lo = m;
-    else hi = m;
-  }
-  return 0.5 * (lo + hi);
-}
 
-/** D from the front's spread rate, carrying an uncertain growth rate through by seeded Monte Carlo. */
-function quickEstimate(s: Scenario, point: PointScenario, front: FrontFit): QuickEstimate {
-  const unit = unitSpeed(point);
-  if (front.kmPerYear === null || !(front.kmPerYear > 0) || unit.kmPerYear === null) {
-    return { unitSpeed: unit, diffusion: null, interval90: null, note: front.kmPerYear !== null && front.kmPerYear <= 0 ? 'the front does not advance: no movement rate follows from its speed' : unit.note };
-  }
-  const c = front.kmPerYear;
-  const gp = growthPath(s);
-  const prior = valueAtPath(s, gp);
-  const d = movementRateFromSpeed(c, unit.kmPerYear);
-  const [cLo, cHi] = front.interval90 as [number, number];
-  if (!isDistribution(prior) || s.pest.growth.form === 'mate-finding') {
-    return {
-      unitSpeed: unit,
-      diffusion: d,
-      interval90: [cLo > 0 ? movementRateFromSpeed(cLo, unit.kmPerYear) : 0, movementRateFromSpeed(cHi, unit.kmPerYear)],
-      note: `${unit.note}; asymptotic speed of an established front (a young front of a pest without an Allee effect is slower, so this can underestimate D)${isDistribution(prior) ? '; the birth rate is taken at its central value here' : ''}`,
-    };
-  }
-  // c ~ ĉ + se·t(df) and r ~ its distribution, independent; D = c²/c(1; r)².
-  const rng = makeRng(20260401);
-  const draws: number[] = [];
-  const se = front.standardError ?? 0;
-  for (let i = 0; i < 4000; i++) {
-    const ci = c + se * studentTQuantile(rng.nextOpen(), Math.max(1, front.degreesOfFreedom));
-    const r = quantile(prior, rng.nextOpen());
-    const u = unitSpeed(withValue(point, gp, r)).kmPerYear as number;
-    draws.push(ci > 0 ? movementRateFromSpeed(ci, u) : 0);
-  }
-  draws.sort((a, b) => a - b);
-  return {
-    unitSpeed: unit,
-    diffusion: d,
-    interval90: [draws[Math.floor(0.05 * draws.length)], draws[Math.floor(0.95 * draws.length)]],
-    note: `${unit.note}; the growth rate's range is carried through (4000 seeded draws); asymptotic speed of an established front`,
-  };
-}
 
 /**
  * Fits the scenario's movement rate (and, where the scenario gives them as ranges and the records allow,
@@ -321,28 +215,8 @@ function fitOnce(scenario: Scenario, point: PointScenario, table: SurveyTable, s
   if (best.startAtBound) messages.push(`The best start year is the earliest allowed (${best.startYear.toFixed(1)}): the pest may have spread from the starting stretch for longer; give an earlier lead (more years before ${firstYear}) or check the starting stretch.`);
 
   // Residuals and the fitted fronts for the chart.
-  const bestRun = simulateAtPositions(withValue(bestPoint, ['pest', 'diffusionHost'], best.diffusion), start, rec.positionsKm, lastYear - (firstYear - lead), outcome.resolution);
-  const u = densitiesAtStart(bestRun, rec, best.startYear, new Float64Array(used.length));
-  const residuals: RecordResidual[] = used.map((r, k) => {
-    const p = detectionProbability(u[k], r.effort ?? 1, best.detectionChance, point.detectionLevel);
-    const py = r.detected ? p : 1 - p;
-    return { row: rowLabels[usedIdx[k]], year: r.year, atKm: r.atKm as number, detected: r.detected, predicted: p, residual: Math.sign((r.detected ? 1 : 0) - p) * Math.sqrt(-2 * Math.log(py)) };
-  });
-  const byYear = years.map((y) => {
-    const rs = residuals.filter((r) => r.year === y);
-    return { year: y, records: rs.length, detected: rs.filter((r) => r.detected).length, expected: rs.reduce((a, r) => a + r.predicted, 0) };
-  });
-  const dParam = parameters[0];
-  const frontAt = (d: number | null, t0: number) => (d === null ? null : modelFronts(withValue(bestPoint, ['pest', 'diffusionHost'], d), start, t0, years, front.direction));
-  const fBest = frontAt(best.diffusion, best.startYear);
-  const ends = dParam.interval90 ?? null;
-  const endStart = (d: number) => {
-    const evals = outcome.profiles.flatMap((p) => p.evaluations);
-    return evals.reduce((a, b) => (Math.abs(Math.log(b.diffusion / d)) < Math.abs(Math.log(a.diffusion / d)) ? b : a)).startYear;
-  };
-  const fLow = ends ? frontAt(ends[0], endStart(ends[0])) : null;
-  const fHigh = ends ? frontAt(ends[1], endStart(ends[1])) : null;
-  const fronts = years.map((y, k) => ({ year: y, bestKm: fBest?.[k] ?? null, lowKm: fLow?.[k] ?? null, highKm: fHigh?.[k] ?? null }));
+  const { residuals, byYear } = bestFitResiduals(bestPoint, best, outcome, start, used, usedIdx.map((i) => rowLabels[i]), years, firstYear - lead, lastYear);
+  const fronts = fittedFronts(bestPoint, best, outcome, parameters[0], start, years, front.direction);
 
   const detections = records.filter((r) => r.detected).length;
   const fitted = parameters.filter((p) => p.identifiable).map((p) => p.label.charAt(0).toLowerCase() + p.label.slice(1));
@@ -382,6 +256,43 @@ function fitOnce(scenario: Scenario, point: PointScenario, table: SurveyTable, s
   };
 }
 
+interface BestFit {
+  diffusion: number;
+  startYear: number;
+  detectionChance: number;
+}
+
+/** Deviance residual of each used record at the best fit, and detections seen vs expected per year. */
+function bestFitResiduals(bestPoint: PointScenario, best: BestFit, outcome: ModelFitOutcome, start: StartStretch, used: SurveyRecord[], labels: string[], years: number[], runFrom: number, lastYear: number) {
+  const rec = recordArrays(used);
+  const bestRun = simulateAtPositions(withValue(bestPoint, ['pest', 'diffusionHost'], best.diffusion), start, rec.positionsKm, lastYear - runFrom, outcome.resolution);
+  const u = densitiesAtStart(bestRun, rec, best.startYear, new Float64Array(used.length));
+  const residuals: RecordResidual[] = used.map((r, k) => {
+    const p = detectionProbability(u[k], r.effort ?? 1, best.detectionChance, bestPoint.detectionLevel);
+    const py = r.detected ? p : 1 - p;
+    return { row: labels[k], year: r.year, atKm: r.atKm as number, detected: r.detected, predicted: p, residual: Math.sign((r.detected ? 1 : 0) - p) * Math.sqrt(-2 * Math.log(py)) };
+  });
+  const byYear = years.map((y) => {
+    const rs = residuals.filter((r) => r.year === y);
+    return { year: y, records: rs.length, detected: rs.filter((r) => r.detected).length, expected: rs.reduce((a, r) => a + r.predicted, 0) };
+  });
+  return { residuals, byYear };
+}
+
+/** Model front at each survey year at the best fit and at both ends of D's range (each with its own best start). */
+function fittedFronts(bestPoint: PointScenario, best: BestFit, outcome: ModelFitOutcome, dParam: FittedParameter, start: StartStretch, years: number[], direction: 1 | -1): CalibrationResult['model']['fronts'] {
+  const frontAt = (d: number | null, t0: number) => (d === null ? null : modelFronts(withValue(bestPoint, ['pest', 'diffusionHost'], d), start, t0, years, direction));
+  const fBest = frontAt(best.diffusion, best.startYear);
+  const ends = dParam.interval90 ?? null;
+  const endStart = (d: number) => {
+    const evals = outcome.profiles.flatMap((p) => p.evaluations);
+    return evals.reduce((a, b) => (Math.abs(Math.log(b.diffusion / d)) < Math.abs(Math.log(a.diffusion / d)) ? b : a)).startYear;
+  };
+  const fLow = ends ? frontAt(ends[0], endStart(ends[0])) : null;
+  const fHigh = ends ? frontAt(ends[1], endStart(ends[1])) : null;
+  return years.map((y, k) => ({ year: y, bestKm: fBest?.[k] ?? null, lowKm: fLow?.[k] ?? null, highKm: fHigh?.[k] ?? null }));
+}
+
 /** Lead before the first survey year: the time the front needs from the stretch to the first year's front at the quick rate, plus margin. */
 function autoLead(front: FrontFit, quick: QuickEstimate): number {
   const first = front.years.find((y) => y.distanceKm !== null);
@@ -406,74 +317,6 @@ function modelFronts(s: PointScenario, start: StartStretch, startYear: number, y
   });
 }
 
-function summariseParameters(scenario: Scenario, outcome: ModelFitOutcome, grid: GridParameter[], messages: string[]): FittedParameter[] {
-  const profiles = outcome.profiles;
-  const top = Math.max(...profiles.map((p) => p.best.logLik));
-  const out: FittedParameter[] = [];
-  // Movement rate: mixture over the grid points, weighted by likelihood (equal prior mass per point).
-  const weights = profiles.map((p) => Math.exp(p.best.logLik - top));
-  const wsum = weights.reduce((a, b) => a + b, 0);
-  const parts = profiles.map((p, i) => ({
-    w: weights[i] / wsum,
-    mu: Math.log(p.best.diffusion),
-    sLo: Math.max(1e-6, (Math.log(p.best.diffusion) - Math.log(p.interval90[0])) / Z90),
-    sHi: Math.max(1e-6, (Math.log(p.interval90[1]) - Math.log(p.best.diffusion)) / Z90),
-  }));
-  const open = profiles.some((p, i) => weights[i] / wsum > 0.05 && (p.lowerOpen || p.upperOpen));
-  const dPath = ['pest', 'diffusionHost'];
-  const bestProfile = profiles[weights.indexOf(Math.max(...weights))];
-  const searched = profiles.flatMap((p) => p.evaluations.map((e) => e.diffusion));
-  const range: [number, number] = [Math.exp(mixtureQuantile(parts, 0.05)), Math.exp(mixtureQuantile(parts, 0.95))];
-  const dSpec = FIELDS.diffusionHost;
-  const carried = grid.length ? ` (the ${joinWords(grid.map((g) => specOf(g.path).label.toLowerCase()))} range${grid.length > 1 ? 's' : ''} carried through, each grid point weighted by its fit)` : '';
-  out.push({
-    path: 'pest.diffusionHost',
-    label: dSpec.label,
-    unit: dSpec.unit,
-    prior: valueAtPath(scenario, dPath) as Quantity,
-    estimate: bestProfile.best.diffusion,
-    interval90: open ? null : range,
-    identifiable: !open,
-    method: `profile likelihood of the full model (binomial detections; start year and detection chance profiled out)${carried}`,
-    message: open
-      ? `not identifiable from these records: they do not bound it towards ${bestProfile.lowerOpen ? 'small' : 'large'} values (searched ${fmt(Math.min(...searched))}–${fmt(Math.max(...searched))} ${dSpec.unit}); the entered range is kept`
-      : `${fmt(bestProfile.best.diffusion)} ${dSpec.unit}, 90 % range ${fmt(range[0])}–${fmt(range[1])}`,
-    distribution: open ? null : lognormalFor(range),
-  });
-  // Grid parameters: deviance across their grid (max over the other parameters), interpolated.
-  grid.forEach((g, i) => {
-    const spec = specOf(g.path);
-    const prof = g.values.map((v) => Math.max(...profiles.filter((p) => p.gridValues[i] === v).map((p) => p.best.logLik)));
-    const dev = prof.map((l) => 2 * (top - l));
-    const k = dev.indexOf(Math.min(...dev));
-    const leftClosed = dev.slice(0, k).some((d) => d > CHI2_1_90);
-    const rightClosed = dev.slice(k + 1).some((d) => d > CHI2_1_90);
-    const cross = (from: number, step: -1 | 1): number => {
-      let j = from;
-      while (dev[j + step] <= CHI2_1_90) j += step;
-      const a = dev[j];
-      const b = dev[j + step];
-      return g.values[j] + ((CHI2_1_90 - a) / (b - a)) * (g.values[j + step] - g.values[j]);
-    };
-    const identifiable = leftClosed && rightClosed;
-    const interval: [number, number] | null = identifiable ? [cross(k, -1), cross(k, 1)] : null;
-    const prior = valueAtPath(scenario, g.path) as Quantity;
-    if (!identifiable) messages.push(`${spec.label} is not identifiable from these records: the fit is about equally good across its range (${fmt(g.values[0])}–${fmt(g.values[g.values.length - 1])}${spec.unit ? ` ${spec.unit}` : ''}); its entered range is kept and carried into the movement rate's range.`);
-    out.push({
-      path: g.path.join('.'),
-      label: spec.label,
-      unit: spec.unit,
-      prior,
-      estimate: g.values[k],
-      interval90: interval,
-      identifiable,
-      method: `profile over ${g.values.length} points of the entered range (its quantiles ${STRATA(g.values.length).map((u) => Math.round(u * 100)).join(', ')} %), linear between points: a coarse range`,
-      message: identifiable ? `${fmt(g.values[k])}${spec.unit ? ` ${spec.unit}` : ''}, 90 % range ${fmt(interval![0])}–${fmt(interval![1])}` : 'not identifiable: flat profile across the entered range; entered range kept',
-      distribution: identifiable ? (spec.max <= 1 ? uniformFor(interval!, spec) : lognormalFor(interval!)) : null,
-    });
-  });
-  return out;
-}
 
 /**
  * The scenario with the fitted ranges adopted as its distributions (identifiable parameters only), the
@@ -503,17 +346,8 @@ export function adoptFit(scenario: Scenario, fit: CalibrationResult): ScenarioIn
   return out as unknown as ScenarioInput;
 }
 
-function joinWords(w: string[]): string {
-  return w.length <= 1 ? (w[0] ?? '') : `${w.slice(0, -1).join(', ')} and ${w[w.length - 1]}`;
-}
 
-function capital(s: string): string {
-  return s.charAt(0).toUpperCase() + s.slice(1);
-}
 
-function fmt(x: number): string {
-  return Math.abs(x) >= 100 ? x.toFixed(0) : Number(x.toPrecision(3)).toString();
-}
 
 export { centralValue };
 export type { ConditionalProfile };

@@ -71,3 +71,38 @@ export function drawRecords(run: TruthRun, detectionChance: number, rng: Rng): S
   }
   return out;
 }
+
+/** A survey on a map: random points each year (uniform over the map), seen where the pest has arrived. */
+export interface MapSurveyDesign {
+  years: number[];
+  pointsPerYear: number;
+  /** Decimal year the spread started (arrival year 0 of the run). */
+  startYear: number;
+}
+
+/**
+ * One replicate of map records from a 2-D run's arrival years per cell (first year at the detection level;
+ * NaN: never): a point is detected with chance `detectionChance` where the pest had arrived by that year,
+ * never elsewhere (the truth has no stray detections). Points fall uniformly over the map, new each year.
+ */
+export function drawMapRecords(
+  arrivalYears: ArrayLike<number>,
+  grid: { nx: number; ny: number; cellM: number; originXM: number; originYM: number },
+  design: MapSurveyDesign,
+  detectionChance: number,
+  rng: Rng,
+): SurveyRecord[] {
+  const out: SurveyRecord[] = [];
+  const w = grid.nx * grid.cellM;
+  const h = grid.ny * grid.cellM;
+  for (const year of [...design.years].sort((a, b) => a - b)) {
+    for (let k = 0; k < design.pointsPerYear; k++) {
+      const ex = rng.next() * w;
+      const ny = rng.next() * h;
+      const cell = Math.min(grid.ny - 1, Math.floor(ny / grid.cellM)) * grid.nx + Math.min(grid.nx - 1, Math.floor(ex / grid.cellM));
+      const present = arrivalYears[cell] <= year - design.startYear;
+      out.push({ year, x: grid.originXM + ex, y: grid.originYM - ny, detected: present && rng.next() < detectionChance });
+    }
+  }
+  return out;
+}

@@ -323,8 +323,8 @@ export function criticalWidth(sp: PointScenario | Problem, option: BarrierOption
     windowKm: { behind: c.behindKm, ahead: c.aheadKm },
     note:
       `Bisection on full-model runs (window ${c.behindKm.toFixed(1)} km behind and ${c.aheadKm.toFixed(1)} km beyond the clearing, started from the baseline as the front approached): ` +
-      `${history.length} runs; pinned means verified (${PINNING_METHODS[pinningMode(s, hBeyond)]}).` +
-      (undecided ? ` ${undecided} run(s) ended undecided and were counted as not pinned.` : '') +
+      `${history.length} runs; “stops” means checked (${PINNING_METHODS[pinningMode(s, hBeyond)]}).` +
+      (undecided ? ` ${undecided} run(s) ended undecided and were counted as not stopping the front.` : '') +
       (windowCheck === null
         ? ' Bracket checks (half step, doubled window) switched off.'
         : windowCheck.agreed

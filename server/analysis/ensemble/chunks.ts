@@ -6,7 +6,7 @@
 import { canonicalJson } from '../../model/canonical.ts';
 import type { Scenario } from '../../model/scenario.ts';
 import { registerTask } from '../../jobs/tasks.ts';
-import { CancelledError, type TaskRunner } from '../../jobs/task-runner.ts';
+import { CancelledError, NO_CONTEXT, type TaskContext, type TaskRunner } from '../../jobs/task-runner.ts';
 import { evaluateDraw, planEnsemble, summariseEnsemble, type DrawOutcome, type EnsemblePlan, type EnsembleRunOptions } from './ensemble.ts';
 import type { UncertaintyResult } from '../result.ts';
 
@@ -20,15 +20,29 @@ export interface EnsembleChunk {
 let cachedKey = '';
 let cachedPlan: EnsemblePlan | null = null;
 
-/** Evaluates the draws `indices` of the scenario's ensemble (the plan is rebuilt once per scenario and cached). */
-export function evaluateChunk(task: EnsembleChunk): DrawOutcome[] {
+/**
+ * Evaluates the draws `indices` of the scenario's ensemble (the plan is rebuilt once per scenario and cached).
+ * Cancel is polled between draws and inside each draw's runs, so a cancelled chunk stops within about one
+ * time step whatever its size (a draw cut short is never returned: the chunk throws CancelledError);
+ * progress is reported after each draw.
+ */
+export function evaluateChunk(task: EnsembleChunk, ctx: TaskContext = NO_CONTEXT): DrawOutcome[] {
   const key = canonicalJson(task.scenario);
   if (key !== cachedKey || !cachedPlan) {
     cachedPlan = planEnsemble(task.scenario);
     cachedKey = key;
   }
   const plan = cachedPlan;
-  return task.indices.map((i) => evaluateDraw(task.scenario, plan, i));
+  const out: DrawOutcome[] = [];
+  const shouldCancel = () => ctx.shouldCancel();
+  for (const i of task.indices) {
+    if (shouldCancel()) throw new CancelledError();
+    const d = evaluateDraw(task.scenario, plan, i, shouldCancel);
+    if (shouldCancel()) throw new CancelledError();
+    out.push(d);
+    ctx.progress(out.length / task.indices.length, `draw ${i + 1}`);
+  }
+  return out;
 }
 
 registerTask(ENSEMBLE_CHUNK, evaluateChunk);

@@ -5,7 +5,7 @@
  *
  * Reproducibility: draw i depends only on (scenario, seed, i). The design is built from the seed's child
  * stream 0; nothing else is random. So a given seed gives identical results whether the draws run in this
- * thread or on a worker pool of any size (see ensemble-pool.ts).
+ * thread or on a worker pool of any size (see jobs/parallel.ts).
  */
 import { type PointScenario, type Scenario } from '../../model/scenario.ts';
 import { discretise } from '../../problem/discretise.ts';

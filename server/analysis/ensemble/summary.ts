@@ -221,7 +221,7 @@ export function summariseEnsemble(
             : ` (every draw agrees; 95 % interval ${(100 * holds.interval95![0]).toFixed(1)}–${(100 * holds.interval95![1]).toFixed(1)} %).`
           : '.'),
     );
-    if (pinned) sentences.push(`It is verified to hold indefinitely (front pinned) in ${pct(pinned.p)} of draws.`);
+    if (pinned) sentences.push(`It holds for good (checked: the front stops and stays) in ${pct(pinned.p)} of draws.`);
     if (criticalWidth.computed && criticalWidth.holds90M !== null) {
       sentences.push(`A clearing of ${Math.round(criticalWidth.holds90M)} m holds in 90 % of draws${criticalWidth.holds95M !== null ? `, ${Math.round(criticalWidth.holds95M)} m in 95 %` : ''}.`);
     }

@@ -16,7 +16,6 @@ import { runEnsembleOn } from '../ensemble/chunks.ts';
 import type { MosaicResult } from '../result.ts';
 import type { TaskRunner } from '../../jobs/task-runner.ts';
 import { makeInlineRunner } from '../../jobs/inline-runner.ts';
-import { defaultThreads, makePoolRunner } from '../../jobs/pool-runner.ts';
 import { analyseBypass, singleRunShare } from '../bypass/analyse-bypass.ts';
 
 export interface EvaluateOptions {
@@ -140,18 +139,4 @@ export function evaluateProblem(scenario: Scenario, p: Problem, opts: EvaluateOp
     ? runEnsemble(scenario, { shouldCancel: opts.shouldCancel, onProgress: (f, stage) => opts.onProgress?.(share + (1 - share) * f, stage) })
     : undefined;
   return assemble(scenario, p, single, uncertainty, opts);
-}
-
-/**
- * {@link evaluate} with the ensemble on a worker pool of `threads` threads (the cores by default), closed
- * afterwards. Kept for the CLI and web job workers until they pass their own runner.
- */
-export async function evaluateScenarioParallel(scenario: Scenario, opts: EvaluateOptions & { threads?: number } = {}): Promise<ResultDocument> {
-  if (!scenario.uncertainty) return evaluate(scenario, opts);
-  const runner = makePoolRunner({ threads: Math.min(opts.threads ?? defaultThreads(), scenario.uncertainty.draws) });
-  try {
-    return await evaluate(scenario, { ...opts, runner });
-  } finally {
-    await runner.close();
-  }
 }

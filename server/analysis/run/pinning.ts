@@ -42,7 +42,7 @@ export const PINNING_METHODS: Record<PinningMode, string> = {
     "Newton on the unsplit finite-volume steady-state equations from the run's state, then a Sturm count on the symmetrised Jacobian (no unstable mode)",
   'dies-out':
     'die-out check: with hosts being consumed there is no steady front, so the pest must die out at the clearing; a comparison (upper-solution) bound on the density everywhere in the computational window shows it cannot regrow',
-  none: 'no pinning is possible: the forest beyond has no strong Allee effect, so any insects that cross found a growing population',
+  none: 'a clearing cannot stop this pest for good: small groups do not die out in the forest beyond (no strong Allee effect), so any insects that cross start a growing population',
 };
 
 /**

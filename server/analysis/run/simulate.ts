@@ -2,6 +2,7 @@ import { checkFiniteCoefficients } from '../../numerics/finite.ts';
 import { makeDiffusionOperator, type DiffusionOperator } from '../../numerics/diffusion.ts';
 import { makeCoupledStepper } from '../../numerics/coupled.ts';
 import { runTimeLoop, type FieldStepper, type Observer, type SolverResult } from '../../numerics/time-loop.ts';
+import { runAdaptiveLoop, windowFloor } from '../../numerics/steppers/adaptive-loop.ts';
 import type { PointScenario } from '../../model/scenario.ts';
 import { asProblem, type Problem } from '../../problem/problem.ts';
 import { discretise, type Resolution, type TransectProblem } from '../../problem/discretise.ts';
@@ -22,6 +23,8 @@ export interface RunRequest {
   problem?: TransectProblem;
   /** Extra observers (e.g. stop conditions of the barrier analysis). */
   observers?: Observer[];
+  /** Times [yr] at which observers must see the state exactly (adaptive steps: by dense output; fixed steps: multiples of the step). */
+  outputTimes?: readonly number[];
   /** Record profiles and the space–time map (default true; ensembles switch it off). */
   record?: boolean;
   shouldCancel?: () => boolean;
@@ -73,6 +76,68 @@ export function makeEngineStepper(problem: TransectProblem): { op: DiffusionOper
   return { op, stepper };
 }
 
+/** Absolute tolerance of the adaptive integrator as a share of its relative tolerance [relative density]. */
+const ATOL_PER_RTOL = 1e-3;
+/**
+ * Observers see an adaptive run every OUTPUT_STEPS × stepYears (dense output), besides every accepted step.
+ * stepYears is 0.05/(rate scale); sampling at 0.2/(rate scale) dates level crossings by linear interpolation
+ * between samples to ≈ (0.2/r)² · r/8 = 0.005/r yr for an exponentially rising density (rate ≤ r), below
+ * the 0.05 yr that counts as a change in arrival; pinning checks and snapshots fall on whole multiples.
+ */
+export const OUTPUT_STEPS = Number(process.env.OUTPUT_STEPS ?? 4);
+/** Host fraction below which a cell behind the front counts as "hosts gone" for the active window. */
+const HOSTS_GONE = 1e-6;
+
+/** Largest per-capita rate at low density over the problem's cells and any host fraction they can reach [1/yr]. */
+function lowDensityGrowth(problem: TransectProblem): number {
+  let r = 0;
+  for (let i = 0; i < problem.grid.nCells; i++) {
+    if (!problem.hostAtCells[i]) continue;
+    // Host fractions only fall: g(0, h) over [0, h0] is largest at one end for every growth form here.
+    r = Math.max(r, problem.perCapita(0, problem.stockingAtCells[i]), problem.perCapita(0, 0));
+  }
+  return r;
+}
+
+/**
+ * Integrates a discretised problem from (u, h) over tEnd years: adaptive NDF steps at the resolution's
+ * tolerance (observers see the state every `stepYears` by dense output and at every accepted step; cells
+ * that cannot matter are skipped, see numerics/steppers/adaptive-loop.ts), or fixed steps of `stepYears`
+ * with the coupled TR-BDF2 stepper when the user set the step. Every run of the engine goes through here.
+ */
+export function integrate(
+  problem: TransectProblem,
+  op: DiffusionOperator,
+  stepper: FieldStepper,
+  u: Float64Array,
+  h: Float64Array,
+  o: { tEnd: number; detectionLevel: number; observers: Observer[]; outputTimes?: readonly number[]; shouldCancel?: () => boolean; onProgress?: (fraction: number) => void },
+): SolverResult {
+  const { stepYears, tolerance } = problem.resolution;
+  if (tolerance === undefined) {
+    return runTimeLoop(stepper, u, h, { tEnd: o.tEnd, dt: stepYears, observers: o.observers, shouldCancel: o.shouldCancel, onProgress: o.onProgress });
+  }
+  const res = runAdaptiveLoop(
+    op,
+    { hostAtCells: problem.hostAtCells, mortalityAtCells: problem.mortalityAtCells, perCapita: problem.perCapita, hostKillRate: problem.hostKillRate },
+    u,
+    h,
+    {
+      tEnd: o.tEnd,
+      rtol: tolerance,
+      atol: ATOL_PER_RTOL * tolerance,
+      outputEvery: OUTPUT_STEPS * stepYears,
+      outputTimes: o.outputTimes ? [...new Set(o.outputTimes.filter((t) => t > 0 && t <= o.tEnd))].sort((a, b) => a - b) : undefined,
+      window: { floor: windowFloor(o.detectionLevel, lowDensityGrowth(problem), o.tEnd), hostFloor: HOSTS_GONE },
+      observers: o.observers,
+      shouldCancel: o.shouldCancel,
+      onProgress: o.onProgress,
+    },
+  );
+  if (res.status === 'failed') throw new RangeError(`time integration failed: ${res.message}`);
+  return res as SolverResult;
+}
+
 /** Runs one layout of a scenario from the current infestation. The engine call shared by every caller. */
 export function runLayout(req: RunRequest): RunOutput {
   const s = asProblem(req.scenario);
@@ -80,7 +145,7 @@ export function runLayout(req: RunRequest): RunOutput {
   const tEnd = req.tEnd ?? s.horizonYears;
   const { grid } = problem;
   checkFiniteCoefficients(problem); // refuses coefficients that would turn the run into NaN (numerics/finite.ts)
-  const { stepper } = makeEngineStepper(problem);
+  const { op, stepper } = makeEngineStepper(problem);
   const u = Float64Array.from(req.initialDensity ? req.initialDensity(problem) : problem.u0);
   if (u.length !== grid.nCells) throw new RangeError(`initialDensity gave ${u.length} values for ${grid.nCells} cells`);
   const h = Float64Array.from(problem.stockingAtCells);
@@ -92,10 +157,13 @@ export function runLayout(req: RunRequest): RunOutput {
   const profiles = record ? new SnapshotRecorder(pCells, linspace(0, tEnd, PROFILE_SNAPSHOTS)) : null;
   const map = record ? new SnapshotRecorder(mCells, linspace(0, tEnd, MAP_ROWS)) : null;
   const observers: Observer[] = [front, arrivals, ...(profiles ? [profiles] : []), ...(map ? [map] : []), ...(req.observers ?? [])];
-  const solver = runTimeLoop(stepper, u, h, {
+  // Snapshots are taken at their own times: with adaptive steps the dense output supplies those states.
+  const outputTimes = [...(req.outputTimes ?? []), ...(profiles ? linspace(0, tEnd, PROFILE_SNAPSHOTS) : []), ...(map ? linspace(0, tEnd, MAP_ROWS) : [])];
+  const solver = integrate(problem, op, stepper, u, h, {
     tEnd,
-    dt: problem.resolution.stepYears,
+    detectionLevel: s.detectionLevel,
     observers,
+    outputTimes,
     shouldCancel: req.shouldCancel,
     onProgress: req.onProgress,
   });
@@ -206,7 +274,14 @@ export function summariseRun(out: RunOutput, s: Pick<Problem, 'infestation' | 's
       autoStep: problem.resolution.autoStep,
       steps: solver.info.steps,
       rejectedSteps: solver.info.rejectedSteps,
-      stepControl: 'fixed',
+      stepControl: problem.resolution.tolerance === undefined ? 'fixed' : 'adaptive',
+      ...(solver.info.adaptive
+        ? {
+            tolerance: problem.resolution.tolerance,
+            jacobianEvaluations: solver.info.adaptive.jacobianEvaluations,
+            factorisations: solver.info.adaptive.factorisations,
+          }
+        : {}),
       fallbackSteps: solver.info.diffusion.fallbackSteps,
       reactionSubsteps: solver.info.reaction.substeps,
       wallMs: Math.round(solver.info.wallMs),

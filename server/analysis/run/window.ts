@@ -1,5 +1,6 @@
 /** Window runs: from a start state until the front crosses, pinning is verified, every site is reached, or the end. */
-import { Schedule, runTimeLoop, type Observer } from '../../numerics/time-loop.ts';
+import { Schedule, type Observer } from '../../numerics/time-loop.ts';
+import { integrate } from './simulate.ts';
 import { growthRateScale } from '../../problem/discretise.ts';
 import { ArrivalTracker } from './trackers.ts';
 
@@ -86,9 +87,9 @@ export function runWindow(solver: WindowSolver, o: WindowRunOptions): WindowOutc
   let steps = 0;
   let endYears = t0;
   if (span > 1e-12) {
-    const res = runTimeLoop(solver.stepper, u, h, {
+    const res = integrate(solver.problem, solver.op, solver.stepper, u, h, {
       tEnd: span,
-      dt,
+      detectionLevel: s.detectionLevel,
       observers: [withOffset(observer, t0)],
       shouldCancel: o.shouldCancel,
     });

@@ -26,8 +26,8 @@ export function reasonInWords(s: PointScenario, cover: ClearingSpec['cover'], ki
   const mort = `mortality in ${ground} is ${fmt(open.mortality)} /yr`;
   const allee = hasStrongAllee(p.growth, 1);
   const growthWords = allee
-    ? 'small groups of this pest die out (strong Allee effect): the few insects that get across are too sparse to breed unless enough of them arrive together'
-    : 'small groups of this pest do not die out (no Allee effect): even a few insects that get across found a growing population';
+    ? 'small groups of this pest die out (a strong Allee effect): the few insects that get across are too sparse to breed unless enough of them arrive together'
+    : 'the pest has no Allee effect: even a few insects that get across found a growing population';
   const jumpWords = Math.abs(jump - 1) < 1e-6 ? 'so the density is continuous across the edge' : `so the density just inside the cut is ${fmt(jump)} times that at the forest edge`;
   const core = `${moveWords}; ${edgeWords}, ${jumpWords}; ${mort}; ${growthWords}.`;
   switch (kind) {

@@ -65,7 +65,7 @@ export function widthDelayChart(option: WidthDelayInput, o: WidthDelayOptions = 
   if (cw?.bracketM) entries.push({ label: 'critical width lies in the shaded bracket', swatch: rect(0, 0, 24, 10, { fill: '#cfcfcf', stroke: '#555555', 'stroke-width': 0.6 }) });
   if (isNum(cw?.phasePlaneM)) entries.push({ label: 'phase-plane estimate', swatch: line(12, 0, 12, 10, { stroke: '#000000', 'stroke-dasharray': '3 2', 'stroke-width': 1.3 }) });
   entries.push({ label: 'this option’s width', swatch: line(12, 0, 12, 10, { stroke: '#000000', 'stroke-width': 2 }) });
-  if (rows.some((r) => r.pinned)) entries.push({ label: 'front verified pinned at this width (holds)', swatch: el('path', { d: 'M7,10L17,10L12,1Z', fill: '#000000' }) });
+  if (rows.some((r) => r.pinned)) entries.push({ label: 'front stops at this width (holds; checked)', swatch: el('path', { d: 'M7,10L17,10L12,1Z', fill: '#000000' }) });
   const lg = legend(entries, 8, bottom(box) + BOTTOM_AXIS_SPACE + 6, width - 16);
   const height = bottom(box) + BOTTOM_AXIS_SPACE + 6 + lg.height + 8;
 

@@ -82,6 +82,7 @@ function cover(flow: Flow, doc: LandscapeDocument): void {
   const meta = [
     doc.region ? `Area: ${doc.region}` : null,
     `Pest: ${doc.pest.name}${doc.pest.illustrative ? ' — ILLUSTRATIVE profile: invented numbers, not a real species' : ''}`,
+    doc.pest.fitted ? `Parameters: ${doc.pest.fitted}.` : null,
     `Map: ${doc.map.nx} × ${doc.map.ny} cells of ${doc.map.cellM} m in ${doc.map.crs.name} (${doc.map.crs.code}).`,
     `Run on ${runDateText(doc.runAt)} with ${doc.tool.name} ${doc.tool.version}; horizon ${doc.horizonYears} years.`,
   ].filter((x): x is string => x !== null);

@@ -20,6 +20,7 @@ export function landscapeTextSummary(doc: LandscapeDocument): string {
   out.push(doc.title);
   if (doc.region) out.push(`Area: ${doc.region}`);
   out.push(`Pest: ${doc.pest.name}${doc.pest.illustrative ? ' (ILLUSTRATIVE profile: invented numbers)' : ''}`);
+  if (doc.pest.fitted) out.push(`Parameters: ${doc.pest.fitted}.`);
   out.push(`Map: ${doc.map.nx} × ${doc.map.ny} cells of ${doc.map.cellM} m in ${doc.map.crs.name} (${doc.map.crs.code}); horizon ${doc.horizonYears} years.`);
   out.push('');
   out.push('Without any band:');

@@ -8,13 +8,14 @@ import type { ZodTypeProvider } from 'fastify-type-provider-zod';
 import { z } from 'zod';
 import { ScenarioSchema, type Scenario } from '../../model/scenario.ts';
 import { FIELDS, describeRange } from '../../model/fields.ts';
-import { LimitError } from '../../model/errors.ts';
+import { InputError, LimitError } from '../../model/errors.ts';
 import { checkLimits } from '../limits.ts';
 import { savedId } from '../catalogue.ts';
 import { conflict, notFound } from '../plugins/errors.ts';
 import { jobPayload, sendJobEvents, unknownJob } from './run-pages.ts';
 import { briefingName, download } from './result-pages.ts';
 import type { WebDeps } from '../deps.ts';
+import { briefingNow, type BriefingJobView } from '../briefings.ts';
 
 const ProblemSchema = z.object({ path: z.string(), value: z.unknown(), message: z.string() });
 const ErrorSchema = z
@@ -256,11 +257,87 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
         response: { 200: z.any().describe('PDF file'), 404: ErrorSchema },
       },
     },
+    async (req, reply) => download(reply, 'application/pdf', briefingName(req.params.id), await briefingNow(deps.briefings, req.params.id)),
+  );
+
+  const BriefingJob = z
+    .object({
+      id: z.string(),
+      status: z.enum(['queued', 'running', 'cancelling', 'done', 'cancelled', 'failed']),
+      finished: z.boolean(),
+      resultId: z.string(),
+      title: z.string(),
+      createdAt: z.string(),
+      message: z.string(),
+      resumed: z.boolean().describe('Drawn again after a server restart'),
+      pdfUrl: z.string().nullable().describe('Where the PDF is, once drawn'),
+    })
+    .describe('A PDF briefing being drawn (a durable job: kept across server restarts)');
+  const briefingOut = (v: BriefingJobView) => ({
+    id: v.id,
+    status: v.status,
+    finished: v.status === 'done' || v.status === 'failed',
+    resultId: v.resultId,
+    title: v.title,
+    createdAt: v.createdAt,
+    message: v.message,
+    resumed: v.resumed > 0,
+    pdfUrl: v.status === 'done' ? `/api/briefings/${v.id}/pdf` : null,
+  });
+
+  api.post(
+    '/api/results/:id/briefings',
+    {
+      config: { rateLimit: deps.computeRateLimit },
+      schema: {
+        tags: ['results'],
+        summary: 'Draw the PDF briefing of a stored result in the background',
+        description: 'Answers 202 with the job (written to the database first; drawn again after a restart); poll GET /api/briefings/{id} until `finished`, then fetch `pdfUrl`. A briefing already drawn or under way for the result is reused.',
+        params: IdParams,
+        response: { 202: BriefingJob, 422: ErrorSchema, ...errors },
+      },
+    },
     async (req, reply) => {
-      const r = store.getResult(req.params.id);
-      if (!r) throw notFound('This result');
-      const pdf = await deps.briefings.render(r.document, r.scenario);
-      return download(reply, 'application/pdf', briefingName(r.id), pdf);
+      store.checkSpace();
+      const job = deps.briefings.request(req.params.id);
+      if (!job) throw notFound('This result');
+      reply.code(202).header('location', `/api/briefings/${job.id}`);
+      return briefingOut(job);
+    },
+  );
+
+  api.get(
+    '/api/briefings/:id',
+    { schema: { tags: ['results'], summary: 'State of a PDF briefing job', params: IdParams, response: { 200: BriefingJob, ...errors } } },
+    async (req) => {
+      const job = deps.briefings.get(req.params.id);
+      if (!job) throw notFound('This briefing');
+      return briefingOut(job);
+    },
+  );
+
+  api.get(
+    '/api/briefings/:id/pdf',
+    {
+      schema: {
+        tags: ['results'],
+        summary: 'The PDF of a finished briefing job',
+        params: IdParams,
+        produces: ['application/pdf'],
+        response: { 200: z.any().describe('PDF file'), 409: ErrorSchema, 404: ErrorSchema },
+      },
+    },
+    async (req, reply) => {
+      const job = deps.briefings.get(req.params.id);
+      if (!job) throw notFound('This briefing');
+      const pdf = deps.briefings.pdf(job.id);
+      if (!pdf) {
+        throw Object.assign(
+          new InputError('BRIEFING_NOT_READY', [{ path: 'id', value: job.id, message: job.status === 'failed' ? `the briefing failed: ${job.message}` : `the briefing is ${job.status}; ask again when it is done` }]),
+          { statusCode: 409 },
+        );
+      }
+      return download(reply, 'application/pdf', briefingName(job.resultId), pdf);
     },
   );
 

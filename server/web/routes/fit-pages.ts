@@ -11,7 +11,7 @@ import { Piscina } from 'piscina';
 import { ScenarioSchema, parseScenarioText, type Scenario } from '../../model/scenario.ts';
 import { InputError, type Problem } from '../../model/errors.ts';
 import { SurveyRecordSchema, parseSurveyCsv, parseSurveyRecords, MAX_SURVEY_CSV_CHARS, MAX_SURVEY_RECORDS, type SurveyTable } from '../../model/survey.ts';
-import { workerExecArgv } from '../../analysis/ensemble/ensemble-pool.ts';
+import { workerExecArgv } from '../../jobs/worker-loader.ts';
 import type { FitTask, FitTaskResult } from '../../analysis/calibration/fit-worker.ts';
 import type { CalibrationResult } from '../../analysis/calibration/fit.ts';
 import { surveyFitChart } from '../../report/charts/survey-fit.ts';

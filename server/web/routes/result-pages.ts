@@ -12,6 +12,7 @@ import { VERDICT_PLAIN } from '../../report/decision.ts';
 import { integer } from '../../report/format.ts';
 import type { Store, StoredResultSummary } from '../store.ts';
 import type { WebDeps } from '../deps.ts';
+import { briefingNow } from '../briefings.ts';
 
 type IdParams = { Params: { id: string } };
 
@@ -106,7 +107,7 @@ export default async function resultPages(app: FastifyInstance, deps: WebDeps) {
 
   app.get<IdParams>('/results/:id/briefing.pdf', { config: { rateLimit: deps.computeRateLimit } }, async (req, reply) => {
     const stored = resultOr404(req.params.id);
-    const pdf = await deps.briefings.render(stored.document, stored.scenario);
+    const pdf = await briefingNow(deps.briefings, stored.id);
     return download(reply, 'application/pdf', briefingName(stored.id), pdf);
   });
 

@@ -19,6 +19,7 @@ import {
   type RowGroupDef,
 } from '../form-state.ts';
 import { stripFromForm, type StripView } from './strip.ts';
+import { DISTANCE_AS } from '../form-read.ts';
 
 export interface ChoiceView {
   value: string;
@@ -59,6 +60,8 @@ export interface FieldView {
   dist: { kind: string; open: boolean; kinds: ChoiceView[]; parts: { id: string; name: string; label: string; value: string; kinds: string }[] } | null;
   /** When a range is chosen instead of one value: what the single-value box stands for ('' otherwise). */
   rangeGiven: string;
+  /** Movement rates: the choice of typing a rate (km²/yr) or a typical distance moved per year (km/yr). */
+  distanceChoice: { id: string; name: string; choices: ChoiceView[] } | null;
 }
 
 export interface RowView {
@@ -211,6 +214,16 @@ function fieldView(def: FormFieldDef, name: string, state: FormState, board: Pro
     inactive: !applies(def.showWhen, state) || (def.habitats !== undefined && !def.habitats.includes(ctx.habitat ?? '')),
     dist,
     rangeGiven: dist && dist.kind !== 'value' ? RANGE_GIVEN : '',
+    distanceChoice: def.distanceInput
+      ? {
+          id: `${id}-as`,
+          name: `${name}~as`,
+          choices: [
+            { value: '', label: 'km²/yr (movement rate)', selected: state[`${name}~as`] !== DISTANCE_AS },
+            { value: DISTANCE_AS, label: 'km per year (typical distance moved)', selected: state[`${name}~as`] === DISTANCE_AS },
+          ],
+        }
+      : null,
   };
 }
 

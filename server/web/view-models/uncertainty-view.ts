@@ -84,7 +84,7 @@ export function uncertaintyView(doc: ResultDocument) {
   return {
     summary:
       `${integer(u.completed)} of ${integer(u.draws)} combinations of the uncertain values (draws spread evenly over the ranges: Latin hypercube, seed ${u.seed})` +
-      `${u.status === 'cancelled' ? ', stopped early' : ''}; ${num(u.wallMs / 1000, 2)} s on ${u.threads} thread${u.threads === 1 ? '' : 's'}.`,
+      `${u.status === 'cancelled' ? ', stopped early' : ''}; ${num(u.wallMs / 1000, 2)} s on ${u.ranOn ?? `${u.threads} thread${u.threads === 1 ? '' : 's'}`}.`,
     convergence: u.convergence.message,
     adequate: u.convergence.adequate,
     parameters,

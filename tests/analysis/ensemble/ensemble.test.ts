@@ -3,7 +3,7 @@ import { parseScenario, pointScenario } from '../../../server/model/scenario.ts'
 import { drawValues, effectiveStandardError, evaluatePoint, planEnsemble, probability, runEnsemble, summariseEnsemble, wilsonInterval, type DrawOutcome } from '../../../server/analysis/ensemble/ensemble.ts';
 import { expectAllClose } from '../../helpers/close.ts';
 import { probabilityEstimate } from '../../../server/report/format.ts';
-import { runEnsembleParallel } from '../../../server/analysis/ensemble/ensemble-pool.ts';
+import { runEnsembleParallel } from '../../../server/jobs/parallel.ts';
 import { evaluateScenario } from '../../../server/analysis/evaluate/evaluate.ts';
 import { FIELDS } from '../../../server/model/fields.ts';
 import { smallEnsembleScenario } from './ensemble-fixture.ts';

@@ -31,7 +31,7 @@ describe('barrier verdicts on synthetic cases (the four outcomes)', () => {
     const s = synthetic(cubic, 800, 40);
     const { result: r } = analyseOption(s, s.barrier!.options[0], { record: false, widthCurve: false });
     expect(r.verdict.kind).toBe('holds');
-    expect(r.verdict.sentence).toMatch(/holds indefinitely under this model/);
+    expect(r.verdict.sentence).toMatch(/under this model it holds indefinitely/);
     expect(r.pinned).toBe(true);
     expect(r.pinning.verified).toBe(true);
     expect(r.pinning.method).toMatch(/Newton/);
