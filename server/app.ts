@@ -32,6 +32,10 @@ import referencePages from './web/routes/reference-pages.ts';
 import apiRoutes from './web/routes/api.ts';
 import fitPages from './web/routes/fit-pages.ts';
 import type { WebDeps } from './web/deps.ts';
+import landscapePages from './web/landscape-pages.ts';
+import { loadLandscapeDemos } from './web/landscape-catalogue.ts';
+import { makeLandscapeJobs } from './web/landscape-jobs.ts';
+import { MAX_MAP_FILE_BYTES } from './model/landscape.ts';
 
 export interface AppOptions {
   /** Folder of demo scenario files (read once at start). */
@@ -69,6 +73,8 @@ export interface AppOptions {
   bodyLimit?: number;
   /** Cache compiled templates (default true; false reloads templates on every request). */
   cacheTemplates?: boolean;
+  /** Largest uploaded landscape scenario or map file [bytes]; default the map loader's limit (tests lower it). */
+  landscapeUploadBytes?: number;
 }
 
 export const DEFAULT_SCENARIOS_DIR = fileURLToPath(new URL('../scenarios/', import.meta.url));
@@ -108,12 +114,19 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
     onError: (err) => app.log.error({ err }, 'briefing failed'),
     log: (msg) => app.log.info(msg),
   });
+  const landscapeJobs = makeLandscapeJobs({
+    jobs: store.jobs,
+    wallSeconds: limits.wallSeconds,
+    maxQueued: limits.maxQueued,
+    onError: (err) => app.log.error({ err }, 'map evaluation failed'),
+    log: (msg) => app.log.info(msg),
+  });
   // Before the listener closes: no new work, progress streams ended (they would hold the close), compute stopped.
   app.addHook('preClose', async () => {
     await jobs.shutdown(options.shutdownGraceMs);
   });
   app.addHook('onClose', async () => {
-    await Promise.all([jobs.close(), briefings.close(), ownRunner ? runner.close() : Promise.resolve()]);
+    await Promise.all([jobs.close(), briefings.close(), landscapeJobs.close(), ownRunner ? runner.close() : Promise.resolve()]);
     store.close();
   });
 
@@ -144,5 +157,11 @@ export async function buildApp(options: AppOptions = {}): Promise<FastifyInstanc
   await app.register(referencePages, deps);
   await app.register(apiRoutes, deps);
   await app.register(fitPages, deps);
+  await app.register(landscapePages, {
+    ...deps,
+    landscapeDemos: loadLandscapeDemos(join(options.scenariosDir ?? DEFAULT_SCENARIOS_DIR, 'landscapes'), (msg) => app.log.warn(msg)),
+    landscapeJobs,
+    landscapeUploadBytes: options.landscapeUploadBytes ?? MAX_MAP_FILE_BYTES,
+  });
   return app;
 }

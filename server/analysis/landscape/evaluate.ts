@@ -178,7 +178,7 @@ export function evaluateLandscape(landscape: RasterLandscape, pest: Pest | Point
   const l = coarsenLandscape(landscape, factor);
   const level = settings.detectionLevel ?? 0.01;
   const mapEdges = settings.mapEdges ?? 'reflecting';
-  const common = { mapEdges, infestedDensity: settings.infestedDensity ?? 1, stepYears: settings.stepYears, horizonYears: settings.horizonYears };
+  const common = { mapEdges, infestedDensity: settings.infestedDensity ?? 1, stepYears: settings.stepYears, horizonYears: settings.horizonYears, detectionLevel: settings.detectionLevel };
   const nRuns = 1 + l.bands.length;
   const progress = (run: number, what: string) => (f: number) => settings.onProgress?.((run + f) / (nRuns + 0.5), what);
   const notes: string[] = [];

@@ -11,6 +11,7 @@ import type { Habitat, PointScenario } from '../../model/scenario.ts';
 import { LimitError } from '../../model/errors.ts';
 import { makeRasterOperator, type RasterOperator } from '../../numerics/raster/operator.ts';
 import { makeRasterStepper, type RasterStepper } from '../../numerics/raster/stepper.ts';
+import { windowFloor } from '../../numerics/steppers/adaptive-loop.ts';
 import { chooseResolution, growthRateScale } from '../../problem/discretise.ts';
 import type { Piece } from '../../problem/layout.ts';
 
@@ -140,6 +141,8 @@ export interface ProblemOptions {
   infestedDensity: number;
   stepYears?: number;
   horizonYears: number;
+  /** Detection level [relative density] (default 0.01): sets the active window's floor for pulled fronts. */
+  detectionLevel?: number;
   /** Index into landscape.bands of the option to cut in (none for the baseline). */
   band?: number;
 }
@@ -201,10 +204,14 @@ export function landscapeProblem(l: RasterLandscape, pest: PointPest, o: Problem
     throw new LimitError([{ path: 'horizonYears', value: o.horizonYears, message: `needs ${Math.round(steps)} time steps; the limit is ${MAX_MAP_STEPS}` }]);
   }
   const g = pest.growth;
-  // Window floor: pulled (KPP-type) fronts are driven by their leading edge, and cutting it off at a level ε
-  // slows them by about π²/ln²ε relative (Brunet & Derrida 1997, Phys. Rev. E 56:2597) — 0.06 % at 1e-40;
-  // pushed (Allee) fronts do not depend on the far tail, so a higher floor keeps the window tight.
-  const pulled = lowDensityRate(g, 1) > 0;
+  // Window floor. Pulled (KPP-type) fronts are driven by their leading edge: a density left out below ε grows
+  // at most like ε·e^{ΛT} over the horizon T (Λ the low-density growth rate; the maximum-principle bound of
+  // numerics/steppers/adaptive-loop.ts `windowFloor`), so ε = 1e-6 · level · e^{−ΛT} moves no passage of the
+  // detection level by more than 1e-6 of the level. (A cut-off kept for ever slows a pulled front by about
+  // π²/ln²ε relative — Brunet & Derrida 1997, Phys. Rev. E 56:2597 — an asymptotic effect that the bound over
+  // the finite horizon already contains.) Pushed (Allee) fronts do not depend on the far tail: 1e-15.
+  const lowRate = lowDensityRate(g, 1);
+  const pulled = lowRate > 0;
   const movementKm = Math.sqrt(pest.diffusionHost / growthRateScale(g));
   return {
     landscape: l,
@@ -220,7 +227,7 @@ export function landscapeProblem(l: RasterLandscape, pest: PointPest, o: Problem
     perCapita: perCapitaRate(g),
     hostKillRate: pest.hostKillRate,
     stiffness: reactionStiffness(g, pest.hostKillRate, 1.1 * Math.max(1, o.infestedDensity)),
-    activeFloor: pulled ? 1e-40 : 1e-15,
+    activeFloor: pulled ? windowFloor(o.detectionLevel ?? 0.01, lowRate, o.horizonYears) : 1e-15,
     pad: Math.max(4, Math.ceil((2 * movementKm) / mesh.cellKm)),
   };
 }

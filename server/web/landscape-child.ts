@@ -1,0 +1,14 @@
+/**
+ * Child-process entry of a landscape evaluation (forked by landscape-jobs.ts): one task in, progress
+ * messages and one result out over IPC (advanced serialisation, so byte arrays pass as they are), then exit.
+ * A process rather than a worker thread: the GeoTIFF reader does not load inside a piscina thread here, and
+ * cancel is a plain kill.
+ */
+import run, { type LandscapeTask } from './landscape-worker.ts';
+
+process.once('message', (task: Omit<LandscapeTask, 'port'>) => {
+  void run({ ...task, report: (fraction, message) => process.send?.({ type: 'progress', fraction, message }) }).then(
+    (result) => process.send?.({ type: 'result', result }, () => process.exit(0)),
+    (err: Error) => process.send?.({ type: 'result', result: { ok: false, code: 'FAILED', message: `the evaluation stopped: ${err.message}`, problems: [] } }, () => process.exit(1)),
+  );
+});

@@ -1,0 +1,330 @@
+/**
+ * Landscape pages: the demo maps and map uploads, the band-options table (works without JavaScript; with
+ * it, a click on the map preview places a band's centre line), the durable run with progress and cancel,
+ * and the result page (the answer per option first, then the maps side by side, the downloads and the PDF
+ * briefing, then the cautions). Every page calls the same analysis functions as the CLI
+ * (evaluateLandscapeScenario in the worker, loadLandscape for the checks before a run is queued).
+ */
+import type { FastifyInstance, FastifyReply } from 'fastify';
+import type { MultipartFile } from '@fastify/multipart';
+import { parseLandscapeScenario, MAX_MODEL_CELLS, type LandscapeScenario } from '../model/landscape.ts';
+import { InputError, type Problem } from '../model/errors.ts';
+import { loadLandscape, type LoadedLandscape } from '../domain/gis/load.ts';
+import { hostCoverMap, mapBaseOf } from '../report/maps/index.ts';
+import { problemItems } from './view-models/problems.ts';
+import { notFound } from './plugins/errors.ts';
+import type { WebDeps } from './deps.ts';
+import type { LandscapeDemo } from './landscape-catalogue.ts';
+import type { LandscapeJobs, LandscapeJobView, LandscapeOutput } from './landscape-jobs.ts';
+import { applyBandAction, bandsToRows, MAX_BAND_ROWS, rowsFromBody, rowsToBands, type BandRow } from './landscape-bands-form.ts';
+
+export interface LandscapeDeps extends WebDeps {
+  landscapeDemos: LandscapeDemo[];
+  landscapeJobs: LandscapeJobs;
+  /** Largest uploaded map or scenario file [bytes]. */
+  landscapeUploadBytes: number;
+}
+
+/** What a band table starts from: a demo, or the scenario and map files of an earlier run (an upload). */
+interface Base {
+  key: string;
+  title: string;
+  description: string;
+  raw: Record<string, unknown>;
+  files: Record<string, Uint8Array>;
+  cellNote: string;
+  source: string;
+  action: string;
+}
+
+/** Width of the map preview [px]; the click script reads the frame from the data attributes. */
+const PREVIEW_WIDTH = 640;
+/** The map renderer's left and top margins [px] (server/report/maps/landscape-maps.ts, MARGIN). */
+const FRAME_LEFT = 64;
+const FRAME_TOP = 28;
+const FRAME_RIGHT = 14;
+
+const b64 = (b: Uint8Array) => Buffer.from(b).toString('base64');
+
+const clone = <T>(v: T): T => JSON.parse(JSON.stringify(v)) as T;
+
+const years = (v: number | null) => (v === null ? 'not within the horizon' : `year ${v.toFixed(1)}`);
+
+const WAY_PAST: Record<string, string> = {
+  through: 'through the band',
+  around: 'around its ends',
+  none: 'not past within the horizon',
+};
+
+function limitsView(uploadBytes: number) {
+  return [
+    `Each file at most ${(uploadBytes / 1048576).toFixed(uploadBytes < 1048576 ? 2 : 0)} MB.`,
+    `At most ${MAX_MODEL_CELLS.toLocaleString('en-GB')} model cells (map extent ÷ model cell; set map.cellM in the scenario to coarsen).`,
+    'A projected CRS in metres (read from the GeoTIFF); a geographic (degree) raster is refused — reproject it first. GeoJSON stands are in longitude/latitude as the standard says; the tool chooses the metric projection and names it.',
+    'Every band must cross host forest, and every infested place must lie on the map.',
+    `At most ${MAX_BAND_ROWS} band options.`,
+  ];
+}
+
+export default async function landscapePages(app: FastifyInstance, deps: LandscapeDeps) {
+  const { landscapeDemos: demos, landscapeJobs: jobs } = deps;
+  const previewCache = new Map<string, { svg: string; frame: Record<string, number> }>();
+
+  const demoBase = (ref: string): Base => {
+    const d = demos.find((x) => x.ref === ref);
+    if (!d) throw notFound(`Map scenario "${ref}"`);
+    return { key: d.ref, title: d.title, description: d.description, raw: d.raw, files: d.files, cellNote: d.cellNote, source: d.ref, action: `/landscapes/${d.ref}/bands` };
+  };
+  const runBase = (id: string): Base => {
+    const row = deps.store.jobs.get(id);
+    if (!row || row.kind !== 'landscape') throw notFound(`Map evaluation "${id}"`);
+    const inp = row.scenario as unknown as { scenario: Record<string, unknown>; files: Record<string, string>; source: string; cellNote: string };
+    const files = Object.fromEntries(Object.entries(inp.files).map(([k, v]) => [k, new Uint8Array(Buffer.from(v, 'base64'))]));
+    return { key: id, title: String(inp.scenario.title ?? row.title), description: String(inp.scenario.description ?? ''), raw: inp.scenario, files, cellNote: inp.cellNote, source: inp.source, action: `/landscape-runs/${id}/bands` };
+  };
+
+  const preview = async (base: Base) => {
+    const hit = previewCache.get(base.key);
+    if (hit) return hit;
+    let loaded: LoadedLandscape;
+    try {
+      loaded = await loadLandscape(parseLandscapeScenario(base.raw), base.files);
+    } catch {
+      return null; // the band checks say what is wrong
+    }
+    const mb = mapBaseOf(loaded);
+    const chart = hostCoverMap(mb, { width: PREVIEW_WIDTH });
+    const scale = (PREVIEW_WIDTH - FRAME_LEFT - FRAME_RIGHT) / (mb.grid.nx * mb.grid.cellM);
+    const out = { svg: chart.svg, frame: { left: FRAME_LEFT, top: FRAME_TOP, scale, x0: mb.grid.originXM, y0: mb.grid.originYM } };
+    previewCache.set(base.key, out);
+    while (previewCache.size > 20) previewCache.delete(previewCache.keys().next().value as string);
+    return out;
+  };
+
+  const bandsPage = async (reply: FastifyReply, base: Base, rows: BandRow[], problems: Problem[] = [], status = 200) => {
+    const pv = await preview(base);
+    const s = base.raw as { bands?: { costPerStem?: number; costPerHa?: number; costUnit?: string }; horizonYears?: number; coordinates?: string };
+    const lonlat = s.coordinates === 'lonlat';
+    const bad = new Set(problems.map((p) => p.path));
+    return reply.page(
+      'landscape',
+      {
+        title: `Map: ${base.title}`,
+        base: { title: base.title, description: base.description, action: base.action, cellNote: base.cellNote },
+        rows: rows.map((r, k) => ({
+          ...r,
+          k,
+          n: k + 1,
+          letter: String.fromCharCode(65 + k),
+          clearing: r.cover === 'clearing',
+          bad: { name: bad.has(`bands.options[${k}].name`), widthM: bad.has(`bands.options[${k}].widthM`), line: bad.has(`bands.options[${k}].line`) },
+        })),
+        bandCount: rows.length,
+        canAdd: rows.length < MAX_BAND_ROWS,
+        coordsWord: lonlat ? 'longitude latitude [°]' : 'x y in the map CRS [m]',
+        lonlat,
+        preview: pv,
+        problems: problemItems(problems),
+        horizonYears: s.horizonYears,
+        scripts: ['/assets/landscape.js', ...(problems.length ? ['/assets/focus-problems.js'] : [])],
+      },
+      status,
+    );
+  };
+
+  /** Band rows posted: add/remove a row (page again), or run (checks, then the job). */
+  const postBands = async (reply: FastifyReply, base: Base, body: Record<string, unknown>) => {
+    const action = typeof body.action === 'string' ? body.action : 'run';
+    const rows = rowsFromBody(body);
+    if (action !== 'run') return bandsPage(reply, base, applyBandAction(rows, action));
+    const { options, problems } = rowsToBands(rows);
+    if (problems.length) return bandsPage(reply, base, rows, problems, 400);
+    const raw = clone(base.raw);
+    raw.bands = { ...((raw.bands as object) ?? {}), options };
+    return start(reply, raw, base.files, base.source, base.cellNote, (p, st) => bandsPage(reply, base, rows, p, st));
+  };
+
+  /** Validates the scenario and its map (every named map error, by field) before the job is queued. */
+  const start = async (
+    reply: FastifyReply,
+    raw: Record<string, unknown>,
+    files: Record<string, Uint8Array>,
+    source: string,
+    cellNote: string,
+    fail: (p: Problem[], status: number) => Promise<FastifyReply>,
+  ) => {
+    let scenario: LandscapeScenario;
+    try {
+      scenario = parseLandscapeScenario(raw);
+      await loadLandscape(scenario, files);
+    } catch (e) {
+      if (e instanceof InputError) return fail(e.problems, (e as { code?: string }).code === 'MAP_FILE_TOO_LARGE' ? 413 : 400);
+      throw e;
+    }
+    const job = jobs.submit(scenario.title, { scenario: raw, files: Object.fromEntries(Object.entries(files).map(([k, v]) => [k, b64(v)])), source, cellNote });
+    return reply.redirect(`/landscape-runs/${job.id}`, 303);
+  };
+
+  const listPage = (reply: FastifyReply, problems: Problem[] = [], status = 200) =>
+    reply.page(
+      'landscapes',
+      {
+        title: 'Landscape maps',
+        demos: demos.map((d) => ({ ref: d.ref, title: d.title, description: d.description, link: `/landscapes/${d.ref}`, cellNote: d.cellNote })),
+        limits: limitsView(deps.landscapeUploadBytes),
+        problems: problemItems(problems),
+        scripts: problems.length ? ['/assets/focus-problems.js'] : [],
+      },
+      status,
+    );
+
+  app.get('/landscapes', async (_req, reply) => listPage(reply));
+
+  app.get<{ Params: { ref: string } }>('/landscapes/:ref', async (req, reply) => {
+    const base = demoBase(req.params.ref);
+    return bandsPage(reply, base, bandsToRows(((base.raw.bands as { options?: Record<string, unknown>[] })?.options ?? [])));
+  });
+  app.post<{ Params: { ref: string }; Body: Record<string, unknown> }>('/landscapes/:ref/bands', { config: deps.formPost }, async (req, reply) =>
+    postBands(reply, demoBase(req.params.ref), req.body ?? {}),
+  );
+  app.get<{ Params: { id: string } }>('/landscape-runs/:id/bands', async (req, reply) => {
+    const base = runBase(req.params.id);
+    return bandsPage(reply, base, bandsToRows(((base.raw.bands as { options?: Record<string, unknown>[] })?.options ?? [])));
+  });
+  app.post<{ Params: { id: string }; Body: Record<string, unknown> }>('/landscape-runs/:id/bands', { config: deps.formPost }, async (req, reply) =>
+    postBands(reply, runBase(req.params.id), req.body ?? {}),
+  );
+
+  app.post('/landscapes/upload', { config: { rateLimit: deps.computeRateLimit } }, async (req, reply) => {
+    const max = deps.landscapeUploadBytes;
+    if (!req.isMultipart()) return listPage(reply, [{ path: 'scenario', value: undefined, message: 'choose the scenario file (.json) and the map file to upload' }], 400);
+    const got: Record<string, { filename: string; bytes: Buffer }> = {};
+    try {
+      for await (const part of req.parts({ limits: { fileSize: max, files: 3, fields: 4, parts: 8 } })) {
+        if (part.type !== 'file') continue;
+        const f = part as MultipartFile;
+        if (!['scenario', 'host', 'classes'].includes(f.fieldname)) {
+          await f.toBuffer().catch(() => undefined);
+          continue;
+        }
+        let bytes: Buffer;
+        try {
+          bytes = await f.toBuffer();
+        } catch (e) {
+          if ((e as { code?: string }).code === 'FST_REQ_FILE_TOO_LARGE') {
+            return listPage(reply, [{ path: f.fieldname, value: f.filename, message: `is larger than ${(max / 1048576).toFixed(2)} MB, the most this server accepts for one file` }], 413);
+          }
+          throw e;
+        }
+        if (f.file.truncated) return listPage(reply, [{ path: f.fieldname, value: f.filename, message: `is larger than ${(max / 1048576).toFixed(2)} MB, the most this server accepts for one file` }], 413);
+        if (bytes.length) got[f.fieldname] = { filename: f.filename, bytes };
+      }
+    } catch (e) {
+      req.log.info({ err: e }, 'damaged map upload');
+      return listPage(reply, [{ path: 'scenario', value: undefined, message: `the upload arrived incomplete or damaged (${(e as Error).message}); choose the files and upload them again` }], 400);
+    }
+    if (!got.scenario) return listPage(reply, [{ path: 'scenario', value: undefined, message: 'choose the scenario file (.json)' }], 400);
+    let raw: Record<string, unknown>;
+    try {
+      raw = JSON.parse(got.scenario.bytes.toString('utf8')) as Record<string, unknown>;
+    } catch (e) {
+      return listPage(reply, [{ path: 'scenario', value: got.scenario.filename, message: `is not readable JSON (${(e as Error).message})` }], 400);
+    }
+    let scenario: LandscapeScenario;
+    try {
+      scenario = parseLandscapeScenario(raw);
+    } catch (e) {
+      if (e instanceof InputError) return listPage(reply, e.problems, 400);
+      throw e;
+    }
+    if (!got.host) return listPage(reply, [{ path: 'host', value: undefined, message: `choose the map file the scenario names as map.file ("${scenario.map.file}")` }], 400);
+    const files: Record<string, Uint8Array> = { [scenario.map.file]: new Uint8Array(got.host.bytes) };
+    if (scenario.map.format === 'geotiff' && scenario.map.classes) {
+      if (!got.classes) return listPage(reply, [{ path: 'classes', value: undefined, message: `the scenario names a class raster ("${scenario.map.classes.file}"): choose it too` }], 400);
+      files[scenario.map.classes.file] = new Uint8Array(got.classes.bytes);
+    }
+    return start(reply, raw, files, 'upload', scenario.map.cellM ? `Model cell ${scenario.map.cellM} m, from the scenario.` : 'Model cell from the map file.', (p, st) => listPage(reply, p, st));
+  });
+
+  const jobOr404 = (id: string): LandscapeJobView => {
+    const j = jobs.get(id);
+    if (!j) throw notFound(`Map evaluation "${id}"`);
+    return j;
+  };
+
+  app.get<{ Params: { id: string } }>('/landscape-runs/:id', async (req, reply) => {
+    const job = jobOr404(req.params.id);
+    const out = job.status === 'done' ? jobs.output(job.id) : undefined;
+    return reply.page('landscape-run', {
+      title: out ? `Map result: ${job.title}` : `Map evaluation: ${job.title}`,
+      job: { ...job, percent: Math.round(100 * job.fraction), live: !['done', 'failed', 'cancelled'].includes(job.status), failed: job.status === 'failed' || job.status === 'cancelled' },
+      problems: problemItems(job.problems),
+      out: out ? resultView(job.id, out) : null,
+      // Without JavaScript the progress page reloads itself every 2 s while the job runs.
+      refresh: !out && !['failed', 'cancelled'].includes(job.status) ? 2 : 0,
+      scripts: ['/assets/landscape.js'],
+    });
+  });
+  app.post<{ Params: { id: string } }>('/landscape-runs/:id/cancel', { config: deps.formPost }, async (req, reply) => {
+    jobOr404(req.params.id);
+    jobs.cancel(req.params.id);
+    return reply.redirect(`/landscape-runs/${req.params.id}`, 303);
+  });
+  app.get<{ Params: { id: string } }>('/api/landscape-runs/:id', async (req) => jobOr404(req.params.id));
+  app.get<{ Params: { id: string; name: string } }>('/landscape-runs/:id/files/:name', async (req, reply) => {
+    const d = jobs.download(req.params.id, req.params.name);
+    if (!d) throw notFound(`Download "${req.params.name}"`);
+    return reply
+      .type(d.type)
+      .header('content-disposition', `${d.type === 'application/pdf' ? 'inline' : 'attachment'}; filename="${d.name.replace(/[^A-Za-z0-9._-]/g, '_')}"`)
+      .send(d.bytes);
+  });
+}
+
+/** The result page's view: the answer per option first, then the maps, the downloads and the cautions. */
+export function resultView(id: string, out: LandscapeOutput) {
+  const d = out.doc;
+  const unit = (c: { unit: string | null }) => (c.unit ? ` ${c.unit}` : '');
+  const baseMap = out.maps[0];
+  return {
+    title: d.title,
+    description: d.description,
+    horizonYears: d.horizonYears,
+    cellM: d.map.cellM,
+    crs: d.map.crs.name,
+    pest: d.pest,
+    baseline: d.baseline.arrivals.map((a) => ({ site: a.site, fringe: years(a.detectedYears), breeding: years(a.breedingYears) })),
+    options: d.options.map((o) => ({
+      key: o.key,
+      name: o.name,
+      verdict: o.verdict.sentence,
+      why: o.verdict.why,
+      kind: o.verdict.kind,
+      wayPast: WAY_PAST[o.wayPast] ?? o.wayPast,
+      wayPastSentence: o.wayPastSentence,
+      arrivals: o.arrivals.map((a) => {
+        const fringe = d.baseline.arrivals.find((b) => b.site === a.site);
+        return {
+          site: a.site,
+          baseline: years(a.baselineYears),
+          baselineFringe: years(fringe?.detectedYears ?? null),
+          option: years(a.optionYears),
+          delay: a.delayYears === null ? (a.optionYears === null && a.baselineYears !== null ? 'at least to the horizon' : '—') : `${a.delayYears >= 0 ? '+' : ''}${a.delayYears.toFixed(1)} yr`,
+          sentence: a.sentence,
+        };
+      }),
+      trees: o.treesRemoved.toLocaleString('en-GB'),
+      areaHa: o.bandAreaHa.toLocaleString('en-GB'),
+      cost: o.cost.total === null ? 'no cost rates given' : `${Math.round(o.cost.total).toLocaleString('en-GB')}${unit(o.cost)}`,
+      critical: o.crossSectionCriticalWidthM ? `${Math.round(o.crossSectionCriticalWidthM[0])}–${Math.round(o.crossSectionCriticalWidthM[1])} m` : null,
+      pinningVerified: o.pinningVerified,
+    })),
+    baseMap,
+    maps: out.maps.slice(1),
+    downloads: out.downloads.filter((x) => x.name !== 'briefing.pdf').map((x) => ({ label: x.label, href: `/landscape-runs/${id}/files/${x.name}`, name: x.name })),
+    briefing: `/landscape-runs/${id}/files/briefing.pdf`,
+    cautions: d.cautions,
+    notes: d.notes,
+    editBands: `/landscape-runs/${id}/bands`,
+  };
+}
