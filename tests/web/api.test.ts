@@ -69,7 +69,7 @@ describe('scenarios', () => {
     expect(body.problems).toEqual(
       expect.arrayContaining([
         { path: 'pest.growth.rate', value: -1, message: 'must be > 0 and ≤ 50 1/yr' },
-        { path: 'transect.segments[1].stocking', value: 1.5, message: 'must be ≥ 0 and ≤ 1' },
+        { path: 'transect.segments[1].stocking', value: 1.5, message: 'must be ≥ 0 and ≤ 1 of full stocking' },
         { path: 'pest.diffusionHost.max', value: 0.1, message: 'must be greater than min (0.5)' },
         { path: 'colour', value: 'green', message: 'is not a known field (check the spelling)' },
       ]),

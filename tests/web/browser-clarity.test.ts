@@ -205,6 +205,30 @@ describe.skipIf(!hasChromium)('results a decision meeting can read (real browser
     await page.close();
   });
 
+  it('on a phone (390 px) chart text stays at least 12 px: each chart keeps its legible width and scrolls inside its own box, the page does not', async () => {
+    for (const name of DEMO_NAMES) {
+      for (const url of [resultUrl(name), `${resultUrl(name)}/compare`]) {
+        const page = await open(url, { width: 390, height: 800 });
+        const charts = await page.locator('figure.chart svg').evaluateAll((svgs) =>
+          svgs.map((svg) => {
+            const vb = (svg as SVGSVGElement).viewBox.baseVal;
+            const scale = svg.getBoundingClientRect().width / vb.width;
+            const sizes = [...svg.querySelectorAll('text')].map((tx) => parseFloat(tx.getAttribute('font-size') ?? getComputedStyle(tx).fontSize));
+            const box = svg.closest('.chart-scroll') as HTMLElement | null;
+            return { key: svg.closest('figure')?.getAttribute('data-chart'), minPx: Math.min(...sizes) * scale, boxScrolls: box !== null && getComputedStyle(box).overflowX === 'auto' };
+          }),
+        );
+        expect(charts.length).toBeGreaterThan(0);
+        for (const c of charts) {
+          expect(c.minPx, `${url} ${c.key}`).toBeGreaterThanOrEqual(12 - 1e-6);
+          expect(c.boxScrolls, `${url} ${c.key}`).toBe(true);
+        }
+        expect(await page.evaluate(() => document.documentElement.scrollWidth), url).toBeLessThanOrEqual(390);
+        await page.close();
+      }
+    }
+  });
+
   it('the strip: options at the same km in separate lettered rows, km ticks, a 60 m corridor drawn visibly', async () => {
     const page = await open(`/scenarios/${savedIds.get('clearing-holds')}`);
     const bands = await page.locator('.strip .band-option').evaluateAll((els) => els.map((e) => ({ top: e.getBoundingClientRect().top, key: e.textContent })));

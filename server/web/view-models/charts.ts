@@ -15,12 +15,28 @@ export interface ChartSlot {
   /** Inline SVG markup from the chart module; null when the chart is not available. */
   svg: string | null;
   note: string;
+  /**
+   * Narrowest width [px] at which the chart's smallest text is still `MIN_TEXT_PX` on screen; below it (a
+   * phone) the chart keeps this width and scrolls sideways inside its own box, never widening the page.
+   */
+  minWidthPx: number;
+}
+
+/** Smallest chart text on screen [px] (WCAG-style legibility at 100 % zoom; this tool's choice, no source). */
+export const MIN_TEXT_PX = 12;
+
+/** The width [px] at which the smallest font-size in `svg` (in viewBox units) renders as `MIN_TEXT_PX`. */
+export function chartMinWidthPx(svg: string): number {
+  const vb = /viewBox="[\d.\-]+ [\d.\-]+ ([\d.]+) [\d.]+"/.exec(svg);
+  const sizes = [...svg.matchAll(/font-size="([\d.]+)"/g)].map((m) => Number(m[1])).filter((x) => x > 0);
+  if (!vb || !sizes.length) return 0;
+  return Math.ceil((Number(vb[1]) * MIN_TEXT_PX) / Math.min(...sizes));
 }
 
 const NOT_AVAILABLE = 'Chart not available for this result; the numbers are in the tables and in the downloads.';
 
-const slot = (key: string, chart: Chart): ChartSlot => ({ key, title: chart.title, hint: chart.hint, svg: chart.svg, note: '' });
-const missing = (key: string, title: string): ChartSlot => ({ key, title, hint: '', svg: null, note: NOT_AVAILABLE });
+const slot = (key: string, chart: Chart): ChartSlot => ({ key, title: chart.title, hint: chart.hint, svg: chart.svg, note: '', minWidthPx: chartMinWidthPx(chart.svg) });
+const missing = (key: string, title: string): ChartSlot => ({ key, title, hint: '', svg: null, note: NOT_AVAILABLE, minWidthPx: 0 });
 
 export type ChartGroups = Record<ChartGroup, ChartSlot[]>;
 
