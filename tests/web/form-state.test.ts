@@ -315,7 +315,7 @@ describe('form view', () => {
     expect(f.help).toMatch(/diffusion coefficient/i);
     expect(f.help).toMatch(/distance an insect moves in a year/);
     expect(f.source).toMatch(/Fisher 1937/);
-    expect(view.segments.columns.map((c) => c.unit)).toEqual(['', '', 'km', '', 'trees/ha']);
+    expect(view.segments.columns.map((c) => c.unit)).toEqual(['', '', 'km', 'of full stocking', 'trees/ha']);
   });
 
   it('draws the strip from the typed layout', () => {

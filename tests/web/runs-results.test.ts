@@ -118,7 +118,9 @@ describe('the result page', () => {
     for (const id of ['transect', 'front-position', 'host-profile', 'space-time-baseline', 'space-time-A']) {
       const at = html.indexOf(`data-chart="${id}"`);
       expect(at, id).toBeGreaterThan(-1);
-      expect(html.slice(at, at + 2000), id).toMatch(/<span class="hint">[^<]+<\/span><\/figcaption>\s*<svg xmlns/);
+      expect(html.slice(at, at + 2000), id).toMatch(
+        /<span class="hint">[^<]+<\/span><\/figcaption>\s*<div class="chart-scroll"[^>]*aria-label="[^"]+"[^>]*><div class="chart-inner" style="min-width: \d+px"><svg xmlns/,
+      );
     }
     expect(html).not.toContain('Chart not available');
   });
