@@ -9,6 +9,7 @@ import { parseLandscapeScenario, isLandscapeInput, MAX_MAP_FILE_BYTES } from './
 import { ScenarioError, InputError, formatProblems } from './model/errors.ts';
 import { MapFileTooLargeError, MapFileError } from './domain/gis/errors.ts';
 import { evaluateLandscapeScenario, landscapeJson, mapFileNames } from './analysis/landscape-scenario.ts';
+import { makePoolRunner, defaultThreads } from './jobs/pool-runner.ts';
 import { landscapeTextSummary } from './report/landscape/summary.ts';
 import { renderLandscapeBriefing } from './report/landscape/briefing.ts';
 import { mapBaseOf, mapsForLandscape } from './report/maps/index.ts';
@@ -61,7 +62,14 @@ export async function runLandscapeCli(text: string, io: LandscapeCliIo): Promise
     }
     const scenario = parseLandscapeScenario(raw);
     const files = readMapFiles(mapFileNames(scenario), dirname(io.file));
-    const ev = await evaluateLandscapeScenario(scenario, files, { onProgress: io.progress });
+    // The baseline and the options run side by side on this machine's cores (the same numbers as one thread).
+    const runner = makePoolRunner({ threads: Math.min(defaultThreads(), 1 + scenario.bands.options.length) });
+    let ev: Awaited<ReturnType<typeof evaluateLandscapeScenario>>;
+    try {
+      ev = await evaluateLandscapeScenario(scenario, files, { onProgress: io.progress, runner });
+    } finally {
+      await runner.close();
+    }
     io.progress(1, 'done');
     if (io.pdf) {
       const maps = mapsForLandscape(mapBaseOf(ev.loaded), ev.result, { width: 560 });

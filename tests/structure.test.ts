@@ -53,6 +53,8 @@ const COVERED_ELSEWHERE: Record<string, Cover> = {
   'server/analysis/landscape-scenario.ts': { by: ['tests/cli.test.ts', 'tests/cli-files.test.ts'], why: 'dispatch between transect and landscape scenarios for the command lines; checked through their exit codes and outputs' },
   'server/analysis/landscape/cross-section.ts': { by: ['tests/verification/landscape-transect.test.ts', 'tests/analysis/landscape/evaluate.test.ts'], why: LANDSCAPE },
   'server/analysis/landscape/holds.ts': { by: ['tests/analysis/landscape/evaluate.test.ts', 'tests/verification/landscape-rotation.test.ts'], why: LANDSCAPE },
+  'server/analysis/landscape/option.ts': { by: ['tests/analysis/landscape/evaluate.test.ts', 'tests/analysis/landscape/evaluate-on.test.ts'], why: LANDSCAPE },
+  'server/analysis/landscape/run-tasks.ts': { by: ['tests/analysis/landscape/evaluate-on.test.ts'], why: 'the run and hold tasks, checked bit for bit against the one-thread evaluation' },
   'server/analysis/landscape/paths.ts': { by: ['tests/analysis/landscape/evaluate.test.ts', 'tests/verification/landscape-rotation.test.ts'], why: LANDSCAPE },
   'server/analysis/landscape/problem.ts': { by: ['tests/verification/landscape-critical-patch.test.ts', 'tests/verification/landscape-radial.test.ts'], why: LANDSCAPE },
   'server/analysis/landscape/result.ts': { by: ['tests/analysis/landscape/evaluate.test.ts'], why: LANDSCAPE },

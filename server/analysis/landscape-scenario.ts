@@ -10,7 +10,8 @@ import { pointLandscapeScenario } from '../model/landscape.ts';
 import { fingerprint } from '../model/canonical.ts';
 import { TOOL } from '../version.ts';
 import { loadLandscape, type LoadedLandscape, type MapFiles } from '../domain/gis/load.ts';
-import { evaluateLandscape } from './landscape/evaluate.ts';
+import { evaluateLandscape, evaluateLandscapeOn } from './landscape/evaluate.ts';
+import type { TaskRunner } from '../jobs/task-runner.ts';
 import { fieldToJson, type LandscapeResult, type WayPast } from './landscape/result.ts';
 import { CAUTIONS } from './evaluate/cautions.ts';
 
@@ -91,6 +92,13 @@ export interface LandscapeRunOptions {
   runAt?: string;
   /** Skip the band's 1-D cross-section analysis (quicker; tests). */
   crossSection?: boolean;
+  /**
+   * Where the runs go (the baseline and every option at once): a local pool or queue workers. Without it
+   * every run takes this thread in turn. The numbers are the same either way.
+   */
+  runner?: TaskRunner;
+  /** Stops a run handed to the runner (with `runner`; `shouldCancel` covers the one-thread case). */
+  signal?: AbortSignal;
 }
 
 const sha256 = (b: Uint8Array) => createHash('sha256').update(b).digest('hex');
@@ -116,18 +124,21 @@ const round2 = (v: number | null) => (v === null || !Number.isFinite(v) ? null :
 export async function evaluateLandscapeScenario(scenario: LandscapeScenario, files: MapFiles, opts: LandscapeRunOptions = {}): Promise<LandscapeEvaluation> {
   const s = pointLandscapeScenario(scenario);
   const loaded = await loadLandscape(scenario, files);
-  const result = evaluateLandscape(loaded, scenario.pest, {
+  const settings = {
     horizonYears: s.horizonYears,
     detectionLevel: s.detectionLevel,
     stepYears: s.numerics.stepYears,
-    mapEdges: 'reflecting',
+    mapEdges: 'reflecting' as const,
     infestedDensity: s.infestation.density,
     costPerStem: s.bands.costPerStem,
     costUnit: s.bands.costUnit,
     crossSection: opts.crossSection,
     shouldCancel: opts.shouldCancel,
     onProgress: opts.onProgress,
-  });
+  };
+  const result = opts.runner
+    ? await evaluateLandscapeOn(opts.runner, loaded, scenario.pest, { ...settings, signal: opts.signal })
+    : evaluateLandscape(loaded, scenario.pest, settings);
   const { fingerprint: fp, mapFiles } = landscapeFingerprint(scenario, files);
   const cautions = [...result.cautions];
   for (const c of CAUTIONS) if (!cautions.includes(c)) cautions.push(c);

@@ -6,3 +6,5 @@
 import '../analysis/ensemble/chunks.ts';
 import './evaluation-tasks.ts';
 import './probe-task.ts';
+import '../analysis/landscape/run-tasks.ts';
+import '../analysis/landscape/ensemble.ts';

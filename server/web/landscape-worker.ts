@@ -5,6 +5,7 @@
  */
 import { parseLandscapeScenario } from '../model/landscape.ts';
 import { InputError } from '../model/errors.ts';
+import type { TaskRunner } from '../jobs/task-runner.ts';
 import { evaluateLandscapeScenario, landscapeJson, type LandscapeDocument } from '../analysis/landscape-scenario.ts';
 import { mapBaseOf, mapsForLandscape } from '../report/maps/index.ts';
 import { renderLandscapeBriefing } from '../report/landscape/briefing.ts';
@@ -15,6 +16,8 @@ export interface LandscapeTask {
   scenario: unknown;
   files: Record<string, Uint8Array>;
   report?: (fraction: number, message: string) => void;
+  /** Where the runs go (the child process's own worker threads); this thread when absent. */
+  runner?: TaskRunner;
 }
 
 export interface LandscapeDownload {
@@ -33,6 +36,7 @@ export default async function run(task: LandscapeTask): Promise<LandscapeTaskRes
     const scenario = parseLandscapeScenario(task.scenario);
     let last = 0;
     const ev = await evaluateLandscapeScenario(scenario, task.files, {
+      runner: task.runner,
       onProgress: (fraction, message) => {
         const now = Date.now();
         if (now - last > 300) {

@@ -6,6 +6,7 @@
  * local pool or on queue workers alike; draw i depends only on the payload and i, never on the worker.
  */
 import { RASTER_CLASSES, type RasterLandscape } from '../../domain/raster.ts';
+import { landscapeFromJson, landscapeToJson, type LandscapeJson } from './json.ts';
 import type { Pest } from '../../model/pest.ts';
 import { centralValue, listUncertain, quantile, resolveQuantities, type Distribution } from '../../model/quantity.ts';
 import { formatPath } from '../../model/errors.ts';
@@ -18,40 +19,6 @@ import { automaticStepYears, CLASS_HABITAT, coarsenLandscape, type PointPest } f
 import type { LandscapeEnsembleResult, LandscapeSettings, WayPast } from './result.ts';
 
 export const LANDSCAPE_DRAWS_TASK = 'landscape-draws';
-
-/** A RasterLandscape as plain JSON (typed arrays as number arrays), for task payloads. */
-export interface LandscapeJson extends Omit<RasterLandscape, 'classAtCells' | 'hostCoverAtCells' | 'stemsAtCells' | 'infestedAtCells' | 'sites' | 'bands'> {
-  classAtCells: number[];
-  hostCoverAtCells: number[];
-  stemsAtCells: number[];
-  infestedAtCells: number[];
-  sites: { name: string; cells: number[] }[];
-  bands: (Omit<RasterLandscape['bands'][number], 'cover'> & { cover: number[] })[];
-}
-
-export function landscapeToJson(l: RasterLandscape): LandscapeJson {
-  return {
-    ...l,
-    classAtCells: Array.from(l.classAtCells),
-    hostCoverAtCells: Array.from(l.hostCoverAtCells),
-    stemsAtCells: Array.from(l.stemsAtCells),
-    infestedAtCells: Array.from(l.infestedAtCells),
-    sites: l.sites.map((s) => ({ name: s.name, cells: Array.from(s.cells) })),
-    bands: l.bands.map((b) => ({ ...b, cover: Array.from(b.cover) })),
-  };
-}
-
-export function landscapeFromJson(j: LandscapeJson): RasterLandscape {
-  return {
-    ...j,
-    classAtCells: Uint8Array.from(j.classAtCells),
-    hostCoverAtCells: Float32Array.from(j.hostCoverAtCells),
-    stemsAtCells: Float32Array.from(j.stemsAtCells),
-    infestedAtCells: Float32Array.from(j.infestedAtCells),
-    sites: j.sites.map((s) => ({ name: s.name, cells: Int32Array.from(s.cells) })),
-    bands: j.bands.map((b) => ({ ...b, cover: Float32Array.from(b.cover) })),
-  };
-}
 
 export interface LandscapeEnsembleSettings {
   draws: number;

@@ -3,30 +3,21 @@
  * and delays, the way the pest gets past each band (through, around, or not within the horizon), trees
  * removed and cost, evidence for "holds", and the band's 1-D cross-section critical width beside it.
  */
+import { createHash } from 'node:crypto';
 import { RASTER_CLASSES, type RasterLandscape } from '../../domain/raster.ts';
 import type { Pest } from '../../model/pest.ts';
 import { resolveQuantities } from '../../model/quantity.ts';
 import { InputError } from '../../model/errors.ts';
+import type { TaskRunner } from '../../jobs/task-runner.ts';
 import { CAUTIONS } from '../evaluate/cautions.ts';
 import { coarsenLandscape, landscapeProblem, type LandscapeProblem, type PointPest } from './problem.ts';
-import { fringeMatters, runLandscapeProblem, type RawRun } from './run.ts';
-import { bandDepth, bottleneckArrival } from './paths.ts';
-import { crossSection, stockingAroundBand } from './cross-section.ts';
-import { verifyHold } from './holds.ts';
-import {
-  LANDSCAPE_RESULT_VERSION,
-  type LandscapeOptionResult,
-  type LandscapeResult,
-  type LandscapeRun,
-  type LandscapeSettings,
-  type LandscapeSiteArrival,
-  type LandscapeSiteVerdict,
-  type WayPast,
-} from './result.ts';
-import type { VerdictKind } from '../result.ts';
+import { runLandscapeProblem } from './run.ts';
+import { holdPrecheck, verifyHold } from './holds.ts';
+import { landscapeToJson, rawFromJson, type LandscapeJson, type RawRunJson } from './json.ts';
+import { LANDSCAPE_HOLD_TASK, LANDSCAPE_RUN_TASK, type LandscapeHoldPayload, type LandscapeRunPayload } from './run-tasks.ts';
+import { baselineFacts, finishOption, holdSettings, optionFacts, type BaselineFacts, type EvaluationPlan, type OptionFacts } from './option.ts';
+import { LANDSCAPE_RESULT_VERSION, type LandscapeOptionResult, type LandscapeResult, type LandscapeSettings } from './result.ts';
 
-/** Hectares per m². */
-const HA_PER_M2 = 1e-4;
 const HOST_CLASS = RASTER_CLASSES.indexOf('host');
 
 /** Limits and cautions of the map analysis (plus the shared cautions on felling and regulation). */
@@ -57,294 +48,124 @@ function checkSettings(l: RasterLandscape, s: LandscapeSettings): void {
   if (problems.length > 0) throw new InputError('SETTINGS_INVALID', problems);
 }
 
-/** Cells of the infestation (start cells of occupied paths). */
-function startCells(p: LandscapeProblem, level: number): Int32Array {
-  const out: number[] = [];
-  for (let k = 0; k < p.u0.length; k++) if (p.u0[k] > 0 && p.u0[k] >= Math.min(level, p.u0[k])) out.push(k);
-  return Int32Array.from(out);
-}
-
-function minOver(field: Float32Array | Float64Array, cells: Int32Array): number | null {
-  let m = Infinity;
-  for (const k of cells) if (field[k] >= 0 && field[k] < m) m = field[k];
-  return Number.isFinite(m) ? m : null;
-}
-
-/** Site arrivals of a run; in an option run a detected site without a breeding population is a fringe only. */
-function siteArrivals(p: LandscapeProblem, raw: RawRun, pest: PointPest, option: boolean): LandscapeSiteArrival[] {
-  const fringe = fringeMatters(pest);
-  return p.landscape.sites.map((site) => {
-    const detectedYears = minOver(raw.detected, site.cells);
-    const est = minOver(raw.established, site.cells);
-    const breedingYears = fringe ? est : detectedYears;
-    return { name: site.name, detectedYears, breedingYears, fringeOnly: option && fringe && detectedYears !== null && est === null };
-  });
-}
-
-function summariseRun(p: LandscapeProblem, raw: RawRun, pest: PointPest, option: boolean): LandscapeRun {
-  let maxYears = -Infinity;
-  for (const v of raw.detected) if (v > maxYears) maxYears = v;
-  let stems0 = 0;
-  let stems1 = 0;
-  const cellHa = p.landscape.cellM * p.landscape.cellM * HA_PER_M2;
-  for (let k = 0; k < p.hostAtCells.length; k++) {
-    if (!p.hostAtCells[k] || !(p.stockingAtCells[k] > 0)) continue;
-    const stems = p.landscape.stemsAtCells[k] * cellHa;
-    stems0 += stems;
-    stems1 += (stems * raw.h[k]) / p.stockingAtCells[k];
-  }
-  return {
-    arrival: { years: raw.detected, maxYears: Number.isFinite(maxYears) ? maxYears : null },
-    sites: siteArrivals(p, raw, pest, option),
-    series: raw.series,
-    host: { shareRemaining: stems0 > 0 ? stems1 / stems0 : 1, stemsKilled: stems0 - stems1 },
-    endYears: raw.endYears,
-    numerics: raw.numerics,
-  };
-}
-
-/** The arrival used for verdicts: the detection year, except a fringe that never breeds (not an arrival). */
-function verdictArrival(a: LandscapeSiteArrival): number | null {
-  return a.fringeOnly ? null : a.detectedYears;
-}
-
-function fmt(y: number): string {
-  return y.toFixed(1);
-}
-
-/** Distance from the infestation's centroid to a site's nearest cell [km]. */
-function distanceKm(p: LandscapeProblem, cells: Int32Array): number {
-  const { nx } = p.landscape;
-  let sx = 0;
-  let sy = 0;
-  let m = 0;
-  for (let k = 0; k < p.u0.length; k++) {
-    if (p.u0[k] > 0) {
-      sx += (k % nx) * p.u0[k];
-      sy += Math.floor(k / nx) * p.u0[k];
-      m += p.u0[k];
-    }
-  }
-  if (!(m > 0)) return NaN;
-  let best = Infinity;
-  for (const k of cells) best = Math.min(best, Math.hypot((k % nx) - sx / m, Math.floor(k / nx) - sy / m));
-  return best * p.mesh.cellKm;
-}
-
-/**
- * True when the straight line from the infested cell nearest to the site (to the site's nearest cell)
- * passes through a band cell (sampled every quarter cell).
- */
-export function lineCrossesBand(nx: number, starts: Int32Array, siteCells: Int32Array, band: Uint8Array): boolean {
-  let best = Infinity;
-  let from = -1;
-  let to = -1;
-  for (const s of starts) {
-    const sr = Math.floor(s / nx);
-    const sq = s - sr * nx;
-    for (const k of siteCells) {
-      const d = Math.hypot(Math.floor(k / nx) - sr, (k % nx) - sq);
-      if (d < best) (best = d), (from = s), (to = k);
-    }
-  }
-  if (from < 0) return false;
-  const r0 = Math.floor(from / nx) + 0.5;
-  const q0 = (from % nx) + 0.5;
-  const r1 = Math.floor(to / nx) + 0.5;
-  const q1 = (to % nx) + 0.5;
-  const n = Math.ceil(4 * best) + 1;
-  for (let i = 0; i <= n; i++) {
-    const r = Math.floor(r0 + ((r1 - r0) * i) / n);
-    const q = Math.floor(q0 + ((q1 - q0) * i) / n);
-    if (band[r * nx + q]) return true;
-  }
-  return false;
-}
-
-export interface EvaluateRuns {
-  baseline: { problem: LandscapeProblem; raw: RawRun };
-  options: { problem: LandscapeProblem; raw: RawRun }[];
-}
-
-/**
- * Evaluates the landscape for the pest (central values of any distributions) over the horizon.
- * @throws InputError for settings out of range (field, value and allowed range named)
- * @throws CancelledError when `shouldCancel` returned true
- */
-export function evaluateLandscape(landscape: RasterLandscape, pest: Pest | PointPest, settings: LandscapeSettings): LandscapeResult {
+/** The map on the model cell, the pest's central values and the one step every run takes. */
+export function planEvaluation(landscape: RasterLandscape, pest: Pest | PointPest, settings: LandscapeSettings): EvaluationPlan {
   checkSettings(landscape, settings);
   const point = resolveQuantities(pest) as PointPest;
   const factor = cellFactor(landscape, settings.cellM);
   const l = coarsenLandscape(landscape, factor);
   const level = settings.detectionLevel ?? 0.01;
-  const mapEdges = settings.mapEdges ?? 'reflecting';
-  const common = { mapEdges, infestedDensity: settings.infestedDensity ?? 1, stepYears: settings.stepYears, horizonYears: settings.horizonYears, detectionLevel: settings.detectionLevel };
-  const nRuns = 1 + l.bands.length;
-  const progress = (run: number, what: string) => (f: number) => settings.onProgress?.((run + f) / (nRuns + 0.5), what);
+  const base = { mapEdges: settings.mapEdges ?? 'reflecting', infestedDensity: settings.infestedDensity ?? 1, horizonYears: settings.horizonYears, detectionLevel: settings.detectionLevel } as const;
   const notes: string[] = [];
   if (factor > 1) notes.push(`The map (${landscape.cellM} m cells) was averaged onto ${l.cellM} m model cells.`);
-
-  const baseProblem = landscapeProblem(l, point, common);
-  // All runs share the baseline's step so that arrivals compare like with like.
-  const stepYears = settings.stepYears ?? Math.min(baseProblem.stepYears, ...l.bands.map((_, j) => landscapeProblem(l, point, { ...common, band: j }).stepYears));
-  const base = stepYears === baseProblem.stepYears ? baseProblem : landscapeProblem(l, point, { ...common, stepYears });
-  const runSettings = { horizonYears: settings.horizonYears, detectionLevel: level, shouldCancel: settings.shouldCancel };
-  const baseRaw = runLandscapeProblem(base, point, { ...runSettings, onProgress: progress(0, 'baseline') });
-  const baseline = summariseRun(base, baseRaw, point, false);
-  const starts = startCells(base, level);
-
-  const crossSections = new Map<string, LandscapeOptionResult['crossSection']>();
-  const options: LandscapeOptionResult[] = l.bands.map((band, j) => {
-    const p = landscapeProblem(l, point, { ...common, stepYears, band: j });
-    const raw = runLandscapeProblem(p, point, { ...runSettings, onProgress: progress(1 + j, band.label) });
-    const run = summariseRun(p, raw, point, true);
-    const bandCells = p.bandAtCells!;
-    const tol = (a: number) => Math.max(2 * stepYears, 0.02 * a);
-    // Behind the band: in the baseline, every occupied path avoiding the band's cells reached the site later.
-    const baseAround = bottleneckArrival(l.nx, baseRaw.detected, starts, bandCells);
-    const optAround = bottleneckArrival(l.nx, raw.detected, starts, bandCells);
-    // Trees removed: band share × host stems of each cell (exact cover, not the model's band cells).
-    const cellHa = landscape.cellM * landscape.cellM * HA_PER_M2;
-    let stemsRemoved = 0;
-    const fine = landscape.bands[j];
-    for (let k = 0; k < fine.cover.length; k++) if (landscape.classAtCells[k] === HOST_CLASS) stemsRemoved += fine.cover[k] * landscape.stemsAtCells[k] * cellHa;
-    const treeCost = settings.costPerStem !== undefined ? stemsRemoved * settings.costPerStem : null;
-
-    const sites: LandscapeSiteVerdict[] = l.sites.map((site, i) => {
-      const b = verdictArrival(baseline.sites[i]);
-      const o = verdictArrival(run.sites[i]);
-      // Behind the band: the straight line from the nearest infested cell crosses it, or (for a winding
-      // way) in the baseline every occupied path avoiding the band's cells reached the site later.
-      const behindBand =
-        lineCrossesBand(l.nx, starts, site.cells, bandCells) ||
-        (b !== null && !((minOver(baseAround, site.cells) ?? Infinity) <= b + tol(b)));
-      let wayPast: WayPast | null = null;
-      if (behindBand && o !== null) wayPast = (minOver(optAround, site.cells) ?? Infinity) <= o + tol(o) ? 'around' : 'through';
-      const delay = b !== null && o !== null ? o - b : null;
-      let kind: VerdictKind;
-      let sentence: string;
-      if (b === null && o === null) {
-        kind = 'not-reached';
-        sentence = `Not reached within ${settings.horizonYears} years, with or without the band.`;
-      } else if (b === null) {
-        kind = 'speeds-up';
-        sentence = `Reached in year ${fmt(o!)} with the band, but not within the horizon without it.`;
-      } else if (o === null) {
-        kind = 'not-crossed';
-        sentence = `Not reached within ${settings.horizonYears} years with the band (year ${fmt(b)} without it).`;
-        if (run.sites[i].fringeOnly) sentence += ` The site sees a thin fringe at the detection level from year ${fmt(run.sites[i].detectedYears!)}, but no breeding population forms.`;
-      } else if (Math.abs(delay!) < Math.max(stepYears, 1e-9)) {
-        kind = 'no-change';
-        sentence = `Arrives in year ${fmt(o)}, as without the band.`;
-      } else if (delay! > 0) {
-        kind = 'delays';
-        sentence = `Arrives ${fmt(delay!)} years later than without the band (year ${fmt(o)} instead of ${fmt(b)})${wayPast ? `, ${wayPast === 'around' ? 'around the band' : 'through the band'}` : ''}.`;
-      } else {
-        kind = 'speeds-up';
-        sentence = `Arrives ${fmt(-delay!)} years sooner than without the band (year ${fmt(o)} instead of ${fmt(b)}).`;
-      }
-      return {
-        name: site.name,
-        behindBand,
-        baselineArrivalYears: b,
-        optionArrivalYears: o,
-        delayYears: delay,
-        wayPast,
-        kind,
-        sentence,
-        costPerYearOfDelay: treeCost !== null && delay !== null && delay > 0 ? treeCost / delay : null,
-      };
-    });
-
-    // Band cells reached, and its core (the cells farthest from its rim).
-    const depth = bandDepth(l.nx, bandCells);
-    let maxDepth = 0;
-    for (const d of depth) if (d > maxDepth) maxDepth = d;
-    const coreDepth = Math.max(1, Math.ceil(maxDepth / 2));
-    const cells = { total: 0, reached: 0, core: 0, coreReached: 0 };
-    for (let k = 0; k < bandCells.length; k++) {
-      if (!bandCells[k]) continue;
-      cells.total++;
-      const reached = raw.detected[k] >= 0;
-      if (reached) cells.reached++;
-      if (depth[k] >= coreDepth) {
-        cells.core++;
-        if (reached) cells.coreReached++;
-      }
-    }
-
-    const behind = sites.filter((s) => s.behindBand);
-    const reachedBehind = behind.filter((s) => s.optionArrivalYears !== null).sort((a, b) => a.optionArrivalYears! - b.optionArrivalYears!);
-    const wayPast: WayPast = reachedBehind.length > 0 ? reachedBehind[0].wayPast ?? 'none' : 'none';
-    const pinning = verifyHold(p, raw, point, { horizonYears: settings.horizonYears, detectionLevel: level, sitesReached: reachedBehind.length > 0, shouldCancel: settings.shouldCancel });
-    let wayPastSentence: string;
-    if (behind.length === 0) wayPastSentence = 'No protected site lies behind the band: the pest reaches them without needing to pass it.';
-    else if (wayPast === 'none') {
-      wayPastSentence = pinning.verified
-        ? 'The pest does not get past the band: the front is held (verified steady state).'
-        : `The pest does not get past the band within ${settings.horizonYears} years (not shown to hold beyond that).`;
-    } else if (wayPast === 'around') wayPastSentence = `The pest gets around the band's ends: it reached ${reachedBehind[0].name} in year ${fmt(reachedBehind[0].optionArrivalYears!)} along occupied forest that avoids the band.`;
-    else wayPastSentence = `The pest gets through the band: it reached ${reachedBehind[0].name} in year ${fmt(reachedBehind[0].optionArrivalYears!)} only by way of band cells (${cells.coreReached} of the band's ${cells.core} core cells were reached).`;
-
-    let kind: VerdictKind;
-    if (pinning.verified) kind = 'holds';
-    else if (sites.some((s) => s.kind === 'speeds-up')) kind = 'speeds-up';
-    else if (behind.some((s) => s.kind === 'delays')) kind = 'delays';
-    else if (behind.some((s) => s.kind === 'not-crossed')) kind = 'not-crossed';
-    else if (sites.some((s) => s.kind === 'delays')) kind = 'delays';
-    else if (sites.every((s) => s.kind === 'not-reached')) kind = 'not-reached';
-    else kind = 'no-change';
-    const verdictSentence: Record<VerdictKind, string> = {
-      holds: 'Holds: the front stops at the band (verified steady state of the map equations).',
-      marginal: 'Marginal: cannot be called either way.',
-      'not-crossed': `Not crossed within ${settings.horizonYears} years: not shown to hold beyond the horizon.`,
-      delays: `Delays the pest${wayPast !== 'none' ? ` (it gets ${wayPast === 'around' ? 'around' : 'through'} the band)` : ''}.`,
-      'speeds-up': 'Speeds the pest up: it arrives sooner at a protected site than without the band.',
-      'no-change': 'Makes no difference to when the pest arrives.',
-      'not-reached': `No protected site is reached within ${settings.horizonYears} years, with or without the band.`,
-    };
-    // Bands of the same width, treatment and surrounding stocking share one cross-section analysis.
-    const cachedCrossSection = () => {
-      const key = `${band.widthM}|${band.treatment}|${stockingAroundBand(p).toFixed(3)}`;
-      if (!crossSections.has(key)) crossSections.set(key, crossSection(l, p, point, band, settings));
-      return crossSections.get(key)!;
-    };
-    const dBase = reachedBehind[0] ? distanceKm(p, l.sites[sites.indexOf(reachedBehind[0])].cells) : NaN;
-    const first = reachedBehind[0];
-    return {
-      id: band.id,
-      label: band.label,
-      treatment: band.treatment,
-      areaM2: band.areaM2,
-      modelAreaM2: cells.total * l.cellM * l.cellM,
-      run,
-      verdict: { kind, sentence: verdictSentence[kind], why: wayPastSentence },
-      wayPast,
-      wayPastSentence,
-      bandCells: cells,
-      pinning,
-      sites,
-      trees: { stemsRemoved, cost: treeCost, costUnit: settings.costUnit ?? null },
-      speeds: {
-        baselineKmPerYear: first && first.baselineArrivalYears ? dBase / first.baselineArrivalYears : null,
-        optionKmPerYear: first && first.optionArrivalYears ? dBase / first.optionArrivalYears : null,
-      },
-      crossSection: settings.crossSection === false ? null : cachedCrossSection(),
-    };
-  });
   if (settings.crossSection === false) notes.push('The bands’ 1-D cross-section critical widths were not computed (switched off).');
+  // All runs share the smallest automatic step so that arrivals compare like with like.
+  const stepYears = settings.stepYears ?? Math.min(...[undefined, ...l.bands.map((_, j) => j)].map((band) => landscapeProblem(l, point, { ...base, band }).stepYears));
+  return { landscape, l, point, settings, level, common: { ...base, stepYears }, notes };
+}
+
+function problemOf(plan: EvaluationPlan, band: number | undefined): LandscapeProblem {
+  return landscapeProblem(plan.l, plan.point, { ...plan.common, band });
+}
+
+/** Runs in an evaluation: the baseline (band undefined), then each option. */
+function runBands(plan: EvaluationPlan): (number | undefined)[] {
+  return [undefined, ...plan.l.bands.map((_, j) => j)];
+}
+
+function runLabel(plan: EvaluationPlan, band: number | undefined): string {
+  return band === undefined ? 'baseline' : plan.l.bands[band].label;
+}
+
+function assemble(plan: EvaluationPlan, base: BaselineFacts, facts: OptionFacts[], pinnings: LandscapeOptionResult['pinning'][]): LandscapeResult {
+  const { l, settings } = plan;
+  const crossSections = new Map<string, LandscapeOptionResult['crossSection']>();
+  const options = facts.map((f, j) => finishOption(plan, f, pinnings[j], crossSections));
   settings.onProgress?.(1, 'done');
   return {
     resultVersion: LANDSCAPE_RESULT_VERSION,
     kind: 'landscape',
     grid: { nx: l.nx, ny: l.ny, cellM: l.cellM, originXM: l.originXM, originYM: l.originYM, crs: l.crs },
     horizonYears: settings.horizonYears,
-    detectionLevel: level,
-    edges: { mapEdges, outside: l.outside },
-    baseline,
+    detectionLevel: plan.level,
+    edges: { mapEdges: plan.common.mapEdges, outside: l.outside },
+    baseline: base.summary,
     options,
     ensemble: null,
     cautions: [...LANDSCAPE_LIMITS, ...CAUTIONS],
-    notes,
+    notes: plan.notes,
   };
+}
+
+/**
+ * Evaluates the landscape for the pest (central values of any distributions) over the horizon, every run
+ * on this thread (the ensemble's draws call this inside their tasks).
+ * @throws InputError for settings out of range (field, value and allowed range named)
+ * @throws CancelledError when `shouldCancel` returned true
+ */
+export function evaluateLandscape(landscape: RasterLandscape, pest: Pest | PointPest, settings: LandscapeSettings): LandscapeResult {
+  const plan = planEvaluation(landscape, pest, settings);
+  const bands = runBands(plan);
+  const runs = bands.map((band, i) => {
+    const problem = problemOf(plan, band);
+    const onProgress = (f: number) => settings.onProgress?.((i + f) / (bands.length + 0.5), runLabel(plan, band));
+    return { problem, raw: runLandscapeProblem(problem, plan.point, { horizonYears: settings.horizonYears, detectionLevel: plan.level, shouldCancel: settings.shouldCancel, onProgress }) };
+  });
+  const base = baselineFacts(plan, runs[0].problem, runs[0].raw);
+  const facts = runs.slice(1).map((r, j) => optionFacts(plan, base, j, r.problem, r.raw));
+  const pinnings = facts.map((f) => verifyHold(f.p, f.raw, plan.point, holdSettings(plan, f)));
+  return assemble(plan, base, facts, pinnings);
+}
+
+/** A name for one evaluation's batch of tasks, from its content (a queue runner keys task ids on it). */
+function batchKey(plan: EvaluationPlan, json: LandscapeJson): string {
+  const h = createHash('sha256');
+  h.update(JSON.stringify({ pest: plan.point, common: plan.common, grid: [json.nx, json.ny, json.cellM, json.originXM, json.originYM, json.crs.code] }));
+  for (const a of [plan.l.classAtCells, plan.l.hostCoverAtCells, plan.l.stemsAtCells, plan.l.infestedAtCells, ...plan.l.bands.map((b) => b.cover), ...plan.l.sites.map((s) => s.cells)]) {
+    h.update(new Uint8Array(a.buffer, a.byteOffset, a.byteLength));
+  }
+  return `landscape:${h.digest('hex').slice(0, 32)}`;
+}
+
+/**
+ * The same evaluation with its runs handed out through the task runner: the baseline and every option at
+ * once, then the steady-state continuations of the options whose "holds" check needs one. Results are those
+ * of `evaluateLandscape`, bit for bit (tests/analysis/landscape/evaluate-on.test.ts).
+ * @throws InputError for settings out of range
+ * @throws CancelledError when the signal aborts
+ */
+export async function evaluateLandscapeOn(runner: TaskRunner, landscape: RasterLandscape, pest: Pest | PointPest, settings: LandscapeSettings & { signal?: AbortSignal }): Promise<LandscapeResult> {
+  const plan = planEvaluation(landscape, pest, settings);
+  const bands = runBands(plan);
+  const json = landscapeToJson(plan.l);
+  const key = batchKey(plan, json);
+  const run = { horizonYears: settings.horizonYears, detectionLevel: plan.level };
+  const shares = new Array<number>(bands.length).fill(0);
+  const report = (i: number, f: number) => {
+    shares[i] = Math.max(shares[i], Math.min(1, f));
+    settings.onProgress?.(shares.reduce((a, b) => a + b, 0) / (bands.length + 0.5), runLabel(plan, bands[i]));
+  };
+  const payloads: LandscapeRunPayload[] = bands.map((band) => ({ landscape: json, pest: plan.point, problem: { ...plan.common, band }, run }));
+  const raws = (
+    await runner.map<LandscapeRunPayload, RawRunJson>(LANDSCAPE_RUN_TASK, payloads, {
+      signal: settings.signal,
+      key: `${key}:runs`,
+      onProgress: (i, f) => report(i, f),
+      onResult: (i) => report(i, 1),
+    })
+  ).map(rawFromJson);
+  const problems = bands.map((band) => problemOf(plan, band));
+  const base = baselineFacts(plan, problems[0], raws[0]);
+  const facts = raws.slice(1).map((raw, j) => optionFacts(plan, base, j, problems[1 + j], raw));
+  const pinnings = facts.map((f) => holdPrecheck(f.p, plan.point, holdSettings(plan, f)));
+  const open = facts.filter((_, j) => pinnings[j] === null);
+  if (open.length > 0) {
+    const holds = await runner.map<LandscapeHoldPayload, LandscapeOptionResult['pinning']>(
+      LANDSCAPE_HOLD_TASK,
+      open.map((f) => ({ landscape: json, pest: plan.point, problem: { ...plan.common, band: f.j }, u: Array.from(f.raw.u), h: Array.from(f.raw.h), hold: { ...holdSettings(plan, f), shouldCancel: undefined } })),
+      { signal: settings.signal, key: `${key}:holds:${open.map((f) => f.j).join(',')}` },
+    );
+    open.forEach((f, i) => (pinnings[f.j] = holds[i]));
+  }
+  return assemble(plan, base, facts, pinnings as LandscapeOptionResult['pinning'][]);
 }

@@ -51,12 +51,15 @@ export function steadyResidual(p: LandscapeProblem, u: Float64Array, r: number):
   return maxU > 0 ? maxF / (r * maxU) : 0;
 }
 
-export function verifyHold(
-  p: LandscapeProblem,
-  raw: RawRun,
-  pest: PointPest,
-  o: { horizonYears: number; detectionLevel: number; sitesReached: boolean; shouldCancel?: () => boolean },
-): Pinning {
+export interface HoldSettings {
+  horizonYears: number;
+  detectionLevel: number;
+  sitesReached: boolean;
+  shouldCancel?: () => boolean;
+}
+
+/** The answer without any computation where the rules settle it (null: the continuation must decide). */
+export function holdPrecheck(p: LandscapeProblem, pest: PointPest, o: HoldSettings): Pinning | null {
   const g = pest.growth;
   if (o.sitesReached) return { verified: false, method: 'none', detail: 'A protected site behind the band was reached.' };
   if (p.landscape.sites.length === 0) return { verified: false, method: 'none', detail: 'No protected site to hold the front from.' };
@@ -70,6 +73,17 @@ export function verifyHold(
       detail: 'The pest kills its hosts: the die-out bound that verifies a held front on transects is not carried over to maps, so the band is reported as not crossed within the horizon.',
     };
   }
+  return null;
+}
+
+/** Evidence that the band holds: the rules first (holdPrecheck), then the continuation from the run's end. */
+export function verifyHold(p: LandscapeProblem, raw: Pick<RawRun, 'u' | 'h'>, pest: PointPest, o: HoldSettings): Pinning {
+  return holdPrecheck(p, pest, o) ?? continueToSteadyState(p, raw, pest, o);
+}
+
+/** Steps 1–4 of the method above, from the run's final state (after holdPrecheck returned null). */
+export function continueToSteadyState(p: LandscapeProblem, raw: Pick<RawRun, 'u' | 'h'>, pest: PointPest, o: HoldSettings): Pinning {
+  const g = pest.growth;
   const r = growthRateScale(g);
   // Largest per-capita rate up to capacity bounds the step the coupled stage takes without its fallback.
   let gMax = 0;

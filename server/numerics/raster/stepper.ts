@@ -70,6 +70,35 @@ const MAX_RATE_STEP = 1;
 const NEGATIVE_TOLERANCE = 1e-13;
 const STAGE_RATE_LIMIT = 0.9;
 
+/** Thomas factors of a set of line systems over a window: pivots' inverses, sub-diagonal and cp per cell. */
+interface LineFactors {
+  readonly cp: Float64Array;
+  readonly ip: Float64Array;
+  /** The sub-diagonal is recomputed from tau and the faces when applied (same products: same bits). */
+  tau: number;
+  /** What the rates were ('zeros', 'col', a stage counter); null: never reused. */
+  key: unknown;
+  r0: number;
+  r1: number;
+  c0: number;
+  c1: number;
+}
+
+function lineFactors(n: number): LineFactors {
+  return { cp: new Float64Array(n), ip: new Float64Array(n), tau: NaN, key: undefined, r0: 0, r1: -1, c0: 0, c1: -1 };
+}
+
+function sameWindow(f: LineFactors, w: Window): boolean {
+  return f.r0 === w.r0 && f.r1 === w.r1 && f.c0 === w.c0 && f.c1 === w.c1;
+}
+
+function setWindow(f: LineFactors, w: Window): void {
+  f.r0 = w.r0;
+  f.r1 = w.r1;
+  f.c0 = w.c0;
+  f.c1 = w.c1;
+}
+
 /** exp(−x) for the host-loss factors (x ≥ 0). */
 function expNeg(x: number): number {
   return Math.exp(-x);
@@ -87,10 +116,16 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
   const hMid = new Float64Array(n);
   const work = new Float64Array(n);
   const tmp = new Float64Array(n);
-  // Thomas factors of the column lines (all columns of the window swept together, row by row, so that
-  // memory is read in raster order) and scratch for the row lines.
-  const colCp = new Float64Array(n);
-  const rowCp = new Float64Array(nx);
+  // Thomas factors of the line systems, kept while their window, tau and rates stay the same (with a fixed
+  // step, the column factors and the predictor's row factors are computed once per window; the stages' row
+  // factors once per substep for both stages). Column lines are swept together, row by row, so that memory is
+  // read in raster order.
+  // The fallback reuses the stage sets (it follows a rejected stage; the next substep factors afresh).
+  const predictorRows = lineFactors(n);
+  const stageRows = lineFactors(n);
+  const predictorCols = lineFactors(n);
+  const stageCols = lineFactors(n);
+  let stageKey = 0;
   const zeros = new Float64Array(n);
   const sinks = new Float64Array(n);
   const counters: RasterCounters = { steps: 0, substeps: 0, fallbackSteps: 0, activeCellsMax: 0 };
@@ -148,68 +183,99 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
     }
   }
 
-  /**
-   * out = Px⁻¹ rhs on every row of the window, Px = I − tau (Lx + diag(g)) (g: the frozen rates, their
-   * negative part, or zeros). `out` may alias `rhs`.
-   */
-  function rowSolve(tau: number, rhs: Float64Array, out: Float64Array, g: Float64Array): void {
-    const { r0, r1, c0, c1 } = w!;
+  /** Row (Px) factors valid for the window and tau they were computed for; the key says which rates. */
+  function rowFactorOf(f: LineFactors, tau: number, g: Float64Array, key: unknown): LineFactors {
+    const win = w!;
+    if (f.key === key && key !== null && f.tau === tau && sameWindow(f, win)) return f;
+    const { r0, r1, c0, c1 } = win;
+    const { cp, ip } = f;
     for (let r = r0; r <= r1; r++) {
-      const base = r * nx;
-      const first = base + c0;
-      const last = base + c1;
+      const first = r * nx + c0;
+      const last = r * nx + c1;
       let cpPrev = 0;
-      let y = 0;
       let gw = 0;
       let aw = 0;
       for (let k = first; k <= last; k++) {
         const ge = k < last ? gx[k] : 0;
-        const piv = 1 + tau * ((gw + ge + lethalX[k]) * ir[k] - g[k]) - aw * cpPrev;
-        const ip = 1 / piv;
-        cpPrev = k < last ? -tau * ge * ir[k + 1] * ip : 0;
-        rowCp[k - base] = cpPrev;
-        y = (rhs[k] - aw * y) * ip;
-        out[k] = y;
+        const inv = 1 / (1 + tau * ((gw + ge + lethalX[k]) * ir[k] - g[k]) - aw * cpPrev);
+        ip[k] = inv;
+        cpPrev = k < last ? -tau * ge * ir[k + 1] * inv : 0;
+        cp[k] = cpPrev;
         // The next cell's sub-diagonal entry comes from this face.
         gw = ge;
         aw = -tau * ge * ir[k];
       }
+    }
+    f.tau = tau;
+    f.key = key;
+    setWindow(f, win);
+    return f;
+  }
+
+  /** out = Px⁻¹ rhs on every row of the window, with factors from rowFactorOf. `out` may alias `rhs`. */
+  function rowApply(f: LineFactors, rhs: Float64Array, out: Float64Array): void {
+    const { r0, r1, c0, c1 } = w!;
+    const { cp, ip, tau } = f;
+    for (let r = r0; r <= r1; r++) {
+      const first = r * nx + c0;
+      const last = r * nx + c1;
+      let y = rhs[first] * ip[first];
+      out[first] = y;
+      for (let k = first + 1; k <= last; k++) {
+        y = (rhs[k] - -tau * gx[k - 1] * ir[k - 1] * y) * ip[k];
+        out[k] = y;
+      }
       let x = out[last];
       for (let k = last - 1; k >= first; k--) {
-        x = out[k] - rowCp[k - base] * x;
+        x = out[k] - cp[k] * x;
         out[k] = x;
       }
     }
   }
 
-  /**
-   * Py⁻¹ rhs on every column of the window, Py = I − tau Ly, written to `out`; when `add` is given,
-   * `sum = add + Py⁻¹ rhs` is written too (fused into the back substitution). `out` may alias `rhs`.
-   */
-  function colSolve(tau: number, rhs: Float64Array, out: Float64Array, add?: Float64Array, sum?: Float64Array): void {
-    const { r0, r1, c0, c1 } = w!;
+  /** Column (Py = I − tau Ly) factors for the window, kept while the window and tau stay the same. */
+  function colFactorOf(f: LineFactors, tau: number): LineFactors {
+    const win = w!;
+    if (f.key === 'col' && f.tau === tau && sameWindow(f, win)) return f;
+    const { r0, r1, c0, c1 } = win;
+    const { cp, ip } = f;
     for (let r = r0; r <= r1; r++) {
       const base = r * nx;
-      const first = base + c0;
-      const last = base + c1;
       const south = r < r1;
-      if (r === r0) {
-        for (let k = first; k <= last; k++) {
-          const gs = south ? gy[k] : 0;
-          const ip = 1 / (1 + tau * (gs + lethalY[k]) * ir[k]);
-          colCp[k] = south ? -tau * gs * ir[k + nx] * ip : 0;
-          out[k] = rhs[k] * ip;
-        }
-        continue;
-      }
-      for (let k = first; k <= last; k++) {
-        const n0 = k - nx;
-        const gn = gy[n0];
+      for (let k = base + c0; k <= base + c1; k++) {
         const gs = south ? gy[k] : 0;
-        const a = -tau * gn * ir[n0];
-        const ip = 1 / (1 + tau * (gn + gs + lethalY[k]) * ir[k] - a * colCp[n0]);
-        colCp[k] = south ? -tau * gs * ir[k + nx] * ip : 0;
-        out[k] = (rhs[k] - a * out[n0]) * ip;
+        let inv: number;
+        if (r === r0) {
+          inv = 1 / (1 + tau * (gs + lethalY[k]) * ir[k]);
+        } else {
+          const n0 = k - nx;
+          const gn = gy[n0];
+          const an = -tau * gn * ir[n0];
+          inv = 1 / (1 + tau * (gn + gs + lethalY[k]) * ir[k] - an * cp[n0]);
+        }
+        ip[k] = inv;
+        cp[k] = south ? -tau * gs * ir[k + nx] * inv : 0;
+      }
+    }
+    f.tau = tau;
+    f.key = 'col';
+    setWindow(f, win);
+    return f;
+  }
+
+  /**
+   * Py⁻¹ rhs on every column of the window (factors from colFactorOf), written to `out`; when `add` is
+   * given, `sum = add + Py⁻¹ rhs` is written too (fused into the back substitution). `out` may alias `rhs`.
+   */
+  function colApply(f: LineFactors, rhs: Float64Array, out: Float64Array, add?: Float64Array, sum?: Float64Array): void {
+    const { r0, r1, c0, c1 } = w!;
+    const { cp, ip, tau } = f;
+    for (let k = r0 * nx + c0; k <= r0 * nx + c1; k++) out[k] = rhs[k] * ip[k];
+    for (let r = r0 + 1; r <= r1; r++) {
+      const base = r * nx;
+      for (let k = base + c0; k <= base + c1; k++) {
+        const n0 = k - nx;
+        out[k] = (rhs[k] - -tau * gy[n0] * ir[n0] * out[n0]) * ip[k];
       }
     }
     if (add && sum) {
@@ -220,12 +286,12 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       const base = r * nx;
       if (add && sum) {
         for (let k = base + c0; k <= base + c1; k++) {
-          const x = out[k] - colCp[k] * out[k + nx];
+          const x = out[k] - cp[k] * out[k + nx];
           out[k] = x;
           sum[k] = add[k] + x;
         }
       } else {
-        for (let k = base + c0; k <= base + c1; k++) out[k] -= colCp[k] * out[k + nx];
+        for (let k = base + c0; k <= base + c1; k++) out[k] -= cp[k] * out[k + nx];
       }
     }
   }
@@ -272,8 +338,8 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
     // transect's predictor (I − dt/2 L)ũ = (1 + dt/2 g⁰)u⁰ where the state is uniform across, and exact at
     // steady states (so that they stay fixed points of the whole step); negative values are read as 0.
     combine(u0, halfDt, 0, 0, u0, work);
-    rowSolve(halfDt, work, work, zeros);
-    colSolve(halfDt, work, work, u0, mid);
+    rowApply(rowFactorOf(predictorRows, halfDt, zeros, 'zeros'), work, work);
+    colApply(colFactorOf(predictorCols, halfDt), work, work, u0, mid);
     let maxPositive = 0;
     const quarter = 0.25 * c * dt;
     for (let r = r0; r <= r1; r++) {
@@ -297,12 +363,14 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       const tau = theta * dt;
       // Stage 1 (trapezoidal rule over γ dt): x = u⁰ + (Px Py)⁻¹ 2τ A u⁰.
       combine(u0, 2 * tau, 0, 0, u0, work);
-      rowSolve(tau, work, work, rate);
-      colSolve(tau, work, work, u0, u);
+      const rows = rowFactorOf(stageRows, tau, rate, ++stageKey);
+      const cols = colFactorOf(stageCols, tau);
+      rowApply(rows, work, work);
+      colApply(cols, work, work, u0, u);
       // Stage 2 (BDF2): y = x + (Px Py)⁻¹ (c* x − c_old u⁰ − M x), M x = x − τ A x.
       combine(u, tau, cStar - 1, -cOld, u0, work);
-      rowSolve(tau, work, work, rate);
-      colSolve(tau, work, work, u, tmp);
+      rowApply(rows, work, work);
+      colApply(cols, work, work, u, tmp);
       let min = 0;
       let max = 0;
       for (let r = r0; r <= r1; r++) {
@@ -323,8 +391,8 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
         for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) u[k] = (1 + dt * Math.max(rate[k], 0)) * u0[k];
       }
       for (let r = r0; r <= r1; r++) for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) sinks[k] = rate[k] < 0 ? rate[k] : 0;
-      rowSolve(dt, u, u, sinks);
-      colSolve(dt, u, u);
+      rowApply(rowFactorOf(stageRows, dt, sinks, null), u, u);
+      colApply(colFactorOf(stageCols, dt), u, u);
       for (let r = r0; r <= r1; r++) for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) if (u[k] < 0) u[k] = 0;
       counters.fallbackSteps++;
     }
