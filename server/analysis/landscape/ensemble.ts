@@ -25,7 +25,7 @@ export interface LandscapeEnsembleSettings {
   seed: number;
   /** Cell of the draws [m] (the map is averaged onto it); 200 m when absent. */
   cellM?: number;
-  /** Draws take time steps this many times the automatic step (default 3, as transect draws do). */
+  /** Draws take time steps this many times the transect's automatic step (default 3: 1.5 × a map run's step). */
   stepFactor?: number;
   /** Draws per task (default: spread over the runner's concurrency, at most 25). */
   chunk?: number;

@@ -106,6 +106,22 @@ export function coarsenLandscape(l: RasterLandscape, factor: number): RasterLand
   };
 }
 
+/**
+ * The map's automatic step as a multiple of the transect's rule (0.05 / fastest rate, resolution.ts). The map
+ * step is second order in time (tests/verification/landscape-numerics.test.ts), and at twice the transect's
+ * step its arrival years stay within 0.03 yr of a run with a step four times smaller — the transect rule's
+ * own acceptance bound (tests/analysis/landscape/step-rule.test.ts) — while a 100 m cell alone moves the
+ * front's arrival by about a tenth of a year (one cell at 1 km/yr). Measured on the bench map at 100 m
+ * (r = 0.8/yr, step 0.125 yr): sites within 0.017 yr, every cell within 0.031 yr of a 1/64-yr step; at 0.25 yr
+ * the cells drift by 0.084 yr, so the factor stops at 2.
+ */
+export const MAP_STEP_FACTOR = 2;
+
+/** Automatic time step of a map run for the habitats present [yr]: MAP_STEP_FACTOR × the transect's rule. */
+export function mapStepYears(pest: PointPest, habitats: Iterable<Habitat>): number {
+  return MAP_STEP_FACTOR * automaticStepYears(pest, habitats);
+}
+
 /** Time step of the transect's automatic rule for the habitats present [yr]. */
 export function automaticStepYears(pest: PointPest, habitats: Iterable<Habitat>): number {
   const pieces = [...new Set(habitats)].map((habitat) => ({ habitat }) as Piece);
@@ -198,7 +214,7 @@ export function landscapeProblem(l: RasterLandscape, pest: PointPest, o: Problem
     }
   }
   const op = makeRasterOperator(mesh, diffusion, residence);
-  const stepYears = o.stepYears ?? automaticStepYears(pest, present);
+  const stepYears = o.stepYears ?? mapStepYears(pest, present);
   const steps = o.horizonYears / stepYears;
   if (steps > MAX_MAP_STEPS) {
     throw new LimitError([{ path: 'horizonYears', value: o.horizonYears, message: `needs ${Math.round(steps)} time steps; the limit is ${MAX_MAP_STEPS}` }]);
