@@ -33,6 +33,9 @@ beforeAll(async () => {
   dir = mkdtempSync(join(tmpdir(), 'landscape-cli-'));
   writeFileSync(join(dir, 'host.tif'), await uniformHostTiff(50, 30, 200, X0, Y0));
   writeFileSync(join(dir, 'small.json'), JSON.stringify(scenario()));
+  // Movement uncertain (log-normal): the slowest draws do not reach the east end within 8 years, the fastest do
+  // (Fisher speed 2√(rD) needs D ≳ 0.35 km²/yr to cover the 8.5 km in time).
+  writeFileSync(join(dir, 'ranges.json'), JSON.stringify(scenario({ pest: { ...PEST, diffusionHost: { dist: 'lognormal', median: 0.4, spread: 2 } }, uncertainty: { draws: 12, seed: 5 } })));
   writeFileSync(join(dir, 'outside.json'), JSON.stringify(scenario({ infestation: { places: [{ point: [X0 + 20_000, Y0], radiusM: 500 }] } })));
 });
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -65,6 +68,30 @@ describe('landscape CLI', () => {
     expect(bytes.subarray(0, 5).toString()).toBe('%PDF-');
     // The maps' raster layer is embedded as an image only for large grids; this one is drawn as vectors.
     expect(bytes.length).toBeGreaterThan(20_000);
+  });
+
+  it('with ranges and draws: the chance each site is reached, without a band and with each, in JSON, text and PDF', () => {
+    const r = run([join(dir, 'ranges.json'), '--json', '--quiet']);
+    expect(r.status, r.stderr).toBe(0);
+    const e = JSON.parse(r.stdout).ensemble;
+    expect(e.draws).toBe(12);
+    expect(e.parameters.map((p: { path: string }) => p.path)).toEqual(['pest.diffusionHost']);
+    const base = e.baseline[0];
+    expect(base.site).toBe('East end');
+    // Both outcomes occur over the range; the standard error is the binomial one.
+    expect(base.p).toBeGreaterThan(0);
+    expect(base.p).toBeLessThan(1);
+    expect(base.standardError).toBeCloseTo(Math.sqrt((base.p * (1 - base.p)) / 12), 12);
+    // A band across the whole map can only delay: never more draws reached with it than without.
+    expect(e.options[0].sites[0].p).toBeLessThanOrEqual(base.p);
+    const w = e.options[0].wayPast;
+    expect(w.through + w.around + w.none).toBe(12);
+    const text = run([join(dir, 'ranges.json'), '--quiet']);
+    expect(text.status, text.stderr).toBe(0);
+    expect(text.stdout).toMatch(/Chance that each site is reached within 8 years, over 12 draws/);
+    expect(text.stdout).toMatch(new RegExp(`East end: ${Math.round(100 * base.p)} % \\(± ${Math.round(100 * base.standardError)}\\)`));
+    const pdf = run([join(dir, 'ranges.json'), '--pdf', join(dir, 'ranges.pdf'), '--quiet']);
+    expect(pdf.status, pdf.stderr).toBe(0);
   });
 
   it('an infestation outside the map: the named error, the field and exit 1, nothing printed on stdout', () => {

@@ -14,6 +14,10 @@ import { evaluateLandscape, evaluateLandscapeOn } from './landscape/evaluate.ts'
 import type { TaskRunner } from '../jobs/task-runner.ts';
 import { fieldToJson, type LandscapeResult, type WayPast } from './landscape/result.ts';
 import { CAUTIONS } from './evaluate/cautions.ts';
+import { pestParameters, runLandscapeEnsemble } from './landscape/ensemble.ts';
+import { fieldOfPath } from './ensemble/plan.ts';
+import { makeInlineRunner } from '../jobs/inline-runner.ts';
+import type { LandscapeEnsembleResult } from './landscape/result.ts';
 
 export const LANDSCAPE_DOCUMENT_VERSION = 1;
 
@@ -74,8 +78,24 @@ export interface LandscapeDocument {
   };
   baseline: { arrivals: { site: string; detectedYears: number | null; breedingYears: number | null }[] };
   options: LandscapeOptionSummary[];
+  /** Chance of arrival over the pest's uncertain parameters (present when the scenario asks for draws). */
+  ensemble?: LandscapeEnsembleSummary;
   cautions: string[];
   notes: string[];
+}
+
+/** P(site reached within the horizon) without a band and with each, over Latin hypercube draws. */
+export interface LandscapeEnsembleSummary {
+  draws: number;
+  seed: number;
+  /** Model cell of the draws [m] (the central run's) and their step as a multiple of the transect rule. */
+  cellM: number;
+  stepFactor: number;
+  /** Uncertain parameters: path, the label forms use, central value. */
+  parameters: { path: string; label: string; centralValue: number }[];
+  /** Share of draws in which the site saw a breeding population by the horizon, with its standard error. */
+  baseline: { site: string; p: number; standardError: number }[];
+  options: { key: string; name: string; sites: { site: string; p: number; standardError: number }[]; wayPast: Record<WayPast, number> }[];
 }
 
 /** A loaded map, its result and the document, kept together for maps and downloads. */
@@ -100,6 +120,9 @@ export interface LandscapeRunOptions {
   /** Stops a run handed to the runner (with `runner`; `shouldCancel` covers the one-thread case). */
   signal?: AbortSignal;
 }
+
+/** Share of the progress bar the central runs take when an ensemble follows. */
+const CENTRAL_SHARE = 0.35;
 
 const sha256 = (b: Uint8Array) => createHash('sha256').update(b).digest('hex');
 
@@ -136,9 +159,39 @@ export async function evaluateLandscapeScenario(scenario: LandscapeScenario, fil
     shouldCancel: opts.shouldCancel,
     onProgress: opts.onProgress,
   };
+  const uncertain = scenario.uncertainty !== undefined && pestParameters(scenario.pest).length > 0;
+  const centralProgress = uncertain && opts.onProgress ? (f: number, m: string) => opts.onProgress!(CENTRAL_SHARE * f, m) : opts.onProgress;
+  const central = { ...settings, onProgress: centralProgress };
   const result = opts.runner
-    ? await evaluateLandscapeOn(opts.runner, loaded, scenario.pest, { ...settings, signal: opts.signal })
-    : evaluateLandscape(loaded, scenario.pest, settings);
+    ? await evaluateLandscapeOn(opts.runner, loaded, scenario.pest, { ...central, signal: opts.signal })
+    : evaluateLandscape(loaded, scenario.pest, central);
+  const extraNotes: string[] = [];
+  if (scenario.uncertainty && !uncertain) extraNotes.push('The scenario asks for draws, but no pest parameter has a range: only the central values were run.');
+  if (uncertain) {
+    const u = scenario.uncertainty!;
+    const stepFactor = u.resolutionFactor;
+    // Draws on the central run's cell (a coarser one would blur bands a few cells wide away) and a longer step.
+    const cancelled = new AbortController();
+    const signal = opts.signal ?? cancelled.signal;
+    const e = await runLandscapeEnsemble(
+      loaded,
+      scenario.pest,
+      { horizonYears: settings.horizonYears, detectionLevel: settings.detectionLevel, mapEdges: settings.mapEdges, infestedDensity: settings.infestedDensity },
+      {
+        draws: u.draws,
+        seed: u.seed,
+        cellM: result.grid.cellM,
+        stepFactor,
+        signal,
+        onProgress: (done, total) => {
+          if (opts.shouldCancel?.()) cancelled.abort();
+          opts.onProgress?.(CENTRAL_SHARE + (1 - CENTRAL_SHARE) * (done / total), `draws: ${done} of ${total}`);
+        },
+      },
+      opts.runner ?? makeInlineRunner(),
+    );
+    result.ensemble = e;
+  }
   const { fingerprint: fp, mapFiles } = landscapeFingerprint(scenario, files);
   const cautions = [...result.cautions];
   for (const c of CAUTIONS) if (!cautions.includes(c)) cautions.push(c);
@@ -180,8 +233,9 @@ export async function evaluateLandscapeScenario(scenario: LandscapeScenario, fil
         pinningVerified: o.pinning.verified,
       };
     }),
+    ...(result.ensemble ? { ensemble: ensembleSummary(result.ensemble, result.options.map((o, k) => ({ key: String.fromCharCode(65 + k), name: o.label }))) } : {}),
     cautions,
-    notes: [...loaded.notes, ...result.notes],
+    notes: [...loaded.notes, ...result.notes, ...extraNotes],
   };
   return { loaded, result, doc };
 }
@@ -194,4 +248,18 @@ export function landscapeJson(ev: Pick<LandscapeEvaluation, 'doc' | 'result'>): 
   // The summary indented for reading; the full result (with its per-cell fields) on one line.
   const head = JSON.stringify(ev.doc, null, 1);
   return `${head.slice(0, -2)},\n "result": ${JSON.stringify(result)}\n}\n`;
+}
+
+/** The ensemble as the document carries it: per site the chance of arrival, per option the way past tallies. */
+function ensembleSummary(e: LandscapeEnsembleResult, keys: { key: string; name: string }[]): LandscapeEnsembleSummary {
+  const site = (x: { name: string; reached: { p: number; standardError: number } }) => ({ site: x.name, p: x.reached.p, standardError: x.reached.standardError });
+  return {
+    draws: e.completed,
+    seed: e.seed,
+    cellM: e.cellM,
+    stepFactor: e.stepFactor,
+    parameters: e.parameters.map((p) => ({ path: p.path, label: fieldOfPath(p.path.split('.')).label, centralValue: p.centralValue })),
+    baseline: e.baseline.sites.map(site),
+    options: e.options.map((o, k) => ({ key: keys[k].key, name: keys[k].name, sites: o.sites.map(site), wayPast: o.wayPast })),
+  };
 }

@@ -11,6 +11,7 @@ import { parseLandscapeScenario, MAX_MODEL_CELLS, type LandscapeScenario } from 
 import { InputError, type Problem } from '../model/errors.ts';
 import { loadLandscape, type LoadedLandscape } from '../domain/gis/load.ts';
 import { hostCoverMap, mapBaseOf } from '../report/maps/index.ts';
+import { ensembleLines } from '../report/landscape/summary.ts';
 import { problemItems } from './view-models/problems.ts';
 import { notFound } from './plugins/errors.ts';
 import type { WebDeps } from './deps.ts';
@@ -323,6 +324,8 @@ export function resultView(id: string, out: LandscapeOutput) {
     maps: out.maps.slice(1),
     downloads: out.downloads.filter((x) => x.name !== 'briefing.pdf').map((x) => ({ label: x.label, href: `/landscape-runs/${id}/files/${x.name}`, name: x.name })),
     briefing: `/landscape-runs/${id}/files/briefing.pdf`,
+    ensemble: ensembleLines(d),
+    ensembleKeys: d.ensemble?.options.map((o) => `With ${o.key}`) ?? [],
     cautions: d.cautions,
     notes: d.notes,
     editBands: `/landscape-runs/${id}/bands`,

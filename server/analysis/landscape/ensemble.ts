@@ -131,6 +131,7 @@ export async function runLandscapeEnsemble(
     completed: n,
     seed: e.seed,
     cellM: coarse.cellM,
+    stepFactor: e.stepFactor ?? 3,
     parameters: params.map((p) => ({ path: formatPath(p.path), distribution: p.distribution, centralValue: centralValue(p.distribution) })),
     baseline: { sites: reachedBy(0) },
     options: coarse.bands.map((b, j) => {

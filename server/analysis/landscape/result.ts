@@ -139,6 +139,8 @@ export interface LandscapeEnsembleResult {
   seed: number;
   /** Cell used by the draws [m]. */
   cellM: number;
+  /** The draws' time step as a multiple of the transect's automatic step. */
+  stepFactor: number;
   parameters: { path: string; distribution: unknown; centralValue: number }[];
   baseline: { sites: { name: string; reached: ProbabilityEstimate }[] };
   options: { id: string; sites: { name: string; reached: ProbabilityEstimate }[]; wayPast: Record<WayPast, number> }[];

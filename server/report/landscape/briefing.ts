@@ -13,7 +13,7 @@ import { FONT } from '../pdf/fonts.ts';
 import { Flow, type Column } from '../pdf/flow.ts';
 import { drawChart } from '../pdf/chart.ts';
 import { years } from '../format.ts';
-import { treesCostText } from './summary.ts';
+import { ensembleLines, treesCostText } from './summary.ts';
 import type { IdMap } from '../maps/index.ts';
 
 export interface LandscapeBriefingOptions {
@@ -49,6 +49,7 @@ export async function renderLandscapeBriefing(doc: LandscapeDocument, maps: IdMa
   cover(flow, doc);
   mapsSection(flow, maps);
   tableSection(flow, doc);
+  ensembleSection(flow, doc);
   mapNotesSection(flow, doc);
   flow.newPage();
   flow.heading('Limits and cautions');
@@ -104,6 +105,13 @@ function cover(flow: Flow, doc: LandscapeDocument): void {
     flow.text(head, { font: FONT.bold, after: 1 });
     flow.text(line, { indent: 14, after: 1 });
     flow.text(trees, { indent: 14, size: 8.5, color: '#333333', after: 6 });
+  }
+  const ens = ensembleLines(doc);
+  if (ens) {
+    const keys = doc.ensemble!.options.map((o) => o.key);
+    flow.text(`How sure (${doc.ensemble!.draws} draws of the uncertain parameters; details under "How sure"): chance of arrival within ${doc.horizonYears} years —`, { size: 9, after: 1 });
+    for (const r of ens.rows) flow.text(`${r.site}: ${r.baseline} without a band; ${r.options.map((p, i) => `${p} with ${keys[i]}`).join(', ')}.`, { indent: 14, size: 8.5, after: 1 });
+    flow.space(4);
   }
   const box = doc.cautions.filter((c) => /regulat|licensed|hazardous|field survey/i.test(c)).join(' ');
   const h = flow.measure(box, { size: 8.5 }, flow.width - 16) + 26;
@@ -184,6 +192,23 @@ function tableSection(flow: Flow, doc: LandscapeDocument): void {
     flow.heading('Band cross-sections (1-D)', 3, 30);
     flow.bullets(cs.map((o) => `${o.key}. ${o.name}: along the band's normal (a transect through the band) the critical width lies between ${Math.round(o.crossSectionCriticalWidthM![0])} and ${Math.round(o.crossSectionCriticalWidthM![1])} m. This is a one-dimensional result: it ignores the band's ends.`), { size: 8.5 });
   }
+}
+
+/** The ensemble's chances of arrival, when the scenario asked for draws (wording from summary.ts). */
+function ensembleSection(flow: Flow, doc: LandscapeDocument): void {
+  const ens = ensembleLines(doc);
+  if (!ens) return;
+  flow.heading('How sure: chance of arrival over the uncertain parameters', 3, 60);
+  flow.text(ens.intro, { size: 8.5, color: '#333333' });
+  const options = doc.ensemble!.options;
+  const w = Math.min(80, Math.max(45, Math.floor(360 / Math.max(1, options.length))));
+  const cols: Column[] = [
+    { header: 'Protected site', width: 110 },
+    { header: 'Without a band', width: 60, align: 'right' },
+    ...options.map((o) => ({ header: `With ${o.key}`, width: w, align: 'right' as const })),
+  ];
+  flow.table(cols, ens.rows.map((r) => [r.site, r.baseline, ...r.options]));
+  flow.bullets(ens.wayPast, { size: 8.5 });
 }
 
 function mapNotesSection(flow: Flow, doc: LandscapeDocument): void {

@@ -15,6 +15,24 @@ export function treesCostText(o: LandscapeDocument['options'][number]): string {
   return `${integer(o.treesRemoved)} host trees removed on ${o.bandAreaHa.toFixed(1)} ha${cost}`;
 }
 
+const pct = (p: number, se: number) => `${Math.round(100 * p)} % (± ${Math.round(100 * se)})`;
+
+/**
+ * The ensemble in plain lines (one wording for the summary, the briefing and the web page): what was drawn,
+ * then per site the chance of arrival within the horizon without a band and with each.
+ */
+export function ensembleLines(doc: LandscapeDocument): { intro: string; rows: { site: string; baseline: string; options: string[] }[]; wayPast: string[] } | null {
+  const e = doc.ensemble;
+  if (!e) return null;
+  const intro =
+    `Chance that each site is reached within ${doc.horizonYears} years, over ${e.draws} draws of the uncertain pest parameters ` +
+    `(${e.parameters.map((p) => p.label.toLowerCase()).join(', ')}; Latin hypercube, seed ${e.seed}; ${e.cellM} m cells, a step ${e.stepFactor}× the transect rule). ` +
+    'Reached means the detection level without a band; with a band, a thin fringe that never breeds does not count. ± is one standard error.';
+  const rows = e.baseline.map((b, i) => ({ site: b.site, baseline: pct(b.p, b.standardError), options: e.options.map((o) => pct(o.sites[i].p, o.sites[i].standardError)) }));
+  const wayPast = e.options.map((o) => `${o.key}. ${o.name}: through the band in ${o.wayPast.through}, around it in ${o.wayPast.around}, not past it in ${o.wayPast.none} of ${e.draws} draws.`);
+  return { intro, rows, wayPast };
+}
+
 export function landscapeTextSummary(doc: LandscapeDocument): string {
   const out: string[] = [];
   out.push(doc.title);
@@ -33,6 +51,14 @@ export function landscapeTextSummary(doc: LandscapeDocument): string {
     out.push(`   ${treesCostText(o)}.`);
     if (o.crossSectionCriticalWidthM) out.push(`   Band cross-section (1-D transect across the band): critical width between ${Math.round(o.crossSectionCriticalWidthM[0])} and ${Math.round(o.crossSectionCriticalWidthM[1])} m.`);
   });
+  const ens = ensembleLines(doc);
+  if (ens) {
+    out.push('');
+    out.push(ens.intro);
+    out.push(`  site: without a band | ${doc.ensemble!.options.map((o) => `with ${o.key}`).join(' | ')}`);
+    for (const r of ens.rows) out.push(`  ${r.site}: ${r.baseline} | ${r.options.join(' | ')}`);
+    for (const w of ens.wayPast) out.push(`  ${w}`);
+  }
   out.push('');
   out.push('Limits and cautions:');
   for (const c of doc.cautions) out.push(`  - ${c}`);
