@@ -143,6 +143,7 @@ const COVERED_ELSEWHERE: Record<string, Cover> = {
   'server/web/view-models/csv.ts': { by: ['tests/web/runs-results.test.ts'], why: WEB },
   'server/web/view-models/problems.ts': { by: ['tests/web/input-edges.test.ts'], why: WEB },
   'server/web/view-models/result-view.ts': { by: ['tests/web/runs-results.test.ts', 'tests/web/consistency.test.ts'], why: WEB },
+  'server/web/view-models/compare-view.ts': { by: ['tests/web/runs-results.test.ts', 'tests/web/consistency.test.ts'], why: WEB },
   'server/web/view-models/scenario-form.ts': { by: ['tests/web/form-state.test.ts', 'tests/web/scenario-pages.test.ts'], why: WEB },
   'server/web/view-models/scenario-view.ts': { by: ['tests/web/scenario-pages.test.ts'], why: WEB },
   'server/web/view-models/strip.ts': { by: ['tests/web/form-state.test.ts'], why: WEB },

@@ -17,7 +17,7 @@ import { CAUTIONS } from './evaluate/cautions.ts';
 import { pestParameters, runLandscapeEnsemble } from './landscape/ensemble.ts';
 import { fieldOfPath } from './ensemble/plan.ts';
 import { makeInlineRunner } from '../jobs/inline-runner.ts';
-import type { LandscapeEnsembleResult } from './landscape/result.ts';
+import type { LandscapeEnsembleResult, LandscapeSettings } from './landscape/result.ts';
 
 export const LANDSCAPE_DOCUMENT_VERSION = 1;
 
@@ -167,31 +167,7 @@ export async function evaluateLandscapeScenario(scenario: LandscapeScenario, fil
     : evaluateLandscape(loaded, scenario.pest, central);
   const extraNotes: string[] = [];
   if (scenario.uncertainty && !uncertain) extraNotes.push('The scenario asks for draws, but no pest parameter has a range: only the central values were run.');
-  if (uncertain) {
-    const u = scenario.uncertainty!;
-    const stepFactor = u.resolutionFactor;
-    // Draws on the central run's cell (a coarser one would blur bands a few cells wide away) and a longer step.
-    const cancelled = new AbortController();
-    const signal = opts.signal ?? cancelled.signal;
-    const e = await runLandscapeEnsemble(
-      loaded,
-      scenario.pest,
-      { horizonYears: settings.horizonYears, detectionLevel: settings.detectionLevel, mapEdges: settings.mapEdges, infestedDensity: settings.infestedDensity },
-      {
-        draws: u.draws,
-        seed: u.seed,
-        cellM: result.grid.cellM,
-        stepFactor,
-        signal,
-        onProgress: (done, total) => {
-          if (opts.shouldCancel?.()) cancelled.abort();
-          opts.onProgress?.(CENTRAL_SHARE + (1 - CENTRAL_SHARE) * (done / total), `draws: ${done} of ${total}`);
-        },
-      },
-      opts.runner ?? makeInlineRunner(),
-    );
-    result.ensemble = e;
-  }
+  if (uncertain) result.ensemble = await landscapeDraws(scenario, loaded, result.grid.cellM, settings, opts);
   const { fingerprint: fp, mapFiles } = landscapeFingerprint(scenario, files);
   const cautions = [...result.cautions];
   for (const c of CAUTIONS) if (!cautions.includes(c)) cautions.push(c);
@@ -248,6 +224,36 @@ export function landscapeJson(ev: Pick<LandscapeEvaluation, 'doc' | 'result'>): 
   // The summary indented for reading; the full result (with its per-cell fields) on one line.
   const head = JSON.stringify(ev.doc, null, 1);
   return `${head.slice(0, -2)},\n "result": ${JSON.stringify(result)}\n}\n`;
+}
+
+/** The map ensemble of a scenario with ranges and draws, after its central runs (progress from CENTRAL_SHARE on). */
+async function landscapeDraws(
+  scenario: LandscapeScenario,
+  loaded: LoadedLandscape,
+  cellM: number,
+  settings: Pick<LandscapeSettings, 'horizonYears' | 'detectionLevel' | 'mapEdges' | 'infestedDensity'>,
+  opts: LandscapeRunOptions,
+): Promise<LandscapeEnsembleResult> {
+  const u = scenario.uncertainty!;
+  // Draws on the central run's cell (a coarser one would blur bands a few cells wide away) and a longer step.
+  const cancelled = new AbortController();
+  return runLandscapeEnsemble(
+    loaded,
+    scenario.pest,
+    { horizonYears: settings.horizonYears, detectionLevel: settings.detectionLevel, mapEdges: settings.mapEdges, infestedDensity: settings.infestedDensity },
+    {
+      draws: u.draws,
+      seed: u.seed,
+      cellM,
+      stepFactor: u.resolutionFactor,
+      signal: opts.signal ?? cancelled.signal,
+      onProgress: (done, total) => {
+        if (opts.shouldCancel?.()) cancelled.abort();
+        opts.onProgress?.(CENTRAL_SHARE + (1 - CENTRAL_SHARE) * (done / total), `draws: ${done} of ${total}`);
+      },
+    },
+    opts.runner ?? makeInlineRunner(),
+  );
 }
 
 /** The ensemble as the document carries it: per site the chance of arrival, per option the way past tallies. */

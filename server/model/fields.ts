@@ -2,6 +2,9 @@
  * Every physical number a user can set: label, unit, allowed range, typical range, help text and the
  * source of its default. The zod schemas, the scenario form and the briefing's parameter table all
  * read from here, so a range is written once.
+ *
+ * Longer than 400 lines on purpose: it is the one table of every user-settable number, so that each range,
+ * unit and help text is written once (one entry per field, no logic beyond the range checks).
  */
 export interface FieldSpec {
   /** Short label for forms and tables. */

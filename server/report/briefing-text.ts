@@ -3,6 +3,9 @@
  * verdict labels, the options and arrivals tables, the parameters table with the source of each value, and a
  * reader for the uncertainty section. Kept apart from the drawing code so the web pages can reuse them and
  * tests can check them directly.
+ *
+ * Just over 400 lines: every sentence and row of the briefing in one file, so a wording is found and
+ * changed in one place (the web pages reuse them).
  */
 import type { OptionResult, ResultDocument, RunResult, VerdictKind } from '../analysis/result.ts';
 import { CAUTIONS, MODEL_LIMITS, allCautions } from '../analysis/evaluate/cautions.ts';

@@ -11,6 +11,10 @@
  *
  * Job state is in memory while the job lives and in the database always, so a job's page keeps working
  * after a restart.
+ *
+ * Longer than 400 lines on purpose: `makeJobRunner` is one closure that owns the in-memory job table, the
+ * store and the runner; its parts (accept, resume, progress streams, cancel, wall-time limit, shutdown)
+ * change the same state and are easier to check for races side by side.
  */
 import { randomUUID } from 'node:crypto';
 import { LimitError, type Problem } from '../model/errors.ts';

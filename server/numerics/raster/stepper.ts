@@ -23,6 +23,10 @@
  * a product of inverse-positive M-matrices (positive, first order: locally one-dimensional backward Euler).
  *
  * Results do not depend on threads: the step is sequential and its order of operations fixed.
+ *
+ * Longer than 400 lines on purpose: the step's sweeps (combine, line factorisations and solves, predictor,
+ * stages, fallback) share one set of scratch arrays, the window and the kept factorisations in one closure;
+ * split apart they would pass a dozen arrays between files.
  */
 import type { RasterOperator, Window } from './operator.ts';
 

@@ -25,6 +25,10 @@
  * Active window: all vector work runs over the components lo…hi−1 of {@link ActiveWindow}; outside it the
  * history is constant (higher differences 0), which every operation here preserves, so a component can
  * join or leave the window between steps without touching the table.
+ *
+ * Longer than 400 lines on purpose: one integrator whose step, Newton iteration, error estimate, order and
+ * step-size change and dense output share the difference table and the factorisation in one closure; the
+ * unrolled accumulation kernels at the end are the hot loops.
  */
 import type { ActiveWindow, StepperCounters, StiffSystem } from './stiff-system.ts';
 

@@ -4,7 +4,8 @@
  */
 import type { FastifyInstance, FastifyReply } from 'fastify';
 import { notFound } from '../plugins/errors.ts';
-import { comparePageView, resultListItem, resultPageView, resultTables, type ResultListEntry } from '../view-models/result-view.ts';
+import { resultListItem, resultPageView, resultTables, type ResultListEntry } from '../view-models/result-view.ts';
+import { comparePageView } from '../view-models/compare-view.ts';
 import { compareResultsView } from '../view-models/compare-results.ts';
 import { seriesCsv, tableCsv } from '../view-models/csv.ts';
 import { optionKey } from '../../report/charts/index.ts';

@@ -22,7 +22,7 @@ import {
 } from '../../report/decision.ts';
 import { parameterRows } from '../../report/briefing-text.ts';
 import type { StoredResult } from '../store.ts';
-import { compareChart, resultCharts } from './charts.ts';
+import { resultCharts } from './charts.ts';
 import { optionKey } from '../../report/charts/index.ts';
 import { bypassView, uncertaintyView } from './uncertainty-view.ts';
 import type { TableView } from './table.ts';
@@ -37,10 +37,10 @@ const GROWTH_WORDS: Record<string, string> = {
 
 const COVER_WORDS: Record<string, string> = { clearing: 'open clearing', 'non-host-forest': 'replanted with non-host trees' };
 
-const NOT_COMPUTED = 'not computed by this version';
+export const NOT_COMPUTED = 'not computed by this version';
 
 /** An option's name with its letter key (A, B, …), the same letters the charts and the briefing use. */
-const keyed = (doc: ResultDocument, k: number) => `${optionKey(k)}: ${doc.options[k].name}`;
+export const keyed = (doc: ResultDocument, k: number) => `${optionKey(k)}: ${doc.options[k].name}`;
 
 export interface VerdictView {
   name: string;
@@ -57,11 +57,11 @@ export interface VerdictView {
 }
 
 /** An option as found in a stored document: the run is always there; the analysis fields may not be. */
-type LooseOption = Pick<OptionResult, 'name' | 'fromKm' | 'widthM' | 'cover' | 'run'> & Partial<Omit<OptionResult, 'name' | 'fromKm' | 'widthM' | 'cover' | 'run'>>;
+export type LooseOption = Pick<OptionResult, 'name' | 'fromKm' | 'widthM' | 'cover' | 'run'> & Partial<Omit<OptionResult, 'name' | 'fromKm' | 'widthM' | 'cover' | 'run'>>;
 
-const loose = (o: OptionResult) => o as LooseOption;
+export const loose = (o: OptionResult) => o as LooseOption;
 
-function optionWhat(o: LooseOption): string {
+export function optionWhat(o: LooseOption): string {
   return `${COVER_WORDS[o.cover] ?? o.cover}, ${integer(o.widthM)} m wide, from km ${km(o.fromKm)}`;
 }
 
@@ -87,7 +87,7 @@ export function verdictView(doc: ResultDocument, k = 0): VerdictView {
   };
 }
 
-const yearOrNot = (y: number | null | undefined, horizon: number) =>
+export const yearOrNot = (y: number | null | undefined, horizon: number) =>
   y === null || y === undefined ? `not within ${years(horizon)} yr` : `year ${years(y)}`;
 
 function arrivalTable(doc: ResultDocument): TableView {
@@ -252,7 +252,7 @@ export function resultLinks(id: string) {
 }
 
 /** Facts shown at the top of both result pages. */
-function header(stored: StoredResult) {
+export function header(stored: StoredResult) {
   const doc = stored.document;
   const m = doc.model;
   return {
@@ -310,7 +310,7 @@ function uncertaintyTables(doc: ResultDocument): TableView[] | null {
 }
 
 /** Adds the CSV link of each named table. */
-function withCsv<T extends TableView | null>(t: T, base: string): T & { csv?: string } {
+export function withCsv<T extends TableView | null>(t: T, base: string): T & { csv?: string } {
   if (!t) return t as T & { csv?: string };
   return { ...t, csv: t.name ? `${base}/${t.name}.csv` : undefined } as T & { csv?: string };
 }
@@ -355,65 +355,6 @@ export function resultPageView(stored: StoredResult, extras: { briefingUrl?: str
         }
       : null,
     bypass: byp ? { ...byp, table: withCsv(byp.table, base) } : null,
-  };
-}
-
-/** The compare page: options side by side in one table and one chart. */
-export function comparePageView(stored: StoredResult) {
-  const doc = stored.document;
-  const opts = doc.options.map(loose);
-  const row = (label: string, baseline: string, cell: (o: LooseOption, k: number) => string) => ({ label, cells: [baseline, ...opts.map(cell)] });
-  const hasTransport = Boolean(doc.bypass);
-  const rec = recommendationWords(doc);
-  const rows = [
-    row('Verdict', 'no clearing', (o, k) => (o.verdict ? verdictWords(doc, k).label : NOT_COMPUTED)),
-    ...(hasTransport
-      ? [row('People carrying the pest past it (established colony beyond)', 'not assessed without a clearing', (_, k) => {
-          const t = transportNote(doc, k);
-          return t ? `${t.short}${t.decides ? ' — transport decides' : ''}` : 'not computed';
-        })]
-      : []),
-    row('Clearing', 'none', (o) => optionWhat(o)),
-    row('Recommended minimum width (whole scenario)', rec.widthM === null ? 'none' : `${integer(rec.widthM)} m`, (o) =>
-      rec.widthM === null ? 'none' : o.widthM >= rec.widthM ? 'this option is at least as wide' : `${integer(rec.widthM - o.widthM)} m narrower than recommended`,
-    ),
-    // Each option has its own clearing, so the baseline time for that place is shown in the option's cell.
-    row('Front passes the far edge of the clearing', 'no clearing', (o) =>
-      o.crossingYears
-        ? `${o.pinned ? 'never: held' : yearOrNot(o.crossingYears.option, doc.horizonYears)} (without it: ${yearOrNot(o.crossingYears.baseline, doc.horizonYears)})`
-        : NOT_COMPUTED,
-    ),
-    ...doc.baseline.arrivals.map((a, i) =>
-      row(`At ${a.name} (km ${km(a.atKm)})`, a.arrivalYears === null ? `not reached within ${years(doc.horizonYears)} yr` : `pest arrives year ${years(a.arrivalYears)}`, (_, k) => siteEvent(doc, k, i).text),
-    ),
-    row('Host trees removed', '0', (o) => (o.trees ? integer(o.trees.stemsRemoved) : NOT_COMPUTED)),
-    row('Cost', 'nothing cut', (o) => (o.trees ? (o.trees.cost === null ? 'no cost given' : `${integer(o.trees.cost)}${o.trees.costUnit ? ` ${o.trees.costUnit}` : ''}`) : NOT_COMPUTED)),
-    row('Spread rate beyond the clearing', `${baselineSpreadText(doc)} (no clearing)`, (o) => spreadBeyondText(o)),
-    row('Host stems left at the end', percent(doc.baseline.host.remainingFraction), (o) => percent(o.run.host.remainingFraction)),
-    row('Width at which the front stops', 'no clearing', (o) =>
-      !o.criticalWidth ? NOT_COMPUTED : !o.criticalWidth.applicable ? 'no width stops it' : o.criticalWidth.bracketM ? `${integer(o.criticalWidth.bracketM[1])} m (gets through at ${integer(o.criticalWidth.bracketM[0])} m)` : 'not found',
-    ),
-  ];
-  const table: TableView = { name: 'side-by-side', caption: 'Options side by side', head: ['', 'No clearing', ...opts.map((_, k) => keyed(doc, k))], rows };
-  return {
-    ...header(stored),
-    headline: headline(doc),
-    headlineTone: doc.options.some((_, k) => transportNote(doc, k)?.decides) ? 'partial' : 'plain',
-    hasOptions: doc.options.length > 0,
-    table: withCsv(table, resultLinks(stored.id).tables),
-    chart: compareChart(decoratedForChart(doc)),
-  };
-}
-
-/** The document with each option's name carrying its verdict and transport risk, for the side-by-side chart's legend. */
-function decoratedForChart(doc: ResultDocument): ResultDocument {
-  return {
-    ...doc,
-    options: doc.options.map((o, k) => {
-      const w = verdictWords(doc, k);
-      const t = w.transport ? `; transport risk ${w.transport.short}` : '';
-      return { ...o, name: `${o.name}: ${w.label.toLowerCase()}${t}` };
-    }),
   };
 }
 
