@@ -36,6 +36,7 @@ beforeAll(async () => {
   // Movement uncertain (log-normal): the slowest draws do not reach the east end within 8 years, the fastest do
   // (Fisher speed 2√(rD) needs D ≳ 0.35 km²/yr to cover the 8.5 km in time).
   writeFileSync(join(dir, 'ranges.json'), JSON.stringify(scenario({ pest: { ...PEST, diffusionHost: { dist: 'lognormal', median: 0.4, spread: 2 } }, uncertainty: { draws: 12, seed: 5 } })));
+  writeFileSync(join(dir, 'carried.json'), JSON.stringify(scenario({ transport: { ratePerKm2Year: 0.02, kernel: { shape: 'exponential', meanKm: 5 }, establishmentProbability: 0.3 } })));
   writeFileSync(join(dir, 'outside.json'), JSON.stringify(scenario({ infestation: { places: [{ point: [X0 + 20_000, Y0], radiusM: 500 }] } })));
 });
 afterAll(() => rmSync(dir, { recursive: true, force: true }));
@@ -92,6 +93,16 @@ describe('landscape CLI', () => {
     expect(text.stdout).toMatch(new RegExp(`East end: ${Math.round(100 * base.p)} % \\(± ${Math.round(100 * base.standardError)}\\)`));
     const pdf = run([join(dir, 'ranges.json'), '--pdf', join(dir, 'ranges.pdf'), '--quiet']);
     expect(pdf.status, pdf.stderr).toBe(0);
+  });
+
+  it('with a transport block: the chance people carry the pest past each band, in JSON and in words', () => {
+    const r = run([join(dir, 'carried.json'), '--json', '--quiet']);
+    expect(r.status, r.stderr).toBe(0);
+    const t = JSON.parse(r.stdout).options[0].transport;
+    expect(t.expectedColonies).toBeGreaterThan(0);
+    expect(t.probability).toBeCloseTo(1 - Math.exp(-t.expectedColonies), 12);
+    const text = run([join(dir, 'carried.json'), '--quiet']);
+    expect(text.stdout).toContain(`People carrying infested wood: ${Math.round(100 * t.probability)} % chance that at least one carried introduction founds a colony behind the band within 8 years`);
   });
 
   it('an infestation outside the map: the named error, the field and exit 1, nothing printed on stdout', () => {

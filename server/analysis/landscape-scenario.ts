@@ -49,6 +49,8 @@ export interface LandscapeOptionSummary {
   /** The band's 1-D cross-section critical width [m] (a transect result beside the 2-D one), when computed. */
   crossSectionCriticalWidthM: [number, number] | null;
   pinningVerified: boolean;
+  /** People carrying the pest past the band (central values), when the scenario has a transport block. */
+  transport?: { probability: number; expectedColonies: number; halfYears: number | null; blockKm: number };
 }
 
 export interface LandscapeDocument {
@@ -155,6 +157,7 @@ export async function evaluateLandscapeScenario(scenario: LandscapeScenario, fil
     infestedDensity: s.infestation.density,
     costPerStem: s.bands.costPerStem,
     costUnit: s.bands.costUnit,
+    transport: s.transport ? { ratePerKm2Year: s.transport.ratePerKm2Year, establishmentProbability: s.transport.establishmentProbability, kernel: s.transport.kernel } : undefined,
     crossSection: opts.crossSection,
     shouldCancel: opts.shouldCancel,
     onProgress: opts.onProgress,
@@ -207,6 +210,7 @@ export async function evaluateLandscapeScenario(scenario: LandscapeScenario, fil
         },
         crossSectionCriticalWidthM: o.crossSection?.bracketM ?? null,
         pinningVerified: o.pinning.verified,
+        ...(o.transport ? { transport: { probability: o.transport.probability, expectedColonies: o.transport.expectedColonies, halfYears: round2(o.transport.halfYears), blockKm: o.transport.blockKm } } : {}),
       };
     }),
     ...(result.ensemble ? { ensemble: ensembleSummary(result.ensemble, result.options.map((o, k) => ({ key: String.fromCharCode(65 + k), name: o.label }))) } : {}),

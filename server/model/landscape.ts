@@ -2,7 +2,7 @@ import { z } from 'zod';
 import { FIELDS, describeRange, type FieldSpec } from './fields.ts';
 import { PestSchema, NON_HOST_PEST_FIELDS } from './pest.ts';
 import { valueSchema, resolveQuantities, type Resolved } from './quantity.ts';
-import { CalibrationNoteSchema, HostForestSegmentSchema, UncertaintySchema, SCENARIO_VERSION } from './scenario.ts';
+import { CalibrationNoteSchema, HostForestSegmentSchema, TransportSchema, UncertaintySchema, SCENARIO_VERSION } from './scenario.ts';
 import { ScenarioError, pathFromDotted, problemsFromZod, type Problem } from './errors.ts';
 
 /**
@@ -237,6 +237,11 @@ const ObjectSchema = z.strictObject({
   /** Time step [yr]; automatic when absent (the cell size is map.cellM). */
   numerics: z.strictObject({ stepYears: valueSchema(FIELDS.stepYears).optional() }).default({}),
   uncertainty: UncertaintySchema.optional(),
+  /**
+   * People carrying the pest (the transect's transport concept): on a map each trip heads in a random direction
+   * and the map decides where it lands, so the transect's forward share and band width do not apply.
+   */
+  transport: TransportSchema.omit({ forwardShare: true, bandWidthKm: true }).optional(),
   /** Where fitted ranges came from (the map survey fit, server/analysis/calibration/map-fit.ts); the briefing shows it. */
   calibration: CalibrationNoteSchema.optional(),
 });

@@ -11,7 +11,7 @@ import { parseLandscapeScenario, MAX_MODEL_CELLS, type LandscapeScenario } from 
 import { InputError, type Problem } from '../model/errors.ts';
 import { loadLandscape, type LoadedLandscape } from '../domain/gis/load.ts';
 import { hostCoverMap, mapBaseOf } from '../report/maps/index.ts';
-import { ensembleLines } from '../report/landscape/summary.ts';
+import { ensembleLines, transportLine } from '../report/landscape/summary.ts';
 import { problemItems } from './view-models/problems.ts';
 import { notFound } from './plugins/errors.ts';
 import type { WebDeps } from './deps.ts';
@@ -319,6 +319,7 @@ export function resultView(id: string, out: LandscapeOutput) {
       cost: o.cost.total === null ? 'no cost rates given' : `${Math.round(o.cost.total).toLocaleString('en-GB')}${unit(o.cost)}`,
       critical: o.crossSectionCriticalWidthM ? `${Math.round(o.crossSectionCriticalWidthM[0])}–${Math.round(o.crossSectionCriticalWidthM[1])} m` : null,
       pinningVerified: o.pinningVerified,
+      transport: transportLine(d, o),
     })),
     baseMap,
     maps: out.maps.slice(1),

@@ -35,6 +35,15 @@ describe('landscape scenario schema', () => {
     expect(isLandscapeInput({ transect: {} })).toBe(false);
   });
 
+  it('reuses the transport schema without the transect-only fields (a forward share is refused by name)', () => {
+    const transport = { ratePerKm2Year: 0.01, kernel: { shape: 'exponential', meanKm: 20 }, establishmentProbability: 0.2 };
+    expect(parseLandscapeScenario({ ...base, transport }).transport).toEqual(transport);
+    const bad = problems({ ...base, transport: { ...transport, forwardShare: 0.5 } });
+    expect(bad.map((p) => p.path).join(' ')).toMatch(/transport/);
+    expect(bad.map((p) => `${p.path} ${p.message}`).join(' ')).toMatch(/forwardShare/);
+    expect(problems({ ...base, transport: { ...transport, establishmentProbability: 2 } })[0].path).toBe('transport.establishmentProbability');
+  });
+
   it('reuses the pest schema (a bad pest field is reported under pest.)', () => {
     expect(problems({ ...base, pest: { ...base.pest, diffusionHost: -1 } })).toEqual([
       { path: 'pest.diffusionHost', value: -1, message: 'must be > 0 and ≤ 1000 km²/yr' },

@@ -10,6 +10,8 @@ import { fringeMatters, type RawRun } from './run.ts';
 import { bandDepth, bottleneckArrival } from './paths.ts';
 import { crossSection, stockingAroundBand } from './cross-section.ts';
 import type { HoldSettings } from './holds.ts';
+import { mapTransportRisk, type MapTransportRisk } from './transport.ts';
+import { makeSurvivalKernel } from '../bypass/bypass.ts';
 import type {
   LandscapeOptionResult,
   LandscapeRun,
@@ -321,5 +323,24 @@ export function finishOption(plan: EvaluationPlan, f: OptionFacts, pinning: Land
       optionKmPerYear: first && first.optionArrivalYears ? dBase / first.optionArrivalYears : null,
     },
     crossSection: settings.crossSection === false ? null : cachedCrossSection(),
+    transport: settings.transport ? transportRisk(plan, f) : null,
   };
+}
+
+/** People carrying the pest past the option's band, from the option run's infested area over time. */
+function transportRisk(plan: EvaluationPlan, f: OptionFacts): MapTransportRisk {
+  const t = plan.settings.transport!;
+  return mapTransportRisk({
+    nx: plan.l.nx,
+    ny: plan.l.ny,
+    cellKm: f.p.mesh.cellKm,
+    hostAtCells: f.p.hostAtCells,
+    bandAtCells: f.p.bandAtCells!,
+    detected: f.raw.detected,
+    u0: f.p.u0,
+    horizonYears: plan.settings.horizonYears,
+    ratePerKm2Year: t.ratePerKm2Year,
+    establishmentProbability: t.establishmentProbability,
+    kernel: makeSurvivalKernel(t.kernel),
+  });
 }

@@ -7,6 +7,8 @@
  * JSON: typed-array fields (`ArrivalField.years`) do not survive JSON.stringify; write them with
  * `fieldToJson` (below) or as a GeoTIFF. Everything else is plain data.
  */
+import type { MapTransportRisk } from './transport.ts';
+import type { PointKernel } from '../bypass/bypass.ts';
 import type { ProbabilityEstimate, VerdictKind } from '../result.ts';
 
 export const LANDSCAPE_RESULT_VERSION = 1;
@@ -130,6 +132,8 @@ export interface LandscapeOptionResult {
     phasePlaneM: number | null;
     note: string;
   } | null;
+  /** People carrying the pest past the band (analysis/landscape/transport.ts); null without a transport block. */
+  transport: MapTransportRisk | null;
 }
 
 /** Ensemble over the pest's distributions at a coarser cell: P(site reached by the horizon) per option. */
@@ -189,6 +193,8 @@ export interface LandscapeSettings {
   /** Cost per host stem removed and its unit (cost is null without it). */
   costPerStem?: number;
   costUnit?: string;
+  /** Human-carried introductions (central values): rate per km² of infested forest per year, kernel, establishment. */
+  transport?: { ratePerKm2Year: number; establishmentProbability: number; kernel: PointKernel };
   /** Run the band cross-section's 1-D critical-width analysis (default true; the costly part). */
   crossSection?: boolean;
   /** Checked between steps; when it returns true the evaluation stops with a CancelledError. */

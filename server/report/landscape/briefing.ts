@@ -13,7 +13,7 @@ import { FONT } from '../pdf/fonts.ts';
 import { Flow, type Column } from '../pdf/flow.ts';
 import { drawChart } from '../pdf/chart.ts';
 import { years } from '../format.ts';
-import { ensembleLines, treesCostText } from './summary.ts';
+import { ensembleLines, transportLine, treesCostText } from './summary.ts';
 import type { IdMap } from '../maps/index.ts';
 
 export interface LandscapeBriefingOptions {
@@ -101,10 +101,12 @@ function cover(flow: Flow, doc: LandscapeDocument): void {
     const head = `${o.key}. ${o.name}`;
     const line = optionBottomLine(o);
     const trees = `${treesCostText(o)}.`;
-    flow.ensure(flow.measure(head, { font: FONT.bold }) + flow.measure(line) + flow.measure(trees, { size: 8.5 }) + 8);
+    const carried = transportLine(doc, o);
+    flow.ensure(flow.measure(head, { font: FONT.bold }) + flow.measure(line) + flow.measure(trees, { size: 8.5 }) + (carried ? flow.measure(carried, { size: 8.5 }) : 0) + 8);
     flow.text(head, { font: FONT.bold, after: 1 });
     flow.text(line, { indent: 14, after: 1 });
-    flow.text(trees, { indent: 14, size: 8.5, color: '#333333', after: 6 });
+    flow.text(trees, { indent: 14, size: 8.5, color: '#333333', after: carried ? 1 : 6 });
+    if (carried) flow.text(carried, { indent: 14, size: 8.5, color: '#333333', after: 6 });
   }
   const ens = ensembleLines(doc);
   if (ens) {

@@ -15,6 +15,21 @@ export function treesCostText(o: LandscapeDocument['options'][number]): string {
   return `${integer(o.treesRemoved)} host trees removed on ${o.bandAreaHa.toFixed(1)} ha${cost}`;
 }
 
+/**
+ * People carrying the pest past a band, in one sentence (summary, briefing and web page share it); null
+ * without a transport estimate.
+ */
+export function transportLine(doc: LandscapeDocument, o: LandscapeDocument['options'][number]): string | null {
+  const t = o.transport;
+  if (!t) return null;
+  const p = t.probability < 0.005 ? 'under 1 %' : t.probability > 0.995 ? 'over 99 %' : `${Math.round(100 * t.probability)} %`;
+  const half = t.halfYears !== null ? `; it passes 50 % in year ${years(t.halfYears)}` : '';
+  return (
+    `People carrying infested wood: ${p} chance that at least one carried introduction founds a colony behind the band within ${doc.horizonYears} years ` +
+    `(${t.expectedColonies < 0.01 ? t.expectedColonies.toExponential(1) : t.expectedColonies.toFixed(2)} colonies expected${half}). A rough estimate from the transport rates given; the band does nothing against it.`
+  );
+}
+
 const pct = (p: number, se: number) => `${Math.round(100 * p)} % (± ${Math.round(100 * se)})`;
 
 /**
@@ -49,6 +64,8 @@ export function landscapeTextSummary(doc: LandscapeDocument): string {
     out.push(`   Way past: ${WAY_WORDS[o.wayPast] ?? o.wayPast}. ${o.wayPastSentence}`);
     for (const a of o.arrivals) out.push(`   ${a.site}: ${a.sentence}`);
     out.push(`   ${treesCostText(o)}.`);
+    const tl = transportLine(doc, o);
+    if (tl) out.push(`   ${tl}`);
     if (o.crossSectionCriticalWidthM) out.push(`   Band cross-section (1-D transect across the band): critical width between ${Math.round(o.crossSectionCriticalWidthM[0])} and ${Math.round(o.crossSectionCriticalWidthM[1])} m.`);
   });
   const ens = ensembleLines(doc);
