@@ -65,3 +65,15 @@ export function makeLandscape(spec: LandscapeSpec): RasterLandscape {
     }),
   };
 }
+
+/** An invented logistic test pest for small maps (edge avoidance, mortality in the open, no host loss). */
+export const LOGISTIC_TEST_PEST = {
+  name: 'test pest (invented)',
+  illustrative: true,
+  diffusionHost: 0.25,
+  diffusionOpen: 0.25,
+  edgePreferenceOpen: 0.8,
+  growth: { form: 'logistic', rate: 1 },
+  hostKillRate: 0,
+  mortalityOpen: 2,
+} as const;

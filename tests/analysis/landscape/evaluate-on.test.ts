@@ -6,23 +6,14 @@
  * checked; the verdicts themselves are checked against published results in tests/verification/.
  */
 import { afterAll, describe, expect, it } from 'vitest';
-import { makeLandscape } from '../../helpers/landscape.ts';
+import { LOGISTIC_TEST_PEST, makeLandscape } from '../../helpers/landscape.ts';
 import { evaluateLandscape, evaluateLandscapeOn } from '../../../server/analysis/landscape/evaluate.ts';
 import { makeInlineRunner } from '../../../server/jobs/inline-runner.ts';
 import { makePoolRunner } from '../../../server/jobs/pool-runner.ts';
 import { CancelledError } from '../../../server/jobs/task-runner.ts';
 import type { PointPest } from '../../../server/analysis/landscape/problem.ts';
 
-const logistic = {
-  name: 'test pest (invented)',
-  illustrative: true,
-  diffusionHost: 0.25,
-  diffusionOpen: 0.25,
-  edgePreferenceOpen: 0.8,
-  growth: { form: 'logistic', rate: 1 },
-  hostKillRate: 0,
-  mortalityOpen: 2,
-} as PointPest;
+const logistic = LOGISTIC_TEST_PEST as unknown as PointPest;
 
 // 6 × 4 km at 100 m; infested west strip; a site in the east; a short band and one across the map.
 const open = makeLandscape({

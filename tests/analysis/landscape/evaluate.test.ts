@@ -3,22 +3,13 @@
  * spanning the map), trees removed against area × density, cost, settings errors.
  */
 import { describe, expect, it } from 'vitest';
-import { makeLandscape } from '../../helpers/landscape.ts';
+import { LOGISTIC_TEST_PEST, makeLandscape } from '../../helpers/landscape.ts';
 import { evaluateLandscape } from '../../../server/analysis/landscape/evaluate.ts';
 import { fieldToJson } from '../../../server/analysis/landscape/result.ts';
 import { InputError } from '../../../server/model/errors.ts';
 import type { PointPest } from '../../../server/analysis/landscape/problem.ts';
 
-const pest: PointPest = {
-  name: 'test pest (invented)',
-  illustrative: true,
-  diffusionHost: 0.25,
-  diffusionOpen: 0.25,
-  edgePreferenceOpen: 0.8,
-  growth: { form: 'logistic', rate: 1 },
-  hostKillRate: 0,
-  mortalityOpen: 2,
-} as PointPest;
+const pest = LOGISTIC_TEST_PEST as unknown as PointPest;
 
 // 12 × 8 km at 100 m; infested west strip; a site in the east; a short band (4 km of 8) and one across the map.
 const L = makeLandscape({
