@@ -17,6 +17,7 @@ import { notFound } from './plugins/errors.ts';
 import type { WebDeps } from './deps.ts';
 import type { LandscapeDemo } from './landscape-catalogue.ts';
 import type { LandscapeJobs, LandscapeJobView, LandscapeOutput } from './landscape-jobs.ts';
+import { applyPostedPest, pestFieldsets, postedPest } from './landscape-pest-form.ts';
 import { applyBandAction, bandsToRows, MAX_BAND_ROWS, rowsFromBody, rowsToBands, type BandRow } from './landscape-bands-form.ts';
 
 export interface LandscapeDeps extends WebDeps {
@@ -102,7 +103,7 @@ export default async function landscapePages(app: FastifyInstance, deps: Landsca
     return out;
   };
 
-  const bandsPage = async (reply: FastifyReply, base: Base, rows: BandRow[], problems: Problem[] = [], status = 200) => {
+  const bandsPage = async (reply: FastifyReply, base: Base, rows: BandRow[], problems: Problem[] = [], status = 200, posted: Record<string, string> | null = null) => {
     const pv = await preview(base);
     const s = base.raw as { bands?: { costPerStem?: number; costPerHa?: number; costUnit?: string }; horizonYears?: number; coordinates?: string };
     const lonlat = s.coordinates === 'lonlat';
@@ -125,6 +126,7 @@ export default async function landscapePages(app: FastifyInstance, deps: Landsca
         coordsWord: lonlat ? 'longitude latitude [°]' : 'x y in the map CRS [m]',
         lonlat,
         preview: pv,
+        pestGroups: pestFieldsets((base.raw.pest as Record<string, unknown>) ?? {}, posted, problems),
         problems: problemItems(problems),
         horizonYears: s.horizonYears,
         scripts: ['/assets/landscape.js', ...(problems.length ? ['/assets/focus-problems.js'] : [])],
@@ -137,12 +139,14 @@ export default async function landscapePages(app: FastifyInstance, deps: Landsca
   const postBands = async (reply: FastifyReply, base: Base, body: Record<string, unknown>) => {
     const action = typeof body.action === 'string' ? body.action : 'run';
     const rows = rowsFromBody(body);
-    if (action !== 'run') return bandsPage(reply, base, applyBandAction(rows, action));
+    const posted = postedPest(body);
+    if (action !== 'run') return bandsPage(reply, base, applyBandAction(rows, action), [], 200, posted);
     const { options, problems } = rowsToBands(rows);
-    if (problems.length) return bandsPage(reply, base, rows, problems, 400);
+    if (problems.length) return bandsPage(reply, base, rows, problems, 400, posted);
     const raw = clone(base.raw);
     raw.bands = { ...((raw.bands as object) ?? {}), options };
-    return start(reply, raw, base.files, base.source, base.cellNote, (p, st) => bandsPage(reply, base, rows, p, st));
+    raw.pest = applyPostedPest((raw.pest as Record<string, unknown>) ?? {}, posted);
+    return start(reply, raw, base.files, base.source, base.cellNote, (p, st) => bandsPage(reply, base, rows, p, st, posted));
   };
 
   /** Validates the scenario and its map (every named map error, by field) before the job is queued. */
