@@ -77,22 +77,33 @@ const EvaluationRequest = z
 const LIMIT_RANGE = 'must be a whole number from 1 to 500';
 const errors = { 400: ErrorSchema, 404: ErrorSchema };
 
+/** Registers the JSON API (OpenAPI at /api/openapi.json), one group of routes per concern. */
 export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
-  const { store, catalogue, jobs, limits } = deps;
+  scenarioApi(app, deps);
+  evaluationApi(app, deps);
+  resultApi(app, deps);
+  briefingApi(app, deps);
+  referenceApi(app, deps);
+}
+
+/** The scenario of a reference, or a 404 naming it. */
+function entryOr404(deps: WebDeps, ref: string) {
+  const e = deps.catalogue.get(ref);
+  if (!e) throw notFound(`Scenario "${ref}"`);
+  return e;
+}
+
+/** An evaluation job's payload with its result id, or the unknown-job error. */
+function withResultId(deps: WebDeps, id: string) {
+  const job = deps.jobs.get(id);
+  if (!job) throw unknownJob();
+  return { ...jobPayload(job, deps.jobs.stopping), resultId: job.resultId };
+}
+
+/** Demo and saved scenarios: list, fetch, save, replace, delete. */
+function scenarioApi(app: FastifyInstance, deps: WebDeps): void {
+  const { store, catalogue } = deps;
   const api = app.withTypeProvider<ZodTypeProvider>();
-
-  const entryOr404 = (ref: string) => {
-    const e = catalogue.get(ref);
-    if (!e) throw notFound(`Scenario "${ref}"`);
-    return e;
-  };
-  const withResultId = (id: string) => {
-    const job = jobs.get(id);
-    if (!job) throw unknownJob();
-    return { ...jobPayload(job, jobs.stopping), resultId: job.resultId };
-  };
-
-  // ---- scenarios ------------------------------------------------------------------------------
   api.get('/api/scenarios', { schema: { tags: ['scenarios'], summary: 'List demo and saved scenarios', response: { 200: z.object({ scenarios: z.array(ScenarioItem) }) } } }, async () => ({
     scenarios: catalogue.list(),
   }));
@@ -111,7 +122,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
     '/api/scenarios/:ref',
     { schema: { tags: ['scenarios'], summary: 'Fetch one scenario', params: RefParams, response: { 200: ScenarioEntry, ...errors } } },
     async (req) => {
-      const e = entryOr404(req.params.ref);
+      const e = entryOr404(deps, req.params.ref);
       return { ref: e.ref, kind: e.kind, readOnly: e.readOnly, scenario: e.scenario };
     },
   );
@@ -129,7 +140,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
       },
     },
     async (req) => {
-      const e = entryOr404(req.params.ref);
+      const e = entryOr404(deps, req.params.ref);
       const id = savedId(e.ref);
       if (e.readOnly || id === undefined) throw conflict('Demo scenarios are read-only; POST /api/scenarios saves a copy.');
       const saved = store.updateScenario(id, req.body as Scenario)!;
@@ -141,7 +152,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
     '/api/scenarios/:ref',
     { config: deps.formPost, schema: { tags: ['scenarios'], summary: 'Delete a saved scenario', params: RefParams, response: { 204: z.undefined(), 409: ErrorSchema, ...errors } } },
     async (req, reply) => {
-      const e = entryOr404(req.params.ref);
+      const e = entryOr404(deps, req.params.ref);
       const id = savedId(e.ref);
       if (e.readOnly || id === undefined) throw conflict('Demo scenarios cannot be deleted.');
       store.deleteScenario(id);
@@ -149,7 +160,12 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
     },
   );
 
-  // ---- evaluations ----------------------------------------------------------------------------
+}
+
+/** Evaluations: start (202, durable job), poll, progress, cancel. */
+function evaluationApi(app: FastifyInstance, deps: WebDeps): void {
+  const { store, jobs, limits } = deps;
+  const api = app.withTypeProvider<ZodTypeProvider>();
   api.post(
     '/api/evaluations',
     {
@@ -172,7 +188,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
     },
     async (req, reply) => {
       const body = req.body as { scenarioRef?: string; scenario?: Scenario };
-      const entry = body.scenarioRef !== undefined ? entryOr404(body.scenarioRef) : undefined;
+      const entry = body.scenarioRef !== undefined ? entryOr404(deps, body.scenarioRef) : undefined;
       const scenario = entry ? entry.scenario : body.scenario!;
       try {
         checkLimits(scenario, limits);
@@ -184,14 +200,14 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
       store.checkSpace();
       const job = jobs.submit({ scenario, scenarioRef: entry?.ref ?? null });
       reply.code(202).header('location', `/api/evaluations/${job.id}`);
-      return withResultId(job.id);
+      return withResultId(deps, job.id);
     },
   );
 
   api.get(
     '/api/evaluations/:id',
     { schema: { tags: ['evaluations'], summary: 'State and progress of an evaluation', params: IdParams, response: { 200: JobSchema, ...errors } } },
-    async (req) => withResultId(req.params.id),
+    async (req) => withResultId(deps, req.params.id),
   );
 
   api.post(
@@ -200,7 +216,7 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
     async (req, reply) => {
       if (!jobs.cancel(req.params.id)) throw unknownJob();
       reply.code(202);
-      return withResultId(req.params.id);
+      return withResultId(deps, req.params.id);
     },
   );
 
@@ -221,7 +237,12 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
     },
   );
 
-  // ---- results --------------------------------------------------------------------------------
+}
+
+/** Stored results: list, fetch, delete, the exports. */
+function resultApi(app: FastifyInstance, deps: WebDeps): void {
+  const { store } = deps;
+  const api = app.withTypeProvider<ZodTypeProvider>();
   api.get(
     '/api/results',
     {
@@ -260,31 +281,37 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
     async (req, reply) => download(reply, 'application/pdf', briefingName(req.params.id), await briefingNow(deps.briefings, req.params.id)),
   );
 
-  const BriefingJob = z
-    .object({
-      id: z.string(),
-      status: z.enum(['queued', 'running', 'cancelling', 'done', 'cancelled', 'failed']),
-      finished: z.boolean(),
-      resultId: z.string(),
-      title: z.string(),
-      createdAt: z.string(),
-      message: z.string(),
-      resumed: z.boolean().describe('Drawn again after a server restart'),
-      pdfUrl: z.string().nullable().describe('Where the PDF is, once drawn'),
-    })
-    .describe('A PDF briefing being drawn (a durable job: kept across server restarts)');
-  const briefingOut = (v: BriefingJobView) => ({
-    id: v.id,
-    status: v.status,
-    finished: v.status === 'done' || v.status === 'failed',
-    resultId: v.resultId,
-    title: v.title,
-    createdAt: v.createdAt,
-    message: v.message,
-    resumed: v.resumed > 0,
-    pdfUrl: v.status === 'done' ? `/api/briefings/${v.id}/pdf` : null,
-  });
+}
 
+const BriefingJob = z
+  .object({
+    id: z.string(),
+    status: z.enum(['queued', 'running', 'cancelling', 'done', 'cancelled', 'failed']),
+    finished: z.boolean(),
+    resultId: z.string(),
+    title: z.string(),
+    createdAt: z.string(),
+    message: z.string(),
+    resumed: z.boolean().describe('Drawn again after a server restart'),
+    pdfUrl: z.string().nullable().describe('Where the PDF is, once drawn'),
+  })
+  .describe('A PDF briefing being drawn (a durable job: kept across server restarts)');
+const briefingOut = (v: BriefingJobView) => ({
+  id: v.id,
+  status: v.status,
+  finished: v.status === 'done' || v.status === 'failed',
+  resultId: v.resultId,
+  title: v.title,
+  createdAt: v.createdAt,
+  message: v.message,
+  resumed: v.resumed > 0,
+  pdfUrl: v.status === 'done' ? `/api/briefings/${v.id}/pdf` : null,
+});
+
+/** PDF briefings of stored results as durable jobs. */
+function briefingApi(app: FastifyInstance, deps: WebDeps): void {
+  const { store } = deps;
+  const api = app.withTypeProvider<ZodTypeProvider>();
   api.post(
     '/api/results/:id/briefings',
     {
@@ -350,7 +377,12 @@ export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {
     },
   );
 
-  // ---- reference ------------------------------------------------------------------------------
+}
+
+/** Reference: field table, limits, the OpenAPI document. */
+function referenceApi(app: FastifyInstance, deps: WebDeps): void {
+  const { limits } = deps;
+  const api = app.withTypeProvider<ZodTypeProvider>();
   api.get(
     '/api/fields',
     {
