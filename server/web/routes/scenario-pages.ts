@@ -52,8 +52,15 @@ function readBackValues(scenario: Scenario, read: string | undefined): string {
 /** Largest scenario file accepted by upload [bytes]. */
 export const UPLOAD_LIMIT_BYTES = 1_000_000;
 
+/** What the page groups share: the scenario of a reference (or a 404) and the list page. */
+interface PageKit {
+  entryOr404(ref: string): CatalogueEntry;
+  listPage(reply: FastifyReply, extra?: { uploadProblems?: Problem[]; notice?: string }, status?: number): unknown;
+}
+
 export default async function scenarioPages(app: FastifyInstance, deps: WebDeps) {
-  const { store, catalogue, jobs, limits } = deps;
+  const { store, catalogue } = deps;
+
 
   const entryOr404 = (ref: string): CatalogueEntry => {
     const e = catalogue.get(ref);
@@ -85,7 +92,17 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
     return listPage(reply, { notice: q.deleted ? 'The scenario was deleted.' : '' });
   });
 
-  // ---- the form -------------------------------------------------------------------------------
+  const kit: PageKit = { entryOr404, listPage };
+  formPages(app, deps, kit);
+  overviewPages(app, deps, kit);
+  jsonEditorPages(app, deps, kit);
+  fileActionPages(app, deps, kit);
+}
+
+/** The scenario form: new and edit, save and "save and run". */
+function formPages(app: FastifyInstance, deps: WebDeps, kit: PageKit): void {
+  const { store, jobs, limits } = deps;
+  const { entryOr404 } = kit;
   interface FormTarget {
     entry?: CatalogueEntry;
   }
@@ -176,7 +193,12 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
     handleForm(req, reply, { entry: entryOr404(req.params.ref) }, true),
   );
 
-  // ---- overview, run, download ----------------------------------------------------------------
+}
+
+/** A scenario's overview, its run button and its JSON download. */
+function overviewPages(app: FastifyInstance, deps: WebDeps, kit: PageKit): void {
+  const { store, jobs, limits } = deps;
+  const { entryOr404 } = kit;
   app.get<RefParams>('/scenarios/:ref', async (req, reply) => {
     const entry = entryOr404(req.params.ref);
     const q = req.query as Record<string, string>;
@@ -203,7 +225,12 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
     return download(reply, 'application/json; charset=utf-8', name, `${JSON.stringify(entry.scenario, null, 2)}\n`);
   });
 
-  // ---- JSON editor ----------------------------------------------------------------------------
+}
+
+/** The JSON editor of a saved scenario. */
+function jsonEditorPages(app: FastifyInstance, deps: WebDeps, kit: PageKit): void {
+  const { store } = deps;
+  const { entryOr404 } = kit;
   const jsonPage = (reply: FastifyReply, entry: CatalogueEntry, text: string, problems: Problem[], status: number, notice = '') =>
     reply.page(
       'scenario-json',
@@ -238,7 +265,12 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
     return reply.redirect(`/scenarios/${ref}?saved=1`, 303);
   });
 
-  // ---- upload, duplicate, delete --------------------------------------------------------------
+}
+
+/** Upload, duplicate and delete. */
+function fileActionPages(app: FastifyInstance, deps: WebDeps, kit: PageKit): void {
+  const { store } = deps;
+  const { entryOr404, listPage } = kit;
   app.post('/scenarios/upload', { config: deps.formPost }, async (req, reply) => {
     if (!req.isMultipart()) {
       return listPage(reply, { uploadProblems: [{ path: 'file', value: undefined, message: 'choose a scenario file (.json) to upload' }] }, 400);
