@@ -338,6 +338,7 @@ function transportRisk(plan: EvaluationPlan, f: OptionFacts): MapTransportRisk {
     bandAtCells: f.p.bandAtCells!,
     detected: f.raw.detected,
     u0: f.p.u0,
+    infestedAtCells: plan.l.infestedAtCells,
     horizonYears: plan.settings.horizonYears,
     ratePerKm2Year: t.ratePerKm2Year,
     establishmentProbability: t.establishmentProbability,

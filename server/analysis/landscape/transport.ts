@@ -36,6 +36,8 @@ export interface MapTransportInput {
   detected: Float32Array;
   /** Infestation at the start (its density-weighted centre is where "behind" is seen from). */
   u0: Float64Array;
+  /** Share of each cell infested at the start, before the band is cut (band cells inside it cast no shadow). */
+  infestedAtCells: ArrayLike<number>;
   horizonYears: number;
   /** σ [introductions per km² of infested forest per year] and p [share that found a colony]. */
   ratePerKm2Year: number;
@@ -59,8 +61,11 @@ export interface MapTransportRisk {
   behindKm2: number;
 }
 
-/** 1 for host cells behind the band as seen from the infestation's centre (an angular sweep over the band cells). */
-export function behindBand(nx: number, ny: number, hostAtCells: Uint8Array, bandAtCells: Uint8Array, u0: Float64Array): Uint8Array {
+/**
+ * 1 for host cells behind the band as seen from the infestation's centre (an angular sweep over the band
+ * cells). Band cells cut through the infestation itself shield nothing: the pest is on both sides of them.
+ */
+export function behindBand(nx: number, ny: number, hostAtCells: Uint8Array, bandAtCells: Uint8Array, u0: Float64Array, infestedAtCells?: ArrayLike<number>): Uint8Array {
   let sx = 0;
   let sy = 0;
   let m = 0;
@@ -81,12 +86,14 @@ export function behindBand(nx: number, ny: number, hostAtCells: Uint8Array, band
   const nearest = new Float64Array(BINS).fill(Infinity);
   const binOf = (a: number) => ((Math.floor(((a + Math.PI) / (2 * Math.PI)) * BINS) % BINS) + BINS) % BINS;
   for (let k = 0; k < bandAtCells.length; k++) {
-    if (!bandAtCells[k]) continue;
+    if (!bandAtCells[k] || (infestedAtCells && infestedAtCells[k] > 0)) continue;
     const dx = (k % nx) + 0.5 - cx;
     const dy = Math.floor(k / nx) + 0.5 - cy;
     const d = Math.hypot(dx, dy);
+    // A band cell at the infestation's centre casts no shadow (it would put the whole map behind).
+    if (d < 1) continue;
     const a = Math.atan2(dy, dx);
-    const half = d > 0.71 ? Math.asin(Math.min(1, 0.7072 / d)) : Math.PI;
+    const half = Math.asin(Math.min(1, 0.7072 / d));
     const b0 = Math.floor(((a - half + Math.PI) / (2 * Math.PI)) * BINS);
     const b1 = Math.floor(((a + half + Math.PI) / (2 * Math.PI)) * BINS);
     for (let b = b0; b <= b1; b++) {
@@ -105,7 +112,7 @@ export function behindBand(nx: number, ny: number, hostAtCells: Uint8Array, band
 
 export function mapTransportRisk(t: MapTransportInput): MapTransportRisk {
   const { nx, ny, cellKm, detected } = t;
-  const behind = behindBand(nx, ny, t.hostAtCells, t.bandAtCells, t.u0);
+  const behind = behindBand(nx, ny, t.hostAtCells, t.bandAtCells, t.u0, t.infestedAtCells);
   const cellsPerBlock = Math.max(1, Math.round((t.blockKm ?? Math.max(cellKm, (Math.max(nx, ny) * cellKm) / 40)) / cellKm));
   const s = cellsPerBlock * cellKm;
   const bx = Math.ceil(nx / cellsPerBlock);

@@ -37,7 +37,7 @@ describe('people carrying the pest past a band on the map', () => {
     const R2 = 3.4;
     const m = ringMap(3.0, R2, 0.15);
     const T = 10;
-    const r = mapTransportRisk({ nx: N, ny: N, cellKm: CELL, hostAtCells: m.host, bandAtCells: m.band, detected: m.detected, u0: m.u0, horizonYears: T, ratePerKm2Year: 0.2, establishmentProbability: 0.5, kernel: makeSurvivalKernel({ shape: 'exponential', meanKm: mu }) });
+    const r = mapTransportRisk({ nx: N, ny: N, cellKm: CELL, hostAtCells: m.host, bandAtCells: m.band, detected: m.detected, u0: m.u0, infestedAtCells: m.u0, horizonYears: T, ratePerKm2Year: 0.2, establishmentProbability: 0.5, kernel: makeSurvivalKernel({ shape: 'exponential', meanKm: mu }) });
     // Share leaving the 40 × 40 km map from its centre: (1/2π) ∫ e^(−ρ(θ)/μ) dθ, ρ(θ) = 20 / max(|cos θ|, |sin θ|).
     let out = 0;
     const M = 20000;
@@ -69,6 +69,19 @@ describe('people carrying the pest past a band on the map', () => {
     expect(at(18, 5)).toBe(1); // the shadow widens with distance (the line from x = −10 crosses the band)
     expect(at(10, 10)).toBe(0); // past the band's end
     expect(at(0, 0)).toBe(0); // on the near side
+    // A band cut across the infestation (x = −10) from y = −4 to 4 km: its cells inside the infested disc
+    // shield nothing, so the ground straight ahead is not behind; its arms still shadow the land beyond them.
+    const across = new Uint8Array(N * N);
+    const infested = new Float32Array(N * N);
+    for (let k = 0; k < N * N; k++) {
+      const [x, y] = centre(k);
+      if (Math.abs(x + 10) < 0.2 && Math.abs(y) < 4) across[k] = 1;
+      if (Math.hypot(x + 10, y) < 0.5) infested[k] = 1;
+    }
+    const b2 = behindBand(N, N, host, across, u0, infested);
+    const at2 = (x: number, y: number) => b2[Math.floor((y + 20) / CELL) * N + Math.floor((x + 20) / CELL)];
+    expect(at2(10, 0)).toBe(0);
+    expect(at2(-10, 8)).toBe(1);
   });
 
   it('straight band, growing infestation, table kernel: matches a Monte Carlo simulation of the introductions within 4 %', () => {
@@ -86,7 +99,7 @@ describe('people carrying the pest past a band on the map', () => {
     }
     const kernel = { shape: 'table' as const, points: [{ distanceKm: 0, shareBeyond: 1 }, { distanceKm: 5, shareBeyond: 0.4 }, { distanceKm: 15, shareBeyond: 0.05 }, { distanceKm: 30, shareBeyond: 0 }] };
     const T = 10;
-    const r = mapTransportRisk({ nx: N, ny: N, cellKm: CELL, hostAtCells: host, bandAtCells: band, detected, u0, horizonYears: T, ratePerKm2Year: 0.05, establishmentProbability: 0.3, kernel: makeSurvivalKernel(kernel) });
+    const r = mapTransportRisk({ nx: N, ny: N, cellKm: CELL, hostAtCells: host, bandAtCells: band, detected, u0, infestedAtCells: u0, horizonYears: T, ratePerKm2Year: 0.05, establishmentProbability: 0.3, kernel: makeSurvivalKernel(kernel) });
     const behind = behindBand(N, N, host, band, u0);
     // Monte Carlo: time uniform on [0, T]; a source cell uniform among the near-side infested host cells then;
     // a point uniform in it; direction uniform; distance by inverting the table's survival function.
