@@ -82,13 +82,22 @@ export class PinningJudge {
     let hBeyond = 0;
     this.thetaAtCells = new Float64Array(grid.nCells).fill(Infinity);
     let capMax = 0;
+    // Cells share a few stocking values: each equilibrium and threshold (a bisection over a quadrature) is
+    // computed once per value, the same numbers as per cell.
+    const capacityAt = new Map<number, number>();
+    const thetaAt = new Map<number, number>();
     for (let i = 0; i < grid.nCells; i++) {
       if (!hostAtCells[i]) continue;
-      capMax = Math.max(capMax, equilibria(s.pest.growth, stockingAtCells[i]).capacity ?? 0);
-      if (isBeyond(geometry, grid.centersKm[i]) && stockingAtCells[i] > 0) {
+      const h = stockingAtCells[i];
+      let cap = capacityAt.get(h);
+      if (cap === undefined) capacityAt.set(h, (cap = equilibria(s.pest.growth, h).capacity ?? 0));
+      capMax = Math.max(capMax, cap);
+      if (isBeyond(geometry, grid.centersKm[i]) && h > 0) {
         this.beyondHost.push(i);
-        hBeyond = Math.max(hBeyond, stockingAtCells[i]);
-        this.thetaAtCells[i] = potentialThreshold(s.pest.growth, stockingAtCells[i]) ?? 0;
+        hBeyond = Math.max(hBeyond, h);
+        let theta = thetaAt.get(h);
+        if (theta === undefined) thetaAt.set(h, (theta = potentialThreshold(s.pest.growth, h) ?? 0));
+        this.thetaAtCells[i] = theta;
       }
     }
     this.mode = this.beyondHost.length ? pinningMode(s, hBeyond) : 'none';
