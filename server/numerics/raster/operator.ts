@@ -15,7 +15,26 @@
  * (0 at the east end of a row or where either side is outside), `gy[k]` the face between k and k+nx. Cells
  * outside the mesh have zero conductances and stay at u = 0.
  */
-import type { RasterMesh } from '../../domain/raster-mesh.ts';
+/**
+ * What the operator reads of a raster mesh (domain/raster-mesh.ts's RasterMesh has these members): cells,
+ * their raster index, the interior faces with their two cells and the lethal faces per cell. Declared here
+ * so that numerics imports nothing from the layers above it.
+ */
+export interface RasterFaces {
+  readonly nx: number;
+  readonly ny: number;
+  /** Cell side [km]. */
+  readonly cellKm: number;
+  readonly nCells: number;
+  readonly nFaces: number;
+  /** The two cells of each interior face, length 2·nFaces. */
+  readonly faceCells: Int32Array;
+  /** Raster index (row·nx + col) of each mesh cell. */
+  readonly rasterOfCell: Int32Array;
+  /** Dirichlet faces of each mesh cell, and of those the west/east ones. */
+  readonly lethalFacesAtCells: Uint8Array;
+  readonly lethalFacesXAtCells: Uint8Array;
+}
 
 export interface RasterOperator {
   readonly nx: number;
@@ -45,7 +64,7 @@ export interface RasterOperator {
  * @param diffusionAtCells - D per mesh cell [km²/yr], > 0
  * @param residenceAtCells - rho per mesh cell, > 0
  */
-export function makeRasterOperator(mesh: RasterMesh, diffusionAtCells: Float64Array, residenceAtCells: Float64Array): RasterOperator {
+export function makeRasterOperator(mesh: RasterFaces, diffusionAtCells: Float64Array, residenceAtCells: Float64Array): RasterOperator {
   const { nx, ny, cellKm } = mesh;
   const n = nx * ny;
   const inv2 = 1 / (cellKm * cellKm);
