@@ -9,7 +9,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { FastifyInstance } from 'fastify';
-import { landscapeApp, runIdOf, DEMO_LANDSCAPES_DIR } from './landscape-helpers.ts';
+import { landscapeApp, runIdOf, waitForLandscape, DEMO_LANDSCAPES_DIR } from './landscape-helpers.ts';
 import { writeGeoTiff } from '../../server/domain/gis/geotiff.ts';
 import { MAX_MODEL_CELLS } from '../../server/model/landscape.ts';
 
@@ -144,6 +144,26 @@ describe('map upload limits', () => {
       expect(Math.abs(p[0] - typed[k][0])).toBeLessThan(1e-6);
       expect(Math.abs(p[1] - typed[k][1])).toBeLessThan(1e-6);
     });
+  });
+
+  it('ranges with draws and a transport block: the result page says how sure, and the chance people carry the pest past each band', async () => {
+    const s = demoJson();
+    s.map.cellM = 600;
+    s.pest.diffusionHost = { dist: 'lognormal', median: 1, spread: 1.5 };
+    s.uncertainty = { draws: 6, seed: 2 };
+    s.transport = { ratePerKm2Year: 0.01, kernel: { shape: 'exponential', meanKm: 8 }, establishmentProbability: 0.2 };
+    const r = await upload([scenarioPart(s), hostPart(), classesPart()]);
+    expect(r.statusCode, r.body.slice(0, 2000)).toBe(303);
+    const id = runIdOf(r.headers.location);
+    await waitForLandscape(app, id);
+    const page = (await app.inject(`/landscape-runs/${id}`)).body;
+    expect(page).toContain('How sure: chance of arrival over the uncertain parameters');
+    expect(page).toMatch(/over 6 draws of the uncertain pest parameters \(movement in host forest;/);
+    const table = /<section aria-labelledby="sure-title"[\s\S]*?<\/section>/.exec(page)![0];
+    // One row per site, a column without a band and one per band, each a percentage with its standard error.
+    expect(table.match(/<tr><th scope="row">/g)!.length).toBe(s.sites.length);
+    expect(table.match(/\d+ % \(± \d+\)/g)!.length).toBe(s.sites.length * (1 + s.bands.options.length));
+    expect(page.match(/People carrying infested wood: /g)!.length).toBe(s.bands.options.length);
   });
 
   it('a valid upload is queued as a map evaluation and can be cancelled', async () => {
