@@ -5,7 +5,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { FastifyInstance } from 'fastify';
-import { landscapeApp, DEMO_REF } from './landscape-helpers.ts';
+import { landscapeApp, landscapeFormOf, DEMO_REF } from './landscape-helpers.ts';
 import { formBody } from '../helpers/build-app.ts';
 import { applyBandAction, rowsToBands } from '../../server/web/landscape-bands-form.ts';
 
@@ -17,17 +17,7 @@ beforeAll(async () => {
 });
 afterAll(async () => t?.close());
 
-const unescape = (s: string) => s.replace(/&#x27;/g, "'").replace(/&quot;/g, '"').replace(/&amp;/g, '&').replace(/&#x3D;/g, '=');
-
-/** The band form's fields as a browser would post them from the page. */
-function formOf(html: string): Record<string, string> {
-  const f: Record<string, string> = {};
-  f.bandCount = /name="bandCount" value="(\d+)"/.exec(html)![1];
-  for (const m of html.matchAll(/name="(band\[\d+\]\.(?:name|widthM))" value="([^"]*)"/g)) f[m[1]] = unescape(m[2]);
-  for (const m of html.matchAll(/name="(band\[\d+\]\.line)"[^>]*>([^<]*)</g)) f[m[1]] = unescape(m[2]);
-  for (const m of html.matchAll(/<select id="band-(\d+)-cover" name="(band\[\d+\]\.cover)">([\s\S]*?)<\/select>/g)) f[m[2]] = /value="([^"]+)" selected/.exec(m[3])![1];
-  return f;
-}
+const formOf = landscapeFormOf;
 const post = (fields: Record<string, string>) =>
   app.inject({ method: 'POST', url: `/landscapes/${DEMO_REF}/bands`, headers: { 'content-type': 'application/x-www-form-urlencoded' }, payload: formBody(fields) });
 

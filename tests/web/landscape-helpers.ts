@@ -53,3 +53,16 @@ export function runIdOf(location: unknown): string {
   if (!m) throw new Error(`not a map run address: ${String(location)}`);
   return m[1];
 }
+
+/** Undoes the page's HTML escaping of attribute and text values. */
+export const unescapeHtml = (s: string) => s.replace(/&#x27;/g, "'").replace(/&quot;/g, '"').replace(/&amp;/g, '&').replace(/&#x3D;/g, '=');
+
+/** The landscape page's form fields (band rows and pest numbers) as a browser would post them. */
+export function landscapeFormOf(html: string): Record<string, string> {
+  const f: Record<string, string> = {};
+  f.bandCount = /name="bandCount" value="(\d+)"/.exec(html)![1];
+  for (const m of html.matchAll(/name="((?:band\[\d+\]\.(?:name|widthM))|pest\.\w+)" value="([^"]*)"/g)) f[m[1]] = unescapeHtml(m[2]);
+  for (const m of html.matchAll(/name="(band\[\d+\]\.line)"[^>]*>([^<]*)</g)) f[m[1]] = unescapeHtml(m[2]);
+  for (const m of html.matchAll(/<select id="band-(\d+)-cover" name="(band\[\d+\]\.cover)">([\s\S]*?)<\/select>/g)) f[m[2]] = /value="([^"]+)" selected/.exec(m[3])![1];
+  return f;
+}

@@ -6,7 +6,7 @@
  */
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { FastifyInstance } from 'fastify';
-import { landscapeApp, runIdOf, DEMO_REF } from './landscape-helpers.ts';
+import { landscapeApp, landscapeFormOf, unescapeHtml, runIdOf, DEMO_REF } from './landscape-helpers.ts';
 import { formBody } from '../helpers/build-app.ts';
 import { applyPostedPest, pestFieldsets, postedPest } from '../../server/web/landscape-pest-form.ts';
 import { FIELDS, describeRange } from '../../server/model/fields.ts';
@@ -19,15 +19,8 @@ beforeAll(async () => {
 });
 afterAll(async () => t?.close());
 
-const unescape = (s: string) => s.replace(/&#x27;/g, "'").replace(/&quot;/g, '"').replace(/&amp;/g, '&').replace(/&#x3D;/g, '=');
-function formOf(html: string): Record<string, string> {
-  const f: Record<string, string> = {};
-  f.bandCount = /name="bandCount" value="(\d+)"/.exec(html)![1];
-  for (const m of html.matchAll(/name="((?:band\[\d+\]\.(?:name|widthM))|pest\.\w+)" value="([^"]*)"/g)) f[m[1]] = unescape(m[2]);
-  for (const m of html.matchAll(/name="(band\[\d+\]\.line)"[^>]*>([^<]*)</g)) f[m[1]] = unescape(m[2]);
-  for (const m of html.matchAll(/<select id="band-(\d+)-cover" name="(band\[\d+\]\.cover)">([\s\S]*?)<\/select>/g)) f[m[2]] = /value="([^"]+)" selected/.exec(m[3])![1];
-  return f;
-}
+const unescape = unescapeHtml;
+const formOf = landscapeFormOf;
 const post = (url: string, fields: Record<string, string>) => app.inject({ method: 'POST', url, headers: { 'content-type': 'application/x-www-form-urlencoded' }, payload: formBody(fields) });
 
 describe('pest per habitat class on the landscape page', () => {
