@@ -78,7 +78,7 @@ const STAGE_RATE_LIMIT = 0.9;
 interface LineFactors {
   readonly cp: Float64Array;
   readonly ip: Float64Array;
-  /** The sub-diagonal is recomputed from tau and the faces when applied (same products: same bits). */
+  /** The sub-diagonal −τ g/ρ is recomputed from tau and the faces when applied (same products: same bits). */
   tau: number;
   /** What the rates were ('zeros', 'col', a stage counter); null: never reused. */
   key: unknown;
@@ -226,7 +226,7 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       let y = rhs[first] * ip[first];
       out[first] = y;
       for (let k = first + 1; k <= last; k++) {
-        y = (rhs[k] - -tau * gx[k - 1] * ir[k - 1] * y) * ip[k];
+        y = (rhs[k] + tau * gx[k - 1] * ir[k - 1] * y) * ip[k];
         out[k] = y;
       }
       let x = out[last];
@@ -279,7 +279,7 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       const base = r * nx;
       for (let k = base + c0; k <= base + c1; k++) {
         const n0 = k - nx;
-        out[k] = (rhs[k] - -tau * gy[n0] * ir[n0] * out[n0]) * ip[k];
+        out[k] = (rhs[k] + tau * gy[n0] * ir[n0] * out[n0]) * ip[k];
       }
     }
     if (add && sum) {
