@@ -10,7 +10,7 @@ import { resolveQuantities } from '../../model/quantity.ts';
 import { InputError } from '../../model/errors.ts';
 import type { TaskRunner } from '../../jobs/task-runner.ts';
 import { CAUTIONS } from '../evaluate/cautions.ts';
-import { coarsenLandscape, landscapeProblem, type LandscapeProblem, type PointPest } from './problem.ts';
+import { coarsenLandscape, cutBand, habitatsOf, landscapeProblem, mapStepYears, type LandscapeProblem, type PointPest } from './problem.ts';
 import { runLandscapeProblem } from './run.ts';
 import { holdPrecheck, verifyHold } from './holds.ts';
 import { landscapeToJson, rawFromJson, type LandscapeJson, type RawRunJson } from './json.ts';
@@ -60,7 +60,7 @@ export function planEvaluation(landscape: RasterLandscape, pest: Pest | PointPes
   if (factor > 1) notes.push(`The map (${landscape.cellM} m cells) was averaged onto ${l.cellM} m model cells.`);
   if (settings.crossSection === false) notes.push('The bands’ 1-D cross-section critical widths were not computed (switched off).');
   // All runs share the smallest automatic step so that arrivals compare like with like.
-  const stepYears = settings.stepYears ?? Math.min(...[undefined, ...l.bands.map((_, j) => j)].map((band) => landscapeProblem(l, point, { ...base, band }).stepYears));
+  const stepYears = settings.stepYears ?? Math.min(...[undefined, ...l.bands.map((_, j) => j)].map((band) => mapStepYears(point, habitatsOf(cutBand(l, band).classAtCells))));
   return { landscape, l, point, settings, level, common: { ...base, stepYears }, notes };
 }
 
@@ -145,6 +145,8 @@ export async function evaluateLandscapeOn(runner: TaskRunner, landscape: RasterL
     shares[i] = Math.max(shares[i], Math.min(1, f));
     settings.onProgress?.(shares.reduce((a, b) => a + b, 0) / (bands.length + 0.5), runLabel(plan, bands[i]));
   };
+  // The problems first: they check the limits (cells, steps) before any work is handed out.
+  const problems = bands.map((band) => problemOf(plan, band));
   const payloads: LandscapeRunPayload[] = bands.map((band) => ({ landscape: json, pest: plan.point, problem: { ...plan.common, band }, run }));
   const raws = (
     await runner.map<LandscapeRunPayload, RawRunJson>(LANDSCAPE_RUN_TASK, payloads, {
@@ -154,7 +156,6 @@ export async function evaluateLandscapeOn(runner: TaskRunner, landscape: RasterL
       onResult: (i) => report(i, 1),
     })
   ).map(rawFromJson);
-  const problems = bands.map((band) => problemOf(plan, band));
   const base = baselineFacts(plan, problems[0], raws[0]);
   const facts = raws.slice(1).map((raw, j) => optionFacts(plan, base, j, problems[1 + j], raw));
   const pinnings = facts.map((f) => holdPrecheck(f.p, plan.point, holdSettings(plan, f)));

@@ -163,6 +163,30 @@ export interface ProblemOptions {
   band?: number;
 }
 
+/** The map's classes with an option's band cut in, and the band's cells (null for the baseline). */
+export function cutBand(l: RasterLandscape, bandIndex: number | undefined): { classAtCells: Uint8Array; bandAtCells: Uint8Array | null } {
+  const n = l.nx * l.ny;
+  const classAtCells = Uint8Array.from(l.classAtCells);
+  if (bandIndex === undefined) return { classAtCells, bandAtCells: null };
+  const band = l.bands[bandIndex];
+  const into = band.treatment === 'clearing' ? OPEN : NONHOST;
+  const bandAtCells = new Uint8Array(n);
+  for (let k = 0; k < n; k++) {
+    if (classAtCells[k] !== OUTSIDE && band.cover[k] >= BAND_CELL_SHARE) {
+      classAtCells[k] = into;
+      bandAtCells[k] = 1;
+    }
+  }
+  return { classAtCells, bandAtCells };
+}
+
+/** The habitats of a map's cells (outside cells have none): what the automatic step depends on. */
+export function habitatsOf(classAtCells: Uint8Array): Set<Habitat> {
+  const classes = new Set<number>(classAtCells);
+  classes.delete(OUTSIDE);
+  return new Set([...classes].map((c) => CLASS_HABITAT[c]));
+}
+
 /**
  * Resolves a landscape (already on the model cell) for one run.
  * @throws LimitError when the map has too many cells or the run would take too many steps
@@ -172,19 +196,7 @@ export function landscapeProblem(l: RasterLandscape, pest: PointPest, o: Problem
   if (n > MAX_MAP_CELLS) {
     throw new LimitError([{ path: 'numerics.cellM', value: l.cellM, message: `gives ${n} map cells; the limit is ${MAX_MAP_CELLS}. Use a larger cell` }]);
   }
-  const classAtCells = Uint8Array.from(l.classAtCells);
-  let bandAtCells: Uint8Array | null = null;
-  if (o.band !== undefined) {
-    const band = l.bands[o.band];
-    const into = band.treatment === 'clearing' ? OPEN : NONHOST;
-    bandAtCells = new Uint8Array(n);
-    for (let k = 0; k < n; k++) {
-      if (classAtCells[k] !== OUTSIDE && band.cover[k] >= BAND_CELL_SHARE) {
-        classAtCells[k] = into;
-        bandAtCells[k] = 1;
-      }
-    }
-  }
+  const { classAtCells, bandAtCells } = cutBand(l, o.band);
   const mesh = makeRasterMesh(l, classAtCells, l.outside, o.mapEdges);
   const diffusion = new Float64Array(mesh.nCells);
   const residence = new Float64Array(mesh.nCells);
@@ -192,7 +204,6 @@ export function landscapeProblem(l: RasterLandscape, pest: PointPest, o: Problem
   const mortalityAtCells = new Float64Array(n);
   const stockingAtCells = new Float64Array(n);
   const u0 = new Float64Array(n);
-  const present = new Set<Habitat>();
   const byClass = new Map<number, ReturnType<typeof habitatCoefficients>>();
   for (let c = 0; c < mesh.nCells; c++) {
     const k = mesh.rasterOfCell[c];
@@ -202,7 +213,6 @@ export function landscapeProblem(l: RasterLandscape, pest: PointPest, o: Problem
       coef = habitatCoefficients(pest, CLASS_HABITAT[cls]);
       byClass.set(cls, coef);
     }
-    present.add(CLASS_HABITAT[cls]);
     diffusion[c] = coef.diffusion;
     residence[c] = coef.residence;
     mortalityAtCells[k] = coef.mortality;
@@ -214,7 +224,7 @@ export function landscapeProblem(l: RasterLandscape, pest: PointPest, o: Problem
     }
   }
   const op = makeRasterOperator(mesh, diffusion, residence);
-  const stepYears = o.stepYears ?? mapStepYears(pest, present);
+  const stepYears = o.stepYears ?? mapStepYears(pest, habitatsOf(classAtCells));
   const steps = o.horizonYears / stepYears;
   if (steps > MAX_MAP_STEPS) {
     throw new LimitError([{ path: 'horizonYears', value: o.horizonYears, message: `needs ${Math.round(steps)} time steps; the limit is ${MAX_MAP_STEPS}` }]);
