@@ -7,7 +7,7 @@
 import { RASTER_CLASSES, type RasterLandscape } from '../../domain/raster.ts';
 import type { LandscapeProblem, PointPest, ProblemOptions } from './problem.ts';
 import { fringeMatters, type RawRun } from './run.ts';
-import { bandDepth, bottleneckArrival } from './paths.ts';
+import { bandDepth, bottleneckArrival, infestationCentre } from './paths.ts';
 import { crossSection, stockingAroundBand } from './cross-section.ts';
 import type { HoldSettings } from './holds.ts';
 import { mapTransportRisk, type MapTransportRisk } from './transport.ts';
@@ -120,19 +120,10 @@ function fmt(y: number): string {
 /** Distance from the infestation's centroid to a site's nearest cell [km]. */
 function distanceKm(p: LandscapeProblem, cells: Int32Array): number {
   const { nx } = p.landscape;
-  let sx = 0;
-  let sy = 0;
-  let m = 0;
-  for (let k = 0; k < p.u0.length; k++) {
-    if (p.u0[k] > 0) {
-      sx += (k % nx) * p.u0[k];
-      sy += Math.floor(k / nx) * p.u0[k];
-      m += p.u0[k];
-    }
-  }
-  if (!(m > 0)) return NaN;
+  const c = infestationCentre(nx, p.u0);
+  if (!c) return NaN;
   let best = Infinity;
-  for (const k of cells) best = Math.min(best, Math.hypot((k % nx) - sx / m, Math.floor(k / nx) - sy / m));
+  for (const k of cells) best = Math.min(best, Math.hypot((k % nx) - c.col, Math.floor(k / nx) - c.row));
   return best * p.mesh.cellKm;
 }
 

@@ -142,3 +142,21 @@ export function bandDepth(nx: number, band: Uint8Array): Int32Array {
   for (let k = 0; k < n; k++) if (band[k] && depth[k] === 0) depth[k] = 1;
   return depth;
 }
+
+/**
+ * Density-weighted centre of the infestation at the start, in cell units from the raster's north-west corner
+ * to the centre of cell (0, 0) (column, row); null when nothing is infested.
+ */
+export function infestationCentre(nx: number, u0: Float64Array): { col: number; row: number } | null {
+  let sx = 0;
+  let sy = 0;
+  let m = 0;
+  for (let k = 0; k < u0.length; k++) {
+    if (u0[k] > 0) {
+      sx += (k % nx) * u0[k];
+      sy += Math.floor(k / nx) * u0[k];
+      m += u0[k];
+    }
+  }
+  return m > 0 ? { col: sx / m, row: sy / m } : null;
+}

@@ -23,6 +23,7 @@
  * of time slices of at most 0.25 yr.
  */
 import type { SurvivalKernel } from '../bypass/bypass.ts';
+import { infestationCentre } from './paths.ts';
 
 export interface MapTransportInput {
   nx: number;
@@ -66,20 +67,12 @@ export interface MapTransportRisk {
  * cells). Band cells cut through the infestation itself shield nothing: the pest is on both sides of them.
  */
 export function behindBand(nx: number, ny: number, hostAtCells: Uint8Array, bandAtCells: Uint8Array, u0: Float64Array, infestedAtCells?: ArrayLike<number>): Uint8Array {
-  let sx = 0;
-  let sy = 0;
-  let m = 0;
-  for (let k = 0; k < u0.length; k++) {
-    if (u0[k] > 0) {
-      sx += ((k % nx) + 0.5) * u0[k];
-      sy += (Math.floor(k / nx) + 0.5) * u0[k];
-      m += u0[k];
-    }
-  }
   const out = new Uint8Array(nx * ny);
-  if (!(m > 0)) return out;
-  const cx = sx / m;
-  const cy = sy / m;
+  const centre = infestationCentre(nx, u0);
+  if (!centre) return out;
+  // Cell centres at (col + 0.5, row + 0.5) below.
+  const cx = centre.col + 0.5;
+  const cy = centre.row + 0.5;
   // Nearest band distance per angular bin; a band cell covers the bins of the angle it subtends (its
   // half-diagonal at its distance).
   const BINS = 8192;
