@@ -174,6 +174,30 @@ export async function evaluateLandscapeScenario(scenario: LandscapeScenario, fil
   const { fingerprint: fp, mapFiles } = landscapeFingerprint(scenario, files);
   const cautions = [...result.cautions];
   for (const c of CAUTIONS) if (!cautions.includes(c)) cautions.push(c);
+  const options: LandscapeOptionSummary[] = result.options.map((o, k) => {
+    const areaHa = o.areaM2 / 1e4;
+    const areaCost = s.bands.costPerHa !== undefined ? s.bands.costPerHa * areaHa : null;
+    const stemCost = o.trees.cost;
+    return {
+      key: String.fromCharCode(65 + k), // A, B, … (≤ 8 options): the letters the maps and tables use
+      name: o.label,
+      verdict: o.verdict,
+      wayPast: o.wayPast,
+      wayPastSentence: o.wayPastSentence,
+      arrivals: o.sites.map((v) => ({ site: v.name, baselineYears: round2(v.baselineArrivalYears), optionYears: round2(v.optionArrivalYears), delayYears: round2(v.delayYears), wayPast: v.wayPast, sentence: v.sentence })),
+      treesRemoved: Math.round(o.trees.stemsRemoved),
+      bandAreaHa: Math.round(areaHa * 100) / 100,
+      cost: {
+        stems: stemCost,
+        area: areaCost,
+        total: stemCost === null && areaCost === null ? null : (stemCost ?? 0) + (areaCost ?? 0),
+        unit: s.bands.costUnit ?? null,
+      },
+      crossSectionCriticalWidthM: o.crossSection?.bracketM ?? null,
+      pinningVerified: o.pinning.verified,
+      ...(o.transport ? { transport: { probability: o.transport.probability, expectedColonies: o.transport.expectedColonies, halfYears: round2(o.transport.halfYears), blockKm: o.transport.blockKm } } : {}),
+    };
+  });
   const doc: LandscapeDocument = {
     documentVersion: LANDSCAPE_DOCUMENT_VERSION,
     kind: 'landscape',
@@ -189,31 +213,8 @@ export async function evaluateLandscapeScenario(scenario: LandscapeScenario, fil
     detectionLevel: s.detectionLevel,
     map: { crs: { code: loaded.crs.code, name: loaded.crs.name }, cellM: result.grid.cellM, nx: result.grid.nx, ny: result.grid.ny, originXM: result.grid.originXM, originYM: result.grid.originYM, outside: loaded.outside, notes: loaded.notes },
     baseline: { arrivals: result.baseline.sites.map((a) => ({ site: a.name, detectedYears: round2(a.detectedYears), breedingYears: round2(a.breedingYears) })) },
-    options: result.options.map((o, k) => {
-      const areaHa = o.areaM2 / 1e4;
-      const areaCost = s.bands.costPerHa !== undefined ? s.bands.costPerHa * areaHa : null;
-      const stemCost = o.trees.cost;
-      return {
-        key: String.fromCharCode(65 + k), // A, B, … (≤ 8 options): the letters the maps and tables use
-        name: o.label,
-        verdict: o.verdict,
-        wayPast: o.wayPast,
-        wayPastSentence: o.wayPastSentence,
-        arrivals: o.sites.map((v) => ({ site: v.name, baselineYears: round2(v.baselineArrivalYears), optionYears: round2(v.optionArrivalYears), delayYears: round2(v.delayYears), wayPast: v.wayPast, sentence: v.sentence })),
-        treesRemoved: Math.round(o.trees.stemsRemoved),
-        bandAreaHa: Math.round(areaHa * 100) / 100,
-        cost: {
-          stems: stemCost,
-          area: areaCost,
-          total: stemCost === null && areaCost === null ? null : (stemCost ?? 0) + (areaCost ?? 0),
-          unit: s.bands.costUnit ?? null,
-        },
-        crossSectionCriticalWidthM: o.crossSection?.bracketM ?? null,
-        pinningVerified: o.pinning.verified,
-        ...(o.transport ? { transport: { probability: o.transport.probability, expectedColonies: o.transport.expectedColonies, halfYears: round2(o.transport.halfYears), blockKm: o.transport.blockKm } } : {}),
-      };
-    }),
-    ...(result.ensemble ? { ensemble: ensembleSummary(result.ensemble, result.options.map((o, k) => ({ key: String.fromCharCode(65 + k), name: o.label }))) } : {}),
+    options,
+    ...(result.ensemble ? { ensemble: ensembleSummary(result.ensemble, options) } : {}),
     cautions,
     notes: [...loaded.notes, ...result.notes, ...extraNotes],
   };
@@ -244,7 +245,7 @@ async function landscapeDraws(
   return runLandscapeEnsemble(
     loaded,
     scenario.pest,
-    { horizonYears: settings.horizonYears, detectionLevel: settings.detectionLevel, mapEdges: settings.mapEdges, infestedDensity: settings.infestedDensity },
+    settings,
     {
       draws: u.draws,
       seed: u.seed,
@@ -261,7 +262,7 @@ async function landscapeDraws(
 }
 
 /** The ensemble as the document carries it: per site the chance of arrival, per option the way past tallies. */
-function ensembleSummary(e: LandscapeEnsembleResult, keys: { key: string; name: string }[]): LandscapeEnsembleSummary {
+function ensembleSummary(e: LandscapeEnsembleResult, keys: readonly Pick<LandscapeOptionSummary, 'key' | 'name'>[]): LandscapeEnsembleSummary {
   const site = (x: { name: string; reached: { p: number; standardError: number } }) => ({ site: x.name, p: x.reached.p, standardError: x.reached.standardError });
   return {
     draws: e.completed,
