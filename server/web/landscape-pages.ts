@@ -303,7 +303,6 @@ export function resultView(id: string, out: LandscapeOutput) {
       key: o.key,
       name: o.name,
       verdict: o.verdict.sentence,
-      why: o.verdict.why,
       kind: o.verdict.kind,
       wayPast: WAY_PAST[o.wayPast] ?? o.wayPast,
       wayPastSentence: o.wayPastSentence,
