@@ -111,7 +111,7 @@ function cover(flow: Flow, doc: LandscapeDocument): void {
   const ens = ensembleLines(doc);
   if (ens) {
     const keys = doc.ensemble!.options.map((o) => o.key);
-    flow.text(`How sure (${doc.ensemble!.draws} draws of the uncertain parameters; details under "How sure"): chance of arrival within ${doc.horizonYears} years —`, { size: 9, after: 1 });
+    flow.text(`How sure, over ${doc.ensemble!.draws} draws of the uncertain parameters (details under “How sure”): the chance that each site is reached within ${doc.horizonYears} years.`, { size: 9, after: 1 });
     for (const r of ens.rows) flow.text(`${r.site}: ${r.baseline} without a band; ${r.options.map((p, i) => `${p} with ${keys[i]}`).join(', ')}.`, { indent: 14, size: 8.5, after: 1 });
     flow.space(4);
   }
