@@ -26,6 +26,14 @@ export interface Mesh {
   readonly faceDistances: Float64Array;
   /** The cell containing a point [km in mesh coordinates], or −1 when it is outside the mesh. */
   locate(x: number, y?: number): number;
+  /**
+   * Cell averages on this mesh of a field that is constant on each cell of `from` (same dimension):
+   * overlap-weighted, so Σ value × volume is kept wherever the two meshes cover the same ground. A transect
+   * averages over the part of each cell that `from` covers (the nearest end value of `from` where it covers
+   * none); a map averages over the whole cell, ground that `from` does not cover holding no insects.
+   * @throws RangeError when `from` is not a mesh of the same kind, or `values` is not one per cell of `from`
+   */
+  remap(values: Float64Array, from: Mesh): Float64Array;
 }
 
 /**

@@ -18,6 +18,8 @@ export interface RasterMesh extends Mesh {
   readonly ny: number;
   /** Cell side [km]. */
   readonly cellKm: number;
+  /** The map's north-west corner [km]: x of its west edge, y of its north edge. */
+  readonly originKm: readonly [number, number];
   /** Raster index (row·nx + col) of each mesh cell, length nCells. */
   readonly rasterOfCell: Int32Array;
   /** Mesh cell of each raster index, −1 for outside cells, length nx·ny. */
@@ -99,6 +101,7 @@ export function makeRasterMesh(
     nx,
     ny,
     cellKm,
+    originKm: [x0, y0],
     nCells,
     nFaces,
     volumes,
@@ -117,5 +120,63 @@ export function makeRasterMesh(
       if (col < 0 || col >= nx || row < 0 || row >= ny) return -1;
       return cellOfRaster[row * nx + col];
     },
+    remap(values: Float64Array, from: Mesh): Float64Array {
+      if (!isRasterMesh(from)) throw new RangeError(`a map can only take a field from another map (got a ${from.dim}-D mesh)`);
+      if (values.length !== from.nCells) throw new RangeError(`the field has ${values.length} values; the mesh it comes from has ${from.nCells} cells`);
+      return remapRaster(from, values, this as RasterMesh);
+    },
   };
+}
+
+function isRasterMesh(m: Mesh): m is RasterMesh {
+  return m.dim === 2 && 'cellOfRaster' in m;
+}
+
+/**
+ * Overlaps of the cells of one axis (n cells of side `h` from `start`, increasing) with the cells of
+ * another: for each target cell the source indices and overlap lengths [km].
+ */
+function axisOverlaps(start: number, h: number, n: number, fromStart: number, fromH: number, fromN: number): { index: number; length: number }[][] {
+  const out: { index: number; length: number }[][] = [];
+  for (let i = 0; i < n; i++) {
+    const a = start + i * h;
+    const b = a + h;
+    const list: { index: number; length: number }[] = [];
+    const j0 = Math.max(0, Math.floor((a - fromStart) / fromH));
+    for (let j = j0; j < fromN; j++) {
+      const fa = fromStart + j * fromH;
+      if (fa >= b) break;
+      const length = Math.min(b, fa + fromH) - Math.max(a, fa);
+      if (length > 0) list.push({ index: j, length });
+    }
+    out.push(list);
+  }
+  return out;
+}
+
+/**
+ * Area-weighted cell averages of a per-cell field of `from` on the cells of `to` (first-order conservative
+ * remapping of axis-aligned square rasters). A target cell's average is over its whole area: ground that
+ * `from` does not cover (beyond its map, or its 'outside' cells) holds no insects, so Σ value × area is kept.
+ */
+function remapRaster(from: RasterMesh, values: Float64Array, to: RasterMesh): Float64Array {
+  // Columns run east (x increasing); rows run south, so along rows the distance from the north edge grows.
+  const cols = axisOverlaps(to.originKm[0], to.cellKm, to.nx, from.originKm[0], from.cellKm, from.nx);
+  const rows = axisOverlaps(-to.originKm[1], to.cellKm, to.ny, -from.originKm[1], from.cellKm, from.ny);
+  const out = new Float64Array(to.nCells);
+  const area = to.cellKm * to.cellKm;
+  for (let c = 0; c < to.nCells; c++) {
+    const k = to.rasterOfCell[c];
+    const row = Math.floor(k / to.nx);
+    const col = k - row * to.nx;
+    let acc = 0;
+    for (const r of rows[row]) {
+      for (const q of cols[col]) {
+        const j = from.cellOfRaster[r.index * from.nx + q.index];
+        if (j >= 0) acc += r.length * q.length * values[j];
+      }
+    }
+    out[c] = acc / area;
+  }
+  return out;
 }

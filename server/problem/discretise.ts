@@ -4,6 +4,7 @@
  * (server/problem/problem.ts); the resolution policy and the engine's limits are in server/problem/resolution.ts.
  */
 import { makeGrid } from '../numerics/grid.ts';
+import { transectMesh } from '../domain/transect-mesh.ts';
 import { habitatCoefficients } from '../model/habitat.ts';
 import { lowDensityRate, perCapitaRate, reactionStiffness } from '../model/growth.ts';
 import type { PointScenario } from '../model/scenario.ts';
@@ -65,6 +66,7 @@ function makeDiscretisation(p: Problem, pieces: Piece[], resolution: Resolution)
   }
   return {
     grid,
+    mesh: transectMesh(grid),
     pieces,
     resolution,
     diffusionAtCells,

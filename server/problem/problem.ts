@@ -14,6 +14,7 @@ import type { PointScenario } from '../model/scenario.ts';
 import { segmentBreaks } from '../model/scenario.ts';
 import type { EndCondition } from '../numerics/diffusion.ts';
 import type { Grid } from '../numerics/grid.ts';
+import type { TransectMesh } from '../domain/transect-mesh.ts';
 import { buildLayout, type ClearingSpec, type Piece } from './layout.ts';
 
 /** Cell and step sizes of a run, and whether each was chosen automatically. */
@@ -35,6 +36,8 @@ export interface Resolution {
 /** Everything the solver needs, per cell (Float64Array layout: one entry per cell, left to right). */
 export interface TransectProblem {
   grid: Grid;
+  /** The grid behind the Mesh interface (remap, locate, faces). */
+  mesh: TransectMesh;
   pieces: Piece[];
   resolution: Resolution;
   /** D [km²/yr] */

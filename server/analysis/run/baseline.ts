@@ -6,7 +6,7 @@
 import type { PointScenario } from '../../model/scenario.ts';
 import { optionPlacementProblems, segmentBreaks } from '../../model/scenario.ts';
 import { ScenarioError, type Problem as FieldProblem } from '../../model/errors.ts';
-import type { Grid } from '../../numerics/grid.ts';
+import type { TransectMesh } from '../../domain/transect-mesh.ts';
 import { cellIndexAt } from '../../numerics/grid.ts';
 import { type FieldState, type Observer } from '../../numerics/time-loop.ts';
 import { chooseResolution, discretise, type Resolution } from '../../problem/discretise.ts';
@@ -110,10 +110,11 @@ class BaselineWatch implements Observer {
   private readonly immediate: boolean;
   constructor(
     s: PointScenario,
-    private readonly grid: Grid,
+    private readonly mesh: TransectMesh,
     levels: Float64Array,
     geometry: BarrierGeometry,
   ) {
+    const grid = mesh.grid;
     this.crossing = new CrossingWatch(grid, geometry, levels, false, crossingProbeKm(s), s.detectionLevel);
     const x = geometry.nearKm - geometry.direction * snapshotDistanceKm(s);
     const infEdge = geometry.direction > 0 ? s.infestation.toKm : s.infestation.fromKm;
@@ -121,7 +122,7 @@ class BaselineWatch implements Observer {
     this.triggerCell = cellIndexAt(grid, x);
   }
   private take(st: FieldState): void {
-    this.snapshot = { grid: this.grid, u: Float64Array.from(st.u), h: Float64Array.from(st.h), t: st.t };
+    this.snapshot = { mesh: this.mesh, u: Float64Array.from(st.u), h: Float64Array.from(st.h), t: st.t };
   }
   initialize(st: FieldState): void {
     this.crossing.initialize(st);
@@ -145,7 +146,7 @@ export function analyseBaseline(sp: PointScenario | Problem, options: ClearingSp
   const resolution = options.length ? mergedResolutionOf(p, options) : chooseResolution(p, pieces);
   const problem = discretise(p, pieces, resolution);
   const levels = establishedLevels(s, problem);
-  const watches = options.map((o) => new BaselineWatch(s, problem.grid, levels, barrierGeometry(s, o)));
+  const watches = options.map((o) => new BaselineWatch(s, problem.mesh, levels, barrierGeometry(s, o)));
   const record = settings.record ?? true;
   // Without recorded profiles nothing after the last event matters: stop once every site is reached and
   // every clearing's far edge is passed (the summary then covers the run up to that year).

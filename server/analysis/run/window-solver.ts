@@ -1,10 +1,10 @@
 /**
  * A computational window around a clearing: a stretch of a layout (a variant of the problem with reflecting
- * cuts) with its stepper, started from any state remapped onto its cells.
+ * cuts) with its stepper, started from any state remapped onto its cells (the mesh's remap).
  */
 import type { DiffusionOperator } from '../../numerics/diffusion.ts';
 import { type FieldState, type FieldStepper, type Observer } from '../../numerics/time-loop.ts';
-import { type Grid } from '../../numerics/grid.ts';
+import type { TransectMesh } from '../../domain/transect-mesh.ts';
 import type { PointScenario } from '../../model/scenario.ts';
 import { asProblem, deriveProblem, type Problem } from '../../problem/problem.ts';
 import { discretise, type Resolution, type TransectProblem } from '../../problem/discretise.ts';
@@ -66,38 +66,9 @@ export function makeWindowSolver(
   return { scenario: p.scenario, problem, op, stepper, windowKm: [lo, hi], establishedAtCells };
 }
 
-/**
- * Cell averages of a piecewise-constant field (cells of `from`) over the cells of `to` (overlap-weighted).
- * Positions outside `from` take the nearest end value.
- */
-export function remap(from: Grid, values: Float64Array, to: Grid): Float64Array {
-  const out = new Float64Array(to.nCells);
-  const ff = from.facesKm;
-  let j = 0;
-  for (let i = 0; i < to.nCells; i++) {
-    const a = to.facesKm[i];
-    const b = to.facesKm[i + 1];
-    while (j < from.nCells - 1 && ff[j + 1] <= a) j++;
-    let k = j;
-    let acc = 0;
-    let covered = 0;
-    while (k < from.nCells && ff[k] < b) {
-      const o = Math.min(b, ff[k + 1]) - Math.max(a, ff[k]);
-      if (o > 0) {
-        acc += o * values[k];
-        covered += o;
-      }
-      k++;
-    }
-    if (covered > 0) out[i] = acc / covered;
-    else out[i] = a < ff[0] ? values[0] : values[from.nCells - 1];
-  }
-  return out;
-}
-
-/** A state to start a window run from: fields on some grid at an absolute time [yr]. */
+/** A state to start a window run from: fields on some mesh at an absolute time [yr]. */
 export interface StartState {
-  grid: Grid;
+  mesh: TransectMesh;
   u: Float64Array;
   h: Float64Array;
   /** Years since the start of the scenario. */
@@ -109,9 +80,9 @@ export interface StartState {
  * window cell's own stocking (the clearing has none).
  */
 export function initialFields(solver: WindowSolver, start: StartState): { u: Float64Array; h: Float64Array } {
-  const { grid, stockingAtCells, hostAtCells } = solver.problem;
-  const u = remap(start.grid, start.u, grid);
-  const hr = remap(start.grid, start.h, grid);
+  const { grid, mesh, stockingAtCells, hostAtCells } = solver.problem;
+  const u = mesh.remap(start.u, start.mesh);
+  const hr = mesh.remap(start.h, start.mesh);
   const h = new Float64Array(grid.nCells);
   for (let i = 0; i < grid.nCells; i++) h[i] = hostAtCells[i] ? Math.min(hr[i], stockingAtCells[i]) : 0;
   return { u, h };

@@ -216,7 +216,7 @@ function pastHorizon(
     const extension = settings.extensionYears ?? 3 * s.horizonYears;
     const solver = makeWindowSolver(p, pieces, window, resolution, extension);
     projected = runWindow(solver, {
-      start: { grid: out.problem.grid, u: out.u, h: out.h, t: out.solver.t },
+      start: { mesh: out.problem.mesh, u: out.u, h: out.h, t: out.solver.t },
       tEnd: out.solver.t + extension,
       geometry,
       stopOnCross: false,

@@ -4,8 +4,7 @@
  * (same cells, same step, absolute times through the offset).
  */
 import { describe, expect, it } from 'vitest';
-import { makeGrid } from '../../../server/numerics/grid.ts';
-import { makeWindowSolver, remap } from '../../../server/analysis/run/window-solver.ts';
+import { makeWindowSolver } from '../../../server/analysis/run/window-solver.ts';
 import { runWindow } from '../../../server/analysis/run/window.ts';
 import { runLayout } from '../../../server/analysis/run/simulate.ts';
 import { buildProblem, layoutOf } from '../../../server/problem/problem.ts';
@@ -19,17 +18,6 @@ const s = testScenario({
   infestation: { fromKm: 0, toKm: 1, density: 1 },
   horizonYears: 6,
   numerics: { cellM: 50, stepYears: 0.05 },
-});
-
-describe('remap', () => {
-  it('conserves ∫v dx between unrelated grids covering the same stretch', () => {
-    const a = makeGrid([0, 1.3, 3], 0.07, 4);
-    const b = makeGrid([0, 0.5, 3], 0.11, 4);
-    const v = Float64Array.from(a.centersKm, (x) => Math.exp(-x) * (1 + Math.sin(3 * x)));
-    const w = remap(a, v, b);
-    const int = (g: typeof a, f: Float64Array) => f.reduce((acc, x, i) => acc + x * g.widthsKm[i], 0);
-    expect(int(b, w)).toBeCloseTo(int(a, v), 12);
-  });
 });
 
 describe('window runs', () => {
@@ -46,7 +34,7 @@ describe('window runs', () => {
     const first = runLayout({ scenario: p, pieces, resolution, record: false, tEnd: 2 });
     const solver = makeWindowSolver(p, pieces, [-1, 99], resolution, 4);
     const r = runWindow(solver, {
-      start: { grid: first.problem.grid, u: first.u, h: first.h, t: 2 },
+      start: { mesh: first.problem.mesh, u: first.u, h: first.h, t: 2 },
       tEnd: 6,
       geometry: barrierGeometry(s, { fromKm: 4, widthM: 200 }),
       stopOnCross: false,
