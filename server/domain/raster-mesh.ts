@@ -9,6 +9,7 @@
  */
 import type { Mesh } from './mesh.ts';
 import { RASTER_CLASSES, type RasterGeometry } from './raster.ts';
+import { axisOverlap } from './gis/resample.ts';
 
 const OUTSIDE = RASTER_CLASSES.indexOf('outside');
 
@@ -96,7 +97,7 @@ export function makeRasterMesh(
     }
   }
   const nFaces = faces.length / 2;
-  return {
+  const mesh: RasterMesh = {
     dim: 2,
     nx,
     ny,
@@ -123,35 +124,14 @@ export function makeRasterMesh(
     remap(values: Float64Array, from: Mesh): Float64Array {
       if (!isRasterMesh(from)) throw new RangeError(`a map can only take a field from another map (got a ${from.dim}-D mesh)`);
       if (values.length !== from.nCells) throw new RangeError(`the field has ${values.length} values; the mesh it comes from has ${from.nCells} cells`);
-      return remapRaster(from, values, this as RasterMesh);
+      return remapRaster(from, values, mesh);
     },
   };
+  return mesh;
 }
 
 function isRasterMesh(m: Mesh): m is RasterMesh {
   return m.dim === 2 && 'cellOfRaster' in m;
-}
-
-/**
- * Overlaps of the cells of one axis (n cells of side `h` from `start`, increasing) with the cells of
- * another: for each target cell the source indices and overlap lengths [km].
- */
-function axisOverlaps(start: number, h: number, n: number, fromStart: number, fromH: number, fromN: number): { index: number; length: number }[][] {
-  const out: { index: number; length: number }[][] = [];
-  for (let i = 0; i < n; i++) {
-    const a = start + i * h;
-    const b = a + h;
-    const list: { index: number; length: number }[] = [];
-    const j0 = Math.max(0, Math.floor((a - fromStart) / fromH));
-    for (let j = j0; j < fromN; j++) {
-      const fa = fromStart + j * fromH;
-      if (fa >= b) break;
-      const length = Math.min(b, fa + fromH) - Math.max(a, fa);
-      if (length > 0) list.push({ index: j, length });
-    }
-    out.push(list);
-  }
-  return out;
 }
 
 /**
@@ -160,23 +140,22 @@ function axisOverlaps(start: number, h: number, n: number, fromStart: number, fr
  * `from` does not cover (beyond its map, or its 'outside' cells) holds no insects, so Σ value × area is kept.
  */
 function remapRaster(from: RasterMesh, values: Float64Array, to: RasterMesh): Float64Array {
-  // Columns run east (x increasing); rows run south, so along rows the distance from the north edge grows.
-  const cols = axisOverlaps(to.originKm[0], to.cellKm, to.nx, from.originKm[0], from.cellKm, from.nx);
-  const rows = axisOverlaps(-to.originKm[1], to.cellKm, to.ny, -from.originKm[1], from.cellKm, from.ny);
+  // Weights are overlap length / target cell side per axis; rows run south, so both are measured below the north edge.
+  const ox = axisOverlap(to.nx, to.cellKm, to.originKm[0], from.nx, from.cellKm, from.originKm[0]);
+  const oy = axisOverlap(to.ny, to.cellKm, -to.originKm[1], from.ny, from.cellKm, -from.originKm[1]);
   const out = new Float64Array(to.nCells);
-  const area = to.cellKm * to.cellKm;
   for (let c = 0; c < to.nCells; c++) {
     const k = to.rasterOfCell[c];
     const row = Math.floor(k / to.nx);
     const col = k - row * to.nx;
     let acc = 0;
-    for (const r of rows[row]) {
-      for (const q of cols[col]) {
-        const j = from.cellOfRaster[r.index * from.nx + q.index];
-        if (j >= 0) acc += r.length * q.length * values[j];
+    for (let p = oy.start[row]; p < oy.start[row + 1]; p++) {
+      for (let q = ox.start[col]; q < ox.start[col + 1]; q++) {
+        const j = from.cellOfRaster[oy.index[p] * from.nx + ox.index[q]];
+        if (j >= 0) acc += oy.weight[p] * ox.weight[q] * values[j];
       }
     }
-    out[c] = acc / area;
+    out[c] = acc;
   }
   return out;
 }

@@ -1,10 +1,11 @@
 /**
  * Today's transect grid (numerics/grid.ts) behind the Mesh interface: cells are the grid's cells (volume =
- * width [km]), interior faces join neighbours i and i+1 (measure 1, distance between centres), and a point
- * is located by bisection on the faces, and a field is remapped from another transect by overlap. The 1-D engine keeps its fused tridiagonal path on the Grid itself
- * (numerics/diffusion.ts, coupled.ts): the bench's engine run spends most of its time in that solve, and a
- * general face loop would add an indirection per face for nothing in 1-D. Code that must work on both
- * transects and maps (regions, watches, weights) goes through this interface.
+ * width [km]), interior faces join neighbours i and i+1 (measure 1, distance between centres), a point is
+ * located by bisection on the faces, and a field is remapped from another transect by overlap. The 1-D
+ * engine keeps its fused tridiagonal path on the Grid itself (numerics/diffusion.ts, coupled.ts): the
+ * bench's engine run spends most of its time in that solve, and a general face loop would add an
+ * indirection per face for nothing in 1-D. Code that must work on both transects and maps (regions,
+ * watches, weights) goes through this interface.
  */
 import { cellIndexAt, type Grid } from '../numerics/grid.ts';
 import type { Mesh, Region } from './mesh.ts';
