@@ -164,22 +164,138 @@ function baselineFor(p: Problem, option: ClearingSpec, settings: BarrierSettings
   return analyseBaseline(p, [option], { record: false, shouldCancel: settings.shouldCancel }).crossings.get(optionKey(option))!;
 }
 
-/**
- * Critical width for containment: the smallest width that pins the front, bracketed [crossed, pinned]
- * to the tolerance by bisection on full-model runs in a window around the clearing, started from the
- * baseline state as the front approaches. Pinned means verified (see PinningJudge); a run that only
- * lingers counts as not pinned. The lower end is repeated with the step halved, and both ends on a
- * window twice as large. For growth without a strong Allee effect no width pins a front.
- */
-export function criticalWidth(sp: PointScenario | Problem, option: BarrierOptionSpec | ClearingSpec, settings: BarrierSettings = {}): CriticalWidthOutcome {
-  const p = asProblem(sp);
+/** The search's state: the runs so far and the bracket [lo crossed, hi pinned] they give. */
+interface Bracketing {
+  history: WidthRun[];
+  /** Widest seen to let the front through (0 = the baseline). */
+  lo: number;
+  /** Narrowest verified to pin. */
+  hi: number | null;
+  classify(widthM: number, stepFactor?: number, windowFactor?: number): WidthRun;
+  record(r: WidthRun): void;
+}
+
+function makeBracketing(c: WidthProbeContext, settings: BarrierSettings): Bracketing {
+  const b: Bracketing = {
+    history: [],
+    lo: 0,
+    hi: null,
+    classify(w, stepFactor = 1, windowFactor = 1) {
+      const r = classifyWidth(c, w, stepFactor, windowFactor);
+      b.history.push(r);
+      settings.onProgress?.(Math.min(0.95, b.history.length / 14), `critical width (${Math.round(w)} m)`);
+      return r;
+    },
+    record(r) {
+      if (r.outcome === 'pinned') b.hi = b.hi === null ? r.widthM : Math.min(b.hi, r.widthM);
+      else b.lo = Math.max(b.lo, r.widthM);
+    },
+  };
+  return b;
+}
+
+/** The window-run context of one option's bisection, from its baseline snapshot. */
+function probeContext(p: Problem, option: ClearingSpec, geometry: BarrierGeometry, snapshot: StartState, settings: BarrierSettings): WidthProbeContext {
   const s = p.scenario;
-  checkOption(s, { name: 'option', ...option });
-  const toleranceM = settings.toleranceM ?? s.barrier?.toleranceM ?? DEFAULT_TOLERANCE_M;
-  const geometry = barrierGeometry(s, option);
+  return {
+    p,
+    s,
+    option,
+    geometry,
+    snapshot,
+    resolution: mergedResolutionOf(p, [option]),
+    budgetYears: Math.max(s.horizonYears, 150 / growthRateScale(s.pest.growth)),
+    behindKm: snapshotDistanceKm(s) + 8 * movementLengthKm(s),
+    // Beyond the fringe's reach as much again: a reflecting cut too close behind the fringe lets density pile up.
+    aheadKm: windowAheadKm(s),
+    shouldCancel: settings.shouldCancel,
+  };
+}
+
+/**
+ * The width-0 run, when the baseline did not pass this point within the horizon: a front already held
+ * before the clearing (by the existing layout) needs no clearing, and one that never gets there gives
+ * nothing to bracket. Returns the outcome to report, or null when the front crossed and the search goes on.
+ */
+function withoutClearingOutcome(c: WidthProbeContext, b: Bracketing, base: CriticalWidthOutcome, pinningMethod: string): CriticalWidthOutcome | null {
+  const r0 = b.classify(0);
+  if (r0.outcome === 'crossed') return null;
+  const held = r0.outcome === 'pinned';
+  return {
+    ...base,
+    applicable: true,
+    bracketM: held ? [0, 0] : null,
+    runs: b.history.length,
+    history: b.history,
+    withoutClearing: r0.outcome,
+    windowKm: { behind: c.behindKm, ahead: c.aheadKm },
+    note: held
+      ? `Even without a clearing the front is held before this point (verified: ${pinningMethod}): no clearing is needed here under this model.`
+      : `Without any clearing the front did not get past this point within ${Math.round(c.budgetYears)} years of the window run either (it stalls or dies out before it), so there is no critical width to find.`,
+  };
+}
+
+/** Seeds (the phase-plane value −10 %, +15 % when known, else the option's width), then doubling until a width pins. */
+function findPinningWidth(b: Bracketing, option: ClearingSpec, phasePlaneM: number | null, toleranceM: number, maxW: number): void {
+  const seeds = phasePlaneM !== null && phasePlaneM > 0 ? [0.9 * phasePlaneM, 1.15 * phasePlaneM] : [option.widthM];
+  for (const w of seeds) if (w < maxW) b.record(b.classify(w));
+  let w = Math.max(b.lo, option.widthM);
+  while (b.hi === null) {
+    w = Math.max(2 * w, 2 * toleranceM);
+    if (w > maxW) break;
+    b.record(b.classify(w));
+  }
+}
+
+/** Bisection of [lo, hi] down to the tolerance, at the given step factor. */
+function bisect(b: Bracketing, toleranceM: number, stepFactor: number): void {
+  while (b.hi! - b.lo > toleranceM) b.record(b.classify(0.5 * (b.lo + b.hi!), stepFactor));
+}
+
+/**
+ * The bracket checks: a crossing at the lower end could be an artefact of the time step (splitting shifts
+ * the discrete threshold by O(dt²)), so it is repeated with half the step, and if it then pins the
+ * bisection continues at the finer step; then both ends on a window twice as large.
+ */
+function checkBracket(b: Bracketing, toleranceM: number): Pick<CriticalWidthOutcome, 'halfStepCheck' | 'windowCheck'> {
+  let halfStepCheck: CriticalWidthOutcome['halfStepCheck'] = null;
+  let stepFactor = 1;
+  if (b.lo > 0) {
+    const r = b.classify(b.lo, 0.5);
+    halfStepCheck = { widthM: b.lo, outcome: r.outcome };
+    if (r.outcome === 'pinned') {
+      stepFactor = 0.5;
+      const lo = b.lo;
+      b.hi = lo;
+      b.lo = Math.max(0, ...b.history.filter((x) => x.outcome !== 'pinned' && x.widthM < lo).map((x) => x.widthM));
+      bisect(b, toleranceM, stepFactor);
+    }
+  }
+  const ends = [b.lo, b.hi!].filter((x) => x > 0);
+  const again = ends.map((x) => b.classify(x, stepFactor, 2));
+  return { halfStepCheck, windowCheck: { widthsM: ends, agreed: again.every((r, k) => (r.outcome === 'pinned') === (ends[k] === b.hi)) } };
+}
+
+/** The bisection's note: its window, its runs and what the bracket checks found. */
+function bisectionNote(c: WidthProbeContext, history: WidthRun[], windowCheck: CriticalWidthOutcome['windowCheck'], pinningMethod: string): string {
+  const undecided = history.filter((r) => r.outcome === 'open').length;
+  return (
+    `Bisection on full-model runs (window ${c.behindKm.toFixed(1)} km behind and ${c.aheadKm.toFixed(1)} km beyond the clearing, started from the baseline as the front approached): ` +
+    `${history.length} runs; “stops” means checked (${pinningMethod}).` +
+    (undecided ? ` ${undecided} run(s) ended undecided and were counted as not stopping the front.` : '') +
+    (windowCheck === null
+      ? ' Bracket checks (half step, doubled window) switched off.'
+      : windowCheck.agreed
+        ? ' A window twice as large gives the same outcome at both ends.'
+        : ' WARNING: a window twice as large changed an outcome; treat the bracket with caution.')
+  );
+}
+
+/** The outcome before any run: the phase-plane value and empty search fields. */
+function emptyOutcome(p: Problem, option: ClearingSpec, settings: BarrierSettings, toleranceM: number): CriticalWidthOutcome {
   const pp: ReturnType<typeof phasePlaneWidth> =
     settings.phasePlane === false ? { widthM: null, note: 'phase-plane value not computed (switched off)' } : phasePlaneWidth(p, option);
-  const base: CriticalWidthOutcome = {
+  return {
     applicable: false,
     note: '',
     bracketM: null,
@@ -195,11 +311,26 @@ export function criticalWidth(sp: PointScenario | Problem, option: BarrierOption
     windowCheck: null,
     windowKm: null,
   };
-  const pieces = layoutOf(p);
+}
+
+/**
+ * Critical width for containment: the smallest width that pins the front, bracketed [crossed, pinned]
+ * to the tolerance by bisection on full-model runs in a window around the clearing, started from the
+ * baseline state as the front approaches. Pinned means verified (see PinningJudge); a run that only
+ * lingers counts as not pinned. The lower end is repeated with the step halved, and both ends on a
+ * window twice as large. For growth without a strong Allee effect no width pins a front.
+ */
+export function criticalWidth(sp: PointScenario | Problem, option: BarrierOptionSpec | ClearingSpec, settings: BarrierSettings = {}): CriticalWidthOutcome {
+  const p = asProblem(sp);
+  const s = p.scenario;
+  checkOption(s, { name: 'option', ...option });
+  const toleranceM = settings.toleranceM ?? s.barrier?.toleranceM ?? DEFAULT_TOLERANCE_M;
+  const geometry = barrierGeometry(s, option);
+  const base = emptyOutcome(p, option, settings, toleranceM);
   // Host forest with some stretch beyond the clearing (its far end lies beyond, whatever its midpoint).
-  const beyond = pieces.filter((p) => p.habitat === 'host-forest' && p.stocking > 0 && isBeyond(geometry, geometry.direction > 0 ? p.toKm : p.fromKm));
-  const hBeyond = Math.max(0, ...beyond.map((p) => p.stocking));
-  if (pinningMode(s, hBeyond) === 'none') {
+  const beyond = layoutOf(p).filter((p) => p.habitat === 'host-forest' && p.stocking > 0 && isBeyond(geometry, geometry.direction > 0 ? p.toKm : p.fromKm));
+  const mode = pinningMode(s, Math.max(0, ...beyond.map((p) => p.stocking)));
+  if (mode === 'none') {
     return {
       ...base,
       note: 'No finite clearing pins a front in this model: without a strong Allee effect in the forest beyond, any insects that cross found a growing population. A clearing can only change when the pest arrives (see the delay per 100 m of width; negative means it arrives sooner).',
@@ -214,121 +345,36 @@ export function criticalWidth(sp: PointScenario | Problem, option: BarrierOption
       note: 'The front does not come near the clearing within the horizon in the baseline run, so the bisection has no arriving front to test; see the phase-plane value.',
     };
   }
-  const resolution = mergedResolutionOf(p, [option]);
-  const ell = movementLengthKm(s);
-  const c: WidthProbeContext = {
-    p,
-    s,
-    option,
-    geometry,
-    snapshot: crossing.snapshot,
-    resolution,
-    budgetYears: Math.max(s.horizonYears, 150 / growthRateScale(s.pest.growth)),
-    behindKm: snapshotDistanceKm(s) + 8 * ell,
-    // Beyond the fringe's reach as much again: a reflecting cut too close behind the fringe lets density pile up.
-    aheadKm: windowAheadKm(s),
-    shouldCancel: settings.shouldCancel,
-  };
-  const maxW = maxUsableWidthM(p, geometry);
-  const history: WidthRun[] = [];
-  const classify = (w: number, stepFactor = 1, windowFactor = 1) => {
-    const r = classifyWidth(c, w, stepFactor, windowFactor);
-    history.push(r);
-    settings.onProgress?.(Math.min(0.95, history.length / 14), `critical width (${Math.round(w)} m)`);
-    return r;
-  };
-  let lo = 0; // widest seen to let the front through (0 = the baseline)
-  let hi: number | null = null; // narrowest verified to pin
-  const record = (r: WidthRun) => {
-    if (r.outcome === 'pinned') hi = hi === null ? r.widthM : Math.min(hi, r.widthM);
-    else lo = Math.max(lo, r.widthM);
-  };
-  // The bisection takes width 0 (the stand as it stands) to let the front through. When the baseline did
-  // not pass this point within the horizon, that is run first: a front already held before the clearing
-  // (by the existing layout) needs no clearing, and one that never gets there gives nothing to bracket.
+  const c = probeContext(p, option, geometry, crossing.snapshot, settings);
+  const windowKm = { behind: c.behindKm, ahead: c.aheadKm };
+  const b = makeBracketing(c, settings);
+  // The bisection takes width 0 (the stand as it stands) to let the front through; when the baseline did
+  // not pass this point within the horizon, that is run first.
   if (crossing.crossedYears === null) {
-    const r0 = classify(0);
-    if (r0.outcome !== 'crossed') {
-      const held = r0.outcome === 'pinned';
-      return {
-        ...base,
-        applicable: true,
-        bracketM: held ? [0, 0] : null,
-        runs: history.length,
-        history,
-        withoutClearing: r0.outcome,
-        windowKm: { behind: c.behindKm, ahead: c.aheadKm },
-        note: held
-          ? `Even without a clearing the front is held before this point (verified: ${PINNING_METHODS[pinningMode(s, hBeyond)]}): no clearing is needed here under this model.`
-          : `Without any clearing the front did not get past this point within ${Math.round(c.budgetYears)} years of the window run either (it stalls or dies out before it), so there is no critical width to find.`,
-      };
-    }
+    const settled = withoutClearingOutcome(c, b, base, PINNING_METHODS[mode]);
+    if (settled) return settled;
   }
-  // Seed: the phase-plane value (−10 %, +15 %) when known, else the option's width; then double until pinned.
-  const seeds = pp.widthM !== null && pp.widthM > 0 ? [0.9 * pp.widthM, 1.15 * pp.widthM] : [option.widthM];
-  for (const w of seeds) if (w < maxW) record(classify(w));
-  let w = Math.max(lo, option.widthM);
-  while (hi === null) {
-    w = Math.max(2 * w, 2 * toleranceM);
-    if (w > maxW) break;
-    record(classify(w));
-  }
-  if (hi === null) {
+  findPinningWidth(b, option, base.phasePlaneM, toleranceM, maxUsableWidthM(p, geometry));
+  if (b.hi === null) {
     return {
       ...base,
       applicable: true,
-      runs: history.length,
-      history,
-      note: `No width up to ${Math.round(lo)} m was verified to pin the front (the transect leaves no room for wider clearings, or runs ended undecided).`,
-      windowKm: { behind: c.behindKm, ahead: c.aheadKm },
+      runs: b.history.length,
+      history: b.history,
+      note: `No width up to ${Math.round(b.lo)} m was verified to pin the front (the transect leaves no room for wider clearings, or runs ended undecided).`,
+      windowKm,
     };
   }
-  const bisect = (stepFactor: number) => {
-    while (hi! - lo > toleranceM) {
-      const mid = 0.5 * (lo + hi!);
-      record(classify(mid, stepFactor));
-    }
-  };
-  bisect(1);
-  // A crossing at the lower end could be an artefact of the time step (splitting shifts the discrete
-  // threshold by O(dt²)): repeat it with half the step; if it then pins, continue at the finer step.
-  let halfStepCheck: CriticalWidthOutcome['halfStepCheck'] = null;
-  let stepFactor = 1;
-  if (lo > 0 && settings.bracketChecks !== false) {
-    const r = classify(lo, 0.5);
-    halfStepCheck = { widthM: lo, outcome: r.outcome };
-    if (r.outcome === 'pinned') {
-      stepFactor = 0.5;
-      hi = lo;
-      lo = Math.max(0, ...history.filter((x) => x.outcome !== 'pinned' && x.widthM < lo).map((x) => x.widthM));
-      bisect(stepFactor);
-    }
-  }
-  // The same two widths on a window twice as large.
-  const ends = [lo, hi].filter((x) => x > 0);
-  const again = settings.bracketChecks === false ? null : ends.map((x) => classify(x, stepFactor, 2));
-  const windowCheck = again && {
-    widthsM: ends,
-    agreed: again.every((r, k) => (r.outcome === 'pinned') === (ends[k] === hi)),
-  };
-  const undecided = history.filter((r) => r.outcome === 'open').length;
+  bisect(b, toleranceM, 1);
+  const checks = settings.bracketChecks === false ? { halfStepCheck: null, windowCheck: null } : checkBracket(b, toleranceM);
   return {
     ...base,
     applicable: true,
-    bracketM: [lo, hi],
-    runs: history.length,
-    history,
-    halfStepCheck,
-    windowCheck,
-    windowKm: { behind: c.behindKm, ahead: c.aheadKm },
-    note:
-      `Bisection on full-model runs (window ${c.behindKm.toFixed(1)} km behind and ${c.aheadKm.toFixed(1)} km beyond the clearing, started from the baseline as the front approached): ` +
-      `${history.length} runs; “stops” means checked (${PINNING_METHODS[pinningMode(s, hBeyond)]}).` +
-      (undecided ? ` ${undecided} run(s) ended undecided and were counted as not stopping the front.` : '') +
-      (windowCheck === null
-        ? ' Bracket checks (half step, doubled window) switched off.'
-        : windowCheck.agreed
-          ? ' A window twice as large gives the same outcome at both ends.'
-          : ' WARNING: a window twice as large changed an outcome; treat the bracket with caution.'),
+    bracketM: [b.lo, b.hi],
+    runs: b.history.length,
+    history: b.history,
+    ...checks,
+    windowKm,
+    note: bisectionNote(c, b.history, checks.windowCheck, PINNING_METHODS[mode]),
   };
 }
