@@ -129,6 +129,139 @@ export function sensitivityRanking(
 }
 
 const pct = percent;
+const inf = (x: number | null): number => (x === null ? Infinity : x);
+
+/** What every option's summary shares: the draws, the plan and the labels of its parameters. */
+interface SummaryContext {
+  s: ReturnType<typeof pointScenario>;
+  plan: EnsemblePlan;
+  outcomes: readonly DrawOutcome[];
+  labels: string[];
+  values: number[][];
+  /** Every probability estimate, in order (the largest standard error decides whether there are enough draws). */
+  probs: ProbabilityEstimate[];
+}
+
+/** The per-draw critical widths of one option, as quantiles and the widths that hold in 90 % and 95 % of draws. */
+function criticalWidthSummary(s: SummaryContext['s'], o: { widthM: number }, per: readonly DrawOutcome['options'][number][], n: number): OptionUncertainty['criticalWidth'] {
+  const cw = per.map((x) => x.criticalWidthM).filter((x): x is number => x !== null);
+  const cwAny = cw.length > 0 && cw.some(Number.isFinite);
+  const sortedCw = [...cw].sort((a, b) => a - b);
+  const missing = n - cw.length;
+  return {
+    computed: cwAny,
+    note: cwAny
+      ? `Critical width per draw (narrowest width verified to pin the front, bisection to ${Math.round(drawToleranceM(s, o.widthM))} m); a width W holds in a draw when it is at least that draw’s critical width, so the 90 % and 95 % quantiles are the widths that hold with those probabilities. ` +
+        `Draws where no finite width pins the front count as beyond every width.` +
+        (missing ? ` ${missing} draw(s) without a value (no front approached the clearing) are left out.` : '')
+      : cw.length > 0
+        ? 'No finite clearing pins the front in any draw (no strong Allee effect, or none within the transect): widths only delay.'
+        : 'Per-draw critical width not computed (switched off in uncertainty.criticalWidth, or no front approached the clearing).',
+    widthM: cw.length > 0 ? summariseQuantiles(cw) : null,
+    holds90M: cwAny ? finiteOrNull(sortedQuantile(sortedCw, 0.9)) : null,
+    holds95M: cwAny ? finiteOrNull(sortedQuantile(sortedCw, 0.95)) : null,
+  };
+}
+
+/**
+ * The ranking of what drives the option's outcome: its critical width when every draw has one, else the
+ * year of crossing; the transport risk when neither varies.
+ */
+function optionSensitivity(c: SummaryContext, per: readonly DrawOutcome['options'][number][], cwKnown: boolean): SensitivityResult | null {
+  const ranked = cwKnown
+    ? { y: per.map((x) => x.criticalWidthM as number), what: { outcome: 'critical width', outcomeKey: 'criticalWidthM', verb: 'depends' } }
+    : { y: per.map((x) => inf(x.crossingYears)), what: { outcome: 'year the front crosses the clearing', outcomeKey: 'crossingYears', verb: 'depends' } };
+  const sensitivity = sensitivityRanking(c.plan, c.labels, c.values, ranked.y, ranked.what);
+  if (sensitivity || !c.s.transport) return sensitivity;
+  // The natural outcome does not vary (e.g. held in every draw): rank what drives the transport risk.
+  return sensitivityRanking(
+    c.plan,
+    c.labels,
+    c.values,
+    per.map((x) => x.bypassLambda ?? 0),
+    { outcome: 'expected number of established introductions beyond the clearing', outcomeKey: 'bypassExpected', verb: 'depends' },
+  );
+}
+
+/** The option's sentences of the uncertainty section, answer first. */
+function optionSentences(
+  o: { name: string; widthM: number },
+  horizon: number,
+  n: number,
+  u: Pick<OptionUncertainty, 'holdsWithinHorizon' | 'pinned' | 'criticalWidth' | 'holdsIncludingTransport' | 'sensitivity'>,
+): string[] {
+  const holds = u.holdsWithinHorizon;
+  const sentences = [
+    `Option "${o.name}" (${o.widthM} m): the front does not get past the clearing within ${horizon} years in ${pct(holds.p)} of ${n} draws` +
+      (n > 1
+        ? holds.standardError > 0
+          ? ` (± ${(100 * holds.standardError).toFixed(1)} percentage points, one standard error).`
+          : ` (every draw agrees; 95 % interval ${(100 * holds.interval95![0]).toFixed(1)}–${(100 * holds.interval95![1]).toFixed(1)} %).`
+        : '.'),
+  ];
+  if (u.pinned) sentences.push(`It holds for good (checked: the front stops and stays) in ${pct(u.pinned.p)} of draws.`);
+  const cw = u.criticalWidth;
+  if (cw.computed && cw.holds90M !== null) {
+    sentences.push(`A clearing of ${Math.round(cw.holds90M)} m holds in 90 % of draws${cw.holds95M !== null ? `, ${Math.round(cw.holds95M)} m in 95 %` : ''}.`);
+  }
+  if (u.holdsIncludingTransport) sentences.push(`Counting human-carried introductions as well, the barrier holds in ${pct(u.holdsIncludingTransport.p)} of draws.`);
+  if (u.sensitivity) sentences.push(u.sensitivity.sentence);
+  return sentences;
+}
+
+/** One option over the draws; its probability estimates are added to c.probs in the document's order. */
+function optionUncertainty(c: SummaryContext, o: { name: string; widthM: number }, m: number): OptionUncertainty {
+  const { s, outcomes, probs } = c;
+  const n = outcomes.length;
+  const per = outcomes.map((d) => d.options[m]);
+  const holds = probability(per.filter((x) => x.crossingYears === null).length, n);
+  const pinned = n > 0 ? probability(per.filter((x) => x.pinned).length, n) : null;
+  const withTransport = s.transport ? meanProbability(per.map((x) => (x.crossingYears === null ? Math.exp(-(x.bypassLambda ?? 0)) : 0))) : null;
+  probs.push(holds, ...(pinned ? [pinned] : []), ...(withTransport ? [withTransport] : []));
+  const sites: SiteUncertainty[] = s.sites.map((site, k) => {
+    const arrivals = per.map((x) => inf(x.arrivals[k]));
+    const delays: number[] = [];
+    outcomes.forEach((d, i) => {
+      const b = d.baselineArrivals[k];
+      if (b !== null) delays.push(arrivals[i] - b);
+    });
+    const reached = probability(arrivals.filter(Number.isFinite).length, n);
+    probs.push(reached);
+    return { name: site.name, atKm: site.atKm, reachedWithinHorizon: reached, arrivalYears: summariseQuantiles(arrivals), delayYears: summariseQuantiles(delays) };
+  });
+  const criticalWidth = criticalWidthSummary(s, o, per, n);
+  const cwKnown = criticalWidth.computed && per.every((x) => x.criticalWidthM !== null);
+  const sensitivity = optionSensitivity(c, per, cwKnown);
+  const u = { holdsWithinHorizon: holds, pinned, criticalWidth, holdsIncludingTransport: withTransport, sensitivity };
+  return {
+    name: o.name,
+    widthM: o.widthM,
+    holdsWithinHorizon: holds,
+    pinned,
+    crossingYears: summariseQuantiles(per.map((x) => inf(x.crossingYears))),
+    holdsIncludingTransport: withTransport,
+    sites,
+    criticalWidth,
+    sensitivity,
+    sentences: optionSentences(o, s.horizonYears, n, u),
+  };
+}
+
+/** Whether the draws are enough: the largest standard error against the target, in words. */
+function convergenceOf(plan: EnsemblePlan, probs: readonly ProbabilityEstimate[], n: number, target: number, status: 'completed' | 'cancelled'): UncertaintyResult['convergence'] {
+  const largest = probs.reduce((a, p) => Math.max(a, effectiveStandardError(p)), 0);
+  const adequate = plan.parameters.length === 0 || largest <= target;
+  const drawsSuggested = adequate ? n : Math.ceil(n * (largest / target) ** 2);
+  const message =
+    plan.parameters.length === 0
+      ? 'The scenario has no parameter ranges, so one draw (the central values) is exact; there is no sampling error.'
+      : status === 'cancelled'
+        ? `Cancelled after ${n} of ${plan.draws} draws: the probabilities rest on fewer draws than asked for. Run again to finish.`
+        : adequate
+          ? `${n} draws give a largest standard error of ${largest.toFixed(3)}, within the target ${target}.`
+          : `More draws needed: the largest standard error is ${largest.toFixed(3)}, above the target ${target}; about ${drawsSuggested} draws would reach it.`;
+  return { targetStandardError: target, largestStandardError: largest, adequate: adequate && status === 'completed', drawsSuggested, message };
+}
 
 /** Summarises the draws (in index order) into the result document's uncertainty section. */
 export function summariseEnsemble(
@@ -139,11 +272,7 @@ export function summariseEnsemble(
 ): UncertaintyResult {
   const s = pointScenario(scenario);
   const n = outcomes.length;
-  const horizon = s.horizonYears;
-  const target = scenario.uncertainty?.targetStandardError ?? 0.02;
   const labels = plan.parameters.map((p) => parameterLabel(scenario, p.path));
-  const values = outcomes.map((o) => o.values);
-  const inf = (x: number | null): number => (x === null ? Infinity : x);
   const parameters: UncertainParameter[] = plan.parameters.map((p, j) => ({
     path: p.pathText,
     label: labels[j],
@@ -161,97 +290,9 @@ export function summariseEnsemble(
       arrivalYears: summariseQuantiles(arr),
     };
   });
-  const probs: ProbabilityEstimate[] = [];
-  const options: OptionUncertainty[] = (s.barrier?.options ?? []).map((o, m) => {
-    const per = outcomes.map((d) => d.options[m]);
-    const holds = probability(per.filter((x) => x.crossingYears === null).length, n);
-    const pinned = n > 0 ? probability(per.filter((x) => x.pinned).length, n) : null;
-    const withTransport = s.transport ? meanProbability(per.map((x) => (x.crossingYears === null ? Math.exp(-(x.bypassLambda ?? 0)) : 0))) : null;
-    probs.push(holds, ...(pinned ? [pinned] : []), ...(withTransport ? [withTransport] : []));
-    const sites: SiteUncertainty[] = s.sites.map((site, k) => {
-      const arrivals = per.map((x) => inf(x.arrivals[k]));
-      const delays: number[] = [];
-      outcomes.forEach((d, i) => {
-        const b = d.baselineArrivals[k];
-        if (b !== null) delays.push(arrivals[i] - b);
-      });
-      const reached = probability(arrivals.filter(Number.isFinite).length, n);
-      probs.push(reached);
-      return { name: site.name, atKm: site.atKm, reachedWithinHorizon: reached, arrivalYears: summariseQuantiles(arrivals), delayYears: summariseQuantiles(delays) };
-    });
-    const cw = per.map((x) => x.criticalWidthM).filter((x): x is number => x !== null);
-    const cwAny = cw.length > 0 && cw.some(Number.isFinite);
-    const cwSummary = cw.length > 0 ? summariseQuantiles(cw) : null;
-    const sortedCw = [...cw].sort((a, b) => a - b);
-    const missing = n - cw.length;
-    const criticalWidth = {
-      computed: cwAny,
-      note: cwAny
-        ? `Critical width per draw (narrowest width verified to pin the front, bisection to ${Math.round(drawToleranceM(s, o.widthM))} m); a width W holds in a draw when it is at least that draw’s critical width, so the 90 % and 95 % quantiles are the widths that hold with those probabilities. ` +
-          `Draws where no finite width pins the front count as beyond every width.` +
-          (missing ? ` ${missing} draw(s) without a value (no front approached the clearing) are left out.` : '')
-        : cw.length > 0
-          ? 'No finite clearing pins the front in any draw (no strong Allee effect, or none within the transect): widths only delay.'
-          : 'Per-draw critical width not computed (switched off in uncertainty.criticalWidth, or no front approached the clearing).',
-      widthM: cwSummary,
-      holds90M: cwAny ? finiteOrNull(sortedQuantile(sortedCw, 0.9)) : null,
-      holds95M: cwAny ? finiteOrNull(sortedQuantile(sortedCw, 0.95)) : null,
-    };
-    const cwKnown = cwAny && missing === 0;
-    const outcomeForRanking = cwKnown
-      ? { y: per.map((x) => x.criticalWidthM as number), what: { outcome: 'critical width', outcomeKey: 'criticalWidthM', verb: 'depends' } }
-      : { y: per.map((x) => inf(x.crossingYears)), what: { outcome: 'year the front crosses the clearing', outcomeKey: 'crossingYears', verb: 'depends' } };
-    let sensitivity = sensitivityRanking(plan, labels, values, outcomeForRanking.y, outcomeForRanking.what);
-    if (!sensitivity && s.transport) {
-      // The natural outcome does not vary (e.g. held in every draw): rank what drives the transport risk.
-      sensitivity = sensitivityRanking(
-        plan,
-        labels,
-        values,
-        per.map((x) => x.bypassLambda ?? 0),
-        { outcome: 'expected number of established introductions beyond the clearing', outcomeKey: 'bypassExpected', verb: 'depends' },
-      );
-    }
-    const sentences: string[] = [];
-    sentences.push(
-      `Option "${o.name}" (${o.widthM} m): the front does not get past the clearing within ${horizon} years in ${pct(holds.p)} of ${n} draws` +
-        (n > 1
-          ? holds.standardError > 0
-            ? ` (± ${(100 * holds.standardError).toFixed(1)} percentage points, one standard error).`
-            : ` (every draw agrees; 95 % interval ${(100 * holds.interval95![0]).toFixed(1)}–${(100 * holds.interval95![1]).toFixed(1)} %).`
-          : '.'),
-    );
-    if (pinned) sentences.push(`It holds for good (checked: the front stops and stays) in ${pct(pinned.p)} of draws.`);
-    if (criticalWidth.computed && criticalWidth.holds90M !== null) {
-      sentences.push(`A clearing of ${Math.round(criticalWidth.holds90M)} m holds in 90 % of draws${criticalWidth.holds95M !== null ? `, ${Math.round(criticalWidth.holds95M)} m in 95 %` : ''}.`);
-    }
-    if (withTransport) sentences.push(`Counting human-carried introductions as well, the barrier holds in ${pct(withTransport.p)} of draws.`);
-    if (sensitivity) sentences.push(sensitivity.sentence);
-    return {
-      name: o.name,
-      widthM: o.widthM,
-      holdsWithinHorizon: holds,
-      pinned,
-      crossingYears: summariseQuantiles(per.map((x) => inf(x.crossingYears))),
-      holdsIncludingTransport: withTransport,
-      sites,
-      criticalWidth,
-      sensitivity,
-      sentences,
-    };
-  });
-  for (const b of baselineSites) probs.push(b.reachedWithinHorizon);
-  const largest = probs.reduce((a, p) => Math.max(a, effectiveStandardError(p)), 0);
-  const adequate = plan.parameters.length === 0 || largest <= target;
-  const drawsSuggested = adequate ? n : Math.ceil(n * (largest / target) ** 2);
-  const message =
-    plan.parameters.length === 0
-      ? 'The scenario has no parameter ranges, so one draw (the central values) is exact; there is no sampling error.'
-      : info.status === 'cancelled'
-        ? `Cancelled after ${n} of ${plan.draws} draws: the probabilities rest on fewer draws than asked for. Run again to finish.`
-        : adequate
-          ? `${n} draws give a largest standard error of ${largest.toFixed(3)}, within the target ${target}.`
-          : `More draws needed: the largest standard error is ${largest.toFixed(3)}, above the target ${target}; about ${drawsSuggested} draws would reach it.`;
+  const c: SummaryContext = { s, plan, outcomes, labels, values: outcomes.map((o) => o.values), probs: [] };
+  const options = (s.barrier?.options ?? []).map((o, m) => optionUncertainty(c, o, m));
+  for (const b of baselineSites) c.probs.push(b.reachedWithinHorizon);
   return {
     method: 'latin-hypercube',
     draws: plan.draws,
@@ -261,7 +302,7 @@ export function summariseEnsemble(
     parameters,
     baseline: { sites: baselineSites },
     options,
-    convergence: { targetStandardError: target, largestStandardError: largest, adequate: adequate && info.status === 'completed', drawsSuggested, message },
+    convergence: convergenceOf(plan, c.probs, n, scenario.uncertainty?.targetStandardError ?? 0.02, info.status),
     threads: info.threads,
     wallMs: Math.round(info.wallMs),
   };
