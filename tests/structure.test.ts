@@ -109,6 +109,7 @@ const COVERED_ELSEWHERE: Record<string, Cover> = {
   // No test of its own yet: checked only indirectly, through the tests named (the next ones to write).
   'server/analysis/calibration/inversion.ts': { by: ['tests/analysis/calibration/statistics-inversion.test.ts'], why: 'closed-form Fisher–KPP and Nagumo inversions to round-off, and the engine-measured unit speed: one test file with statistics.ts (not split while the calibration tests are being edited elsewhere)' },
   'server/analysis/calibration/statistics.ts': { by: ['tests/analysis/calibration/statistics-inversion.test.ts'], why: 't quantiles against the printed table and scipy, normal points, Theil–Sen and least squares by hand: one test file with inversion.ts' },
+  'server/domain/gis/place.ts': { by: ['tests/domain/gis/load.test.ts'], why: 'placing the infestation, sites and bands is the second half of loading a map: the load tests check the placed cells, the trees in a band and each placement error by field' },
   'server/domain/gis/errors.ts': { by: ['tests/domain/gis/load.test.ts', 'tests/domain/gis/geotiff.test.ts'], why: 'the map error classes (each a field path, value and message); thrown and read back by the load, geotiff and geojson tests of bad files' },
   'server/jobs/task-runner.ts': { by: ['tests/jobs/inline-runner.test.ts', 'tests/jobs/pool-runner.test.ts'], why: 'the TaskRunner interface with two constants and the CancelledError class; the runner tests check the contract (order, cancel, progress) on every runner' },
   // web/

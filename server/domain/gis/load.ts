@@ -15,20 +15,15 @@ import { projector, type Projector } from './crs.ts';
 import { readGeoTiff, type SourceRaster } from './geotiff.ts';
 import { readStandMap } from './geojson.ts';
 import { areaAverage } from './resample.ts';
-import { addPolygonCover, cellAt, type GridSpec } from './rasterise.ts';
-import { bandPolygon, discPolygon, bbox, type Polygon, type Xy } from './geometry.ts';
+import { addPolygonCover, type GridSpec } from './rasterise.ts';
+import { makePlacer, placeBands, placeInfestation, placeSites } from './place.ts';
+import { bbox, type Polygon, type Xy } from './geometry.ts';
 import {
-  BandMissesForestError,
-  InfestationOutsideMapError,
   MapFileError,
   MapFileTooLargeError,
-  MapPlacementError,
   ScenarioMapError,
   TooManyCellsError,
 } from './errors.ts';
-
-/** A place after distributions are resolved (tuples become arrays). */
-type LoosePlace = { point: readonly number[]; radiusM?: number } | { polygon: readonly (readonly (readonly number[])[])[] };
 
 /** Map files by the name the scenario uses (relative path or upload name). */
 export type MapFiles = Readonly<Record<string, Uint8Array>>;
@@ -237,119 +232,11 @@ export async function loadLandscape(scenario: LandscapeScenario | PointLandscape
   }
   const hostCoverAtCells = Float32Array.from(layers.hostShare);
   const stemsAtCells = Float32Array.from(layers.stems);
-  const lonlat = coordinatesOf(s) === 'lonlat';
-  const toMap = (p: readonly number[]): Xy => (lonlat ? crsProjector.fromLonLat(p[0], p[1]) : [p[0], p[1]]);
-  const ext = { x0: grid.originXM, x1: grid.originXM + grid.nx * grid.cellM, y0: grid.originYM - grid.ny * grid.cellM, y1: grid.originYM };
-  const extent = `the map (x ${ext.x0}–${ext.x1} m, y ${ext.y0}–${ext.y1} m in ${crsProjector.crs.name})`;
-  const inside = ([x, y]: Xy) => x >= ext.x0 && x <= ext.x1 && y >= ext.y0 && y <= ext.y1;
-  const placePolygon = (pl: LoosePlace): Polygon | Xy => {
-    if ('polygon' in pl) return pl.polygon.map((r) => r.map(toMap));
-    const c = toMap(pl.point);
-    return pl.radiusM !== undefined ? discPolygon(c[0], c[1], pl.radiusM) : c;
-  };
-  const isPoint = (g: Polygon | Xy): g is Xy => typeof g[0] === 'number';
-  const pointsOf = (g: Polygon | Xy): Xy[] => (isPoint(g) ? [g] : g.flat());
-
-  // Infestation.
-  const infestedAtCells = new Float32Array(n);
-  const infestedPolygons: Polygon[] = [];
-  const infProblems: Problem[] = [];
-  s.infestation.places.forEach((pl, i) => {
-    const g = placePolygon(pl);
-    const path = `infestation.places[${i}]`;
-    const out = pointsOf(g).find((p) => !inside(p));
-    if (out) {
-      infProblems.push({ path, value: lonlat ? pl : out.map((v) => Math.round(v)), message: `lies (partly) outside ${extent}` });
-      return;
-    }
-    const cover = new Float32Array(n);
-    if (isPoint(g)) cover[cellAt(grid, g[0], g[1])] = 1;
-    else {
-      addPolygonCover(grid, g, cover);
-      infestedPolygons.push(g);
-    }
-    let onHost = 0;
-    for (let c = 0; c < n; c++) {
-      if (cover[c] > 0) {
-        infestedAtCells[c] = Math.min(1, infestedAtCells[c] + cover[c]);
-        onHost += cover[c] * hostCoverAtCells[c];
-      }
-    }
-    if (isPoint(g)) infestedPolygons.push(discPolygon(g[0], g[1], grid.cellM / 2, 16));
-    if (!(onHost > 0)) infProblems.push({ path, value: pl, message: 'lies on no host forest: an infestation must touch host forest on the map' });
-  });
-  if (infProblems.length) throw new InfestationOutsideMapError(infProblems);
-
-  // Protected sites.
+  const placer = makePlacer(grid, crsProjector, coordinatesOf(s) === 'lonlat');
+  const { infestedAtCells, infestedPolygons } = placeInfestation(placer, s.infestation.places, hostCoverAtCells);
   const placeProblems: Problem[] = [];
-  const sites: RasterLandscape['sites'] = [];
-  const sitePlaces: LoadedLandscape['sitePlaces'] = [];
-  s.sites.forEach((site, i) => {
-    const g = placePolygon(site.place);
-    const path = `sites[${i}].place`;
-    if (pointsOf(g).some((p) => !inside(p))) {
-      placeProblems.push({ path, value: site.place, message: `lies (partly) outside ${extent}` });
-      return;
-    }
-    let cells: number[];
-    if (isPoint(g)) {
-      cells = [cellAt(grid, g[0], g[1])];
-      sitePlaces.push({ name: site.name, point: g });
-    } else {
-      const cover = new Float32Array(n);
-      addPolygonCover(grid, g, cover);
-      cells = [];
-      for (let c = 0; c < n; c++) if (cover[c] > 0) cells.push(c);
-      sitePlaces.push({ name: site.name, polygon: g });
-    }
-    sites.push({ name: site.name, cells: Int32Array.from(cells) });
-  });
-
-  // Bands.
-  const bands: RasterLandscape['bands'] = [];
-  const bandPolygons: Polygon[] = [];
-  const missProblems: Problem[] = [];
-  s.bands.options.forEach((o, i) => {
-    const path = `bands.options[${i}]`;
-    let poly: Polygon;
-    if (o.line) {
-      const b = bandPolygon(o.line.map(toMap), o.widthM!);
-      if (!Array.isArray(b)) {
-        placeProblems.push({ path: `${path}.line[${b.index}]`, value: o.line[b.index], message: b.message });
-        return;
-      }
-      poly = b;
-    } else poly = o.polygon!.map((r) => r.map(toMap));
-    const cover = new Float32Array(n);
-    addPolygonCover(grid, poly, cover);
-    let area = 0;
-    let host = 0;
-    for (let c = 0; c < n; c++) {
-      if (cover[c] > 0) {
-        area += cover[c];
-        host += cover[c] * hostCoverAtCells[c] * stemsAtCells[c];
-      }
-    }
-    if (!(area > 0)) {
-      placeProblems.push({ path, value: o.name, message: `lies wholly outside ${extent}` });
-      return;
-    }
-    if (!(host > 0)) {
-      missProblems.push({ path, value: o.name, message: 'covers no host forest on the map: the band misses the forest (check its coordinates and the coordinates setting)' });
-      return;
-    }
-    bands.push({
-      id: `option-${i + 1}`,
-      label: o.name,
-      cover,
-      treatment: o.cover === 'clearing' ? 'clearing' : 'nonhost-planting',
-      areaM2: area * grid.cellM * grid.cellM,
-      ...(o.line ? { widthM: o.widthM } : {}),
-    });
-    bandPolygons.push(poly);
-  });
-  if (placeProblems.length) throw new MapPlacementError(placeProblems);
-  if (missProblems.length) throw new BandMissesForestError(missProblems);
+  const { sites, sitePlaces } = placeSites(placer, s.sites, placeProblems);
+  const { bands, bandPolygons } = placeBands(placer, s.bands.options, hostCoverAtCells, stemsAtCells, placeProblems);
 
   return {
     ...grid,
