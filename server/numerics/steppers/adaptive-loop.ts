@@ -101,6 +101,91 @@ function initialCells(u: Float64Array, floor: number, chunk: number): { lo: numb
   return { lo: Math.max(0, first - chunk), hi: Math.min(n, last + 1 + chunk) };
 }
 
+/** Output times for observers: the list and the regular grid merged, in order. */
+function outputTimes(options: AdaptiveLoopOptions, tEnd: number): number[] {
+  const outs: number[] = [...(options.outputTimes ?? [])];
+  if (options.outputEvery && options.outputEvery > 0) {
+    const k = Math.floor(tEnd / options.outputEvery + 1e-9);
+    for (let j = 1; j <= k; j++) outs.push(j * options.outputEvery);
+  }
+  return outs.sort((a, b) => a - b);
+}
+
+/** The active window's cells [lo, hi), its largest extent so far, and its update after a step. */
+interface CellWindow {
+  cells: { lo: number; hi: number };
+  largest: number;
+  /** Widens (ahead) or narrows (behind, hosts gone) the window from the packed state; true when it changed. */
+  adjust(yy: Float64Array): boolean;
+}
+
+function makeCellWindow(policy: ActiveWindowPolicy | null, u: Float64Array, hostAtCells: ArrayLike<number | boolean>): CellWindow {
+  const n = u.length;
+  const chunk = policy ? Math.max(8, Math.min(n, policy.chunk ?? Math.max(32, Math.ceil(n / 64)))) : n;
+  const guard = Math.max(2, chunk >> 1);
+  const cells = policy ? initialCells(u, policy.floor, chunk) : { lo: 0, hi: n };
+  const w: CellWindow = {
+    cells,
+    largest: cells.hi - cells.lo,
+    adjust(yy) {
+      if (!policy) return false;
+      const eps = policy.floor;
+      let { lo, hi } = w.cells;
+      let hot = false;
+      for (let i = hi - 1; i >= Math.max(lo, hi - guard); i--) if (yy[2 * i] > eps) hot = true;
+      if (hot && hi < n) hi = Math.min(n, hi + chunk);
+      hot = false;
+      for (let i = lo; i < Math.min(hi, lo + guard); i++) if (yy[2 * i] > eps) hot = true;
+      if (hot && lo > 0) lo = Math.max(0, lo - chunk);
+      // Behind the front: a run of cells at the window's edge with the hosts gone and u ≤ ε leaves the window.
+      // Cells without host count as gone only next to gone host cells (they cannot host growth either way).
+      const gone = (i: number) => yy[2 * i] <= eps && (hostAtCells[i] ? yy[2 * i + 1] <= policy.hostFloor : true);
+      let k = lo;
+      while (k < hi - chunk && gone(k)) k++;
+      if (k - lo >= chunk && k > 0) lo = k - guard;
+      k = hi;
+      while (k > lo + chunk && gone(k - 1)) k--;
+      if (hi - k >= chunk && k < n) hi = k + guard;
+      if (lo === w.cells.lo && hi === w.cells.hi) return false;
+      w.cells = { lo, hi };
+      w.largest = Math.max(w.largest, hi - lo);
+      return true;
+    },
+  };
+  return w;
+}
+
+/** The loop's result: its status and the stepper's, linear solver's and window's counters. */
+function loopResult(
+  status: AdaptiveResult['status'],
+  message: string,
+  t: number,
+  stepper: NdfStepper,
+  system: ReturnType<typeof makeReactionDiffusionSystem>,
+  extra: { observerCalls: number; largestWindowCells: number; nCells: number; rtol: number; atol: number; started: number },
+): AdaptiveResult {
+  const c = stepper.counters;
+  const { started, ...rest } = extra;
+  return {
+    status,
+    message,
+    t,
+    info: {
+      steps: c.accepted,
+      rejectedSteps: c.rejected,
+      diffusion: { trbdf2Steps: 0, fallbackSteps: 0, factorisations: c.factorisations },
+      reaction: { substeps: 0 },
+      wallMs: performance.now() - started,
+      adaptive: {
+        ...c,
+        lockstepFactorisations: system.linearCounters.lockstep,
+        thomasFactorisations: system.linearCounters.thomas,
+        ...rest,
+      },
+    },
+  };
+}
+
 /**
  * Runs the system from (u, h) to tEnd with error control; u and h hold the final state (and, while
  * running, the state of the last observer call).
@@ -118,63 +203,19 @@ export function runAdaptiveLoop(
   const n = op.n;
   const system = makeReactionDiffusionSystem(op, coeffs, { forceThomas: options.forceThomas });
   const y = system.pack(u, h);
-  const policy = options.window ?? null;
-  const chunk = policy ? Math.max(8, Math.min(n, policy.chunk ?? Math.max(32, Math.ceil(n / 64)))) : n;
-  const guard = Math.max(2, chunk >> 1);
-  let cells = policy ? initialCells(u, policy.floor, chunk) : { lo: 0, hi: n };
-  let largest = cells.hi - cells.lo;
-  const stepper: NdfStepper = makeNdfStepper(system, 0, y, {
-    rtol,
-    atol,
-    maxStep: options.maxStep ?? tEnd / 8,
-    maxOrder: options.maxOrder,
-    nonNegative: true,
-  }, { lo: 2 * cells.lo, hi: 2 * cells.hi });
-
-  // Output times for observers, merged from the list and the regular grid.
-  const outs: number[] = [...(options.outputTimes ?? [])];
-  if (options.outputEvery && options.outputEvery > 0) {
-    const k = Math.floor(tEnd / options.outputEvery + 1e-9);
-    for (let j = 1; j <= k; j++) outs.push(j * options.outputEvery);
-  }
-  outs.sort((a, b) => a - b);
+  const win = makeCellWindow(options.window ?? null, u, coeffs.hostAtCells);
+  const { lo, hi } = win.cells;
+  const stepper: NdfStepper = makeNdfStepper(system, 0, y, { rtol, atol, maxStep: options.maxStep ?? tEnd / 8, maxOrder: options.maxOrder, nonNegative: true }, { lo: 2 * lo, hi: 2 * hi });
+  const outs = outputTimes(options, tEnd);
   let nextOut = 0;
   const state = { t: 0, tPrevious: 0, u, h };
   const dense = new Float64Array(2 * n);
   let observerCalls = 0;
   for (const o of observers) o.initialize?.(state);
 
-  /** Widens (ahead) or narrows (behind, hosts gone) the window after a step; true when it changed. */
-  function adjustWindow(): boolean {
-    if (!policy) return false;
-    const yy = stepper.y;
-    const eps = policy.floor;
-    let { lo, hi } = cells;
-    let hot = false;
-    for (let i = hi - 1; i >= Math.max(lo, hi - guard); i--) if (yy[2 * i] > eps) hot = true;
-    if (hot && hi < n) hi = Math.min(n, hi + chunk);
-    hot = false;
-    for (let i = lo; i < Math.min(hi, lo + guard); i++) if (yy[2 * i] > eps) hot = true;
-    if (hot && lo > 0) lo = Math.max(0, lo - chunk);
-    // Behind the front: a run of cells at the window's edge with the hosts gone and u ≤ ε leaves the window.
-    // Cells without host count as gone only next to gone host cells (they cannot host growth either way).
-    const gone = (i: number) => yy[2 * i] <= eps && (coeffs.hostAtCells[i] ? yy[2 * i + 1] <= policy.hostFloor : true);
-    let k = lo;
-    while (k < hi - chunk && gone(k)) k++;
-    if (k - lo >= chunk && k > 0) lo = k - guard;
-    k = hi;
-    while (k > lo + chunk && gone(k - 1)) k--;
-    if (hi - k >= chunk && k < n) hi = k + guard;
-    if (lo === cells.lo && hi === cells.hi) return false;
-    cells = { lo, hi };
-    largest = Math.max(largest, hi - lo);
-    stepper.setWindow(2 * lo, 2 * hi);
-    return true;
-  }
-
   function feed(t: number, from: Float64Array): boolean {
     // Cells outside the window are frozen, so u and h there already hold their values.
-    system.unpack(from, u, h, cells.lo, cells.hi);
+    system.unpack(from, u, h, win.cells.lo, win.cells.hi);
     state.tPrevious = state.t;
     state.t = t;
     observerCalls++;
@@ -203,7 +244,7 @@ export function runAdaptiveLoop(
         stop = feed(stepper.t, stepper.y);
       }
     }
-    adjustWindow();
+    if (win.adjust(stepper.y)) stepper.setWindow(2 * win.cells.lo, 2 * win.cells.hi);
     if (stop) {
       status = 'stopped';
       message = `stopped by an observer at t = ${state.t.toPrecision(6)} yr`;
@@ -223,27 +264,12 @@ export function runAdaptiveLoop(
     state.t = stepper.t;
   }
   for (const o of observers) o.finalize?.(state);
-  const c = stepper.counters;
-  return {
-    status,
-    message,
-    t: status === 'stopped' ? state.t : stepper.t,
-    info: {
-      steps: c.accepted,
-      rejectedSteps: c.rejected,
-      diffusion: { trbdf2Steps: 0, fallbackSteps: 0, factorisations: c.factorisations },
-      reaction: { substeps: 0 },
-      wallMs: performance.now() - started,
-      adaptive: {
-        ...c,
-        lockstepFactorisations: system.linearCounters.lockstep,
-        thomasFactorisations: system.linearCounters.thomas,
-        observerCalls,
-        largestWindowCells: largest,
-        nCells: n,
-        rtol,
-        atol,
-      },
-    },
-  };
+  return loopResult(status, message, status === 'stopped' ? state.t : stepper.t, stepper, system, {
+    observerCalls,
+    largestWindowCells: win.largest,
+    nCells: n,
+    rtol,
+    atol,
+    started,
+  });
 }
