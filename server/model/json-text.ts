@@ -82,116 +82,160 @@ const HEX4 = /^[0-9a-fA-F]{4}$/;
  * that change on reading (as problems).
  */
 function scan(text: string, problems: Problem[]): void {
-  const n = text.length;
-  let i = 0;
-  const stack: Frame[] = [];
-  const add = (p: Problem) => {
-    if (problems.length < MAX_PROBLEMS) problems.push(p);
-  };
-  const ws = () => {
-    while (i < n) {
-      const c = text.charCodeAt(i);
-      if (c === 32 || c === 10 || c === 13 || c === 9) i++;
+  new Scanner(text, problems).run();
+}
+
+/** The scanner's state: the text, the position and the open objects and arrays. */
+class Scanner {
+  private i = 0;
+  private readonly n: number;
+  private readonly stack: Frame[] = [];
+  constructor(
+    private readonly text: string,
+    private readonly problems: Problem[],
+  ) {
+    this.n = text.length;
+  }
+
+  private add(p: Problem): void {
+    if (this.problems.length < MAX_PROBLEMS) this.problems.push(p);
+  }
+
+  private ws(): void {
+    const { text, n } = this;
+    while (this.i < n) {
+      const c = text.charCodeAt(this.i);
+      if (c === 32 || c === 10 || c === 13 || c === 9) this.i++;
       else break;
     }
-  };
-  const readString = () => {
-    i++;
+  }
+
+  private readString(): void {
+    const text = this.text;
+    this.i++;
     for (;;) {
-      if (i >= n) throw new Stop(i, 'the text ends inside a string (a closing " is missing)');
+      const i = this.i;
+      if (i >= this.n) throw new Stop(i, 'the text ends inside a string (a closing " is missing)');
       const c = text.charCodeAt(i);
       if (c === 34) {
-        i++;
+        this.i++;
         return;
       }
       if (c === 92) {
         const e = text[i + 1];
         if (e === 'u') {
           if (!HEX4.test(text.slice(i + 2, i + 6))) throw new Stop(i, 'a \\u escape needs four hexadecimal digits');
-          i += 6;
-        } else if (e !== undefined && '"\\/bfnrt'.includes(e)) i += 2;
+          this.i += 6;
+        } else if (e !== undefined && '"\\/bfnrt'.includes(e)) this.i += 2;
         else throw new Stop(i, `"\\${e ?? ''}" is not a valid escape in a string`);
         continue;
       }
       if (c < 0x20) throw new Stop(i, 'a string contains a raw control character (a line break must be written \\n)');
-      i++;
+      this.i++;
     }
-  };
-  const childPath = (f: Frame) => (f.obj ? (f.path ? `${f.path}.${f.key}` : f.key) : `${f.path}[${f.index}]`);
-  const readKey = (f: Frame) => {
-    ws();
-    if (text[i] !== '"') throw new Stop(i, 'expected a field name in double quotes');
-    const start = i;
-    readString();
-    const key = JSON.parse(text.slice(start, i)) as string;
+  }
+
+  private readKey(f: Frame): void {
+    const text = this.text;
+    this.ws();
+    if (text[this.i] !== '"') throw new Stop(this.i, 'expected a field name in double quotes');
+    const start = this.i;
+    this.readString();
+    const key = JSON.parse(text.slice(start, this.i)) as string;
     const path = f.path ? `${f.path}.${key}` : key;
     if (FORBIDDEN_KEYS.has(key)) {
-      add({ path, value: key, message: `is not allowed as a field name (${where(text, start)}): no scenario field has this name` });
+      this.add({ path, value: key, message: `is not allowed as a field name (${where(text, start)}): no scenario field has this name` });
     }
     const first = f.keys!.get(key);
     if (first !== undefined) {
-      add({ path, value: key, message: `appears twice in the same object (${where(text, first)} and ${where(text, start)}); give each field once` });
+      this.add({ path, value: key, message: `appears twice in the same object (${where(text, first)} and ${where(text, start)}); give each field once` });
     } else f.keys!.set(key, start);
     f.key = key;
-    ws();
-    if (text[i] !== ':') throw new Stop(i, `expected ":" after the field name "${key}"`);
-    i++;
-  };
-  for (;;) {
-    // A value.
-    ws();
+    this.ws();
+    if (text[this.i] !== ':') throw new Stop(this.i, `expected ":" after the field name "${key}"`);
+    this.i++;
+  }
+
+  private readNumber(path: string): void {
+    const { text, i } = this;
+    NUMBER.lastIndex = i;
+    const m = NUMBER.exec(text);
+    if (!m) throw new Stop(i, 'this is not a valid number');
+    const x = Number(m[0]);
+    if (!Number.isFinite(x)) this.add({ path, value: m[0], message: `is too large to be a number (${where(text, i)})` });
+    else if (x === 0 && /[1-9]/.test(m[0].replace(/[eE].*$/, ''))) {
+      this.add({ path, value: m[0], message: `is too small to be told from 0 (${where(text, i)}); write 0 or a larger number` });
+    }
+    this.i += m[0].length;
+  }
+
+  /** Reads one value; true when it opened an object or array that is not empty (its first member is next). */
+  private readValue(): boolean {
+    const { text, stack } = this;
+    this.ws();
+    const i = this.i;
     const path = stack.length ? childPath(stack[stack.length - 1]) : '';
     const c = text[i];
     if (c === '{' || c === '[') {
       if (stack.length >= MAX_JSON_DEPTH) throw new Stop(i, `the text is nested more than ${MAX_JSON_DEPTH} levels deep; a scenario is about six`);
-      i++;
-      ws();
-      if (text[i] === (c === '{' ? '}' : ']')) i++;
-      else {
-        const f: Frame = { obj: c === '{', path, keys: c === '{' ? new Map() : null, key: '', index: 0 };
-        stack.push(f);
-        if (f.obj) readKey(f);
-        continue;
+      this.i++;
+      this.ws();
+      if (text[this.i] === (c === '{' ? '}' : ']')) {
+        this.i++;
+        return false;
       }
-    } else if (c === '"') readString();
-    else if (c === '-' || (c !== undefined && c >= '0' && c <= '9')) {
-      NUMBER.lastIndex = i;
-      const m = NUMBER.exec(text);
-      if (!m) throw new Stop(i, 'this is not a valid number');
-      const x = Number(m[0]);
-      if (!Number.isFinite(x)) add({ path, value: m[0], message: `is too large to be a number (${where(text, i)})` });
-      else if (x === 0 && /[1-9]/.test(m[0].replace(/[eE].*$/, ''))) {
-        add({ path, value: m[0], message: `is too small to be told from 0 (${where(text, i)}); write 0 or a larger number` });
-      }
-      i += m[0].length;
-    } else if (text.startsWith('true', i)) i += 4;
-    else if (text.startsWith('false', i)) i += 5;
-    else if (text.startsWith('null', i)) i += 4;
-    else if (i >= n) throw new Stop(i, stack.length ? 'the text ends before the JSON is complete (a closing } or ] is missing)' : 'the text is empty');
+      const f: Frame = { obj: c === '{', path, keys: c === '{' ? new Map() : null, key: '', index: 0 };
+      stack.push(f);
+      if (f.obj) this.readKey(f);
+      return true;
+    }
+    if (c === '"') this.readString();
+    else if (c === '-' || (c !== undefined && c >= '0' && c <= '9')) this.readNumber(path);
+    else if (text.startsWith('true', i)) this.i += 4;
+    else if (text.startsWith('false', i)) this.i += 5;
+    else if (text.startsWith('null', i)) this.i += 4;
+    else if (i >= this.n) throw new Stop(i, stack.length ? 'the text ends before the JSON is complete (a closing } or ] is missing)' : 'the text is empty');
     else throw new Stop(i, `expected a value (a number, "text", true, false, null, {…} or […]) but found ${JSON.stringify(text[i])}`);
-    // After a value: a comma, a closing bracket, or the end.
+    return false;
+  }
+
+  /** After a value: a comma (true: another value follows), closing brackets, or the end (false). */
+  private afterValue(): boolean {
+    const text = this.text;
     for (;;) {
-      ws();
-      const f = stack[stack.length - 1];
+      this.ws();
+      const f = this.stack[this.stack.length - 1];
+      const i = this.i;
       if (!f) {
-        if (i < n) throw new Stop(i, 'there is more text after the end of the JSON value');
-        return;
+        if (i < this.n) throw new Stop(i, 'there is more text after the end of the JSON value');
+        return false;
       }
       if (text[i] === ',') {
-        i++;
-        if (f.obj) readKey(f);
+        this.i++;
+        if (f.obj) this.readKey(f);
         else f.index++;
-        break;
+        return true;
       }
       if (text[i] === (f.obj ? '}' : ']')) {
-        i++;
-        stack.pop();
+        this.i++;
+        this.stack.pop();
         continue;
       }
-      if (i >= n) throw new Stop(i, 'the text ends before the JSON is complete (a closing } or ] is missing)');
+      if (i >= this.n) throw new Stop(i, 'the text ends before the JSON is complete (a closing } or ] is missing)');
       throw new Stop(i, `expected "," or "${f.obj ? '}' : ']'}" after a value but found ${JSON.stringify(text[i])}`);
     }
   }
+
+  run(): void {
+    for (;;) {
+      if (this.readValue()) continue;
+      if (!this.afterValue()) return;
+    }
+  }
+}
+
+function childPath(f: Frame): string {
+  return f.obj ? (f.path ? `${f.path}.${f.key}` : f.key) : `${f.path}[${f.index}]`;
 }
 
 /**
