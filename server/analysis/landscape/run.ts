@@ -51,6 +51,64 @@ export function establishedAtCells(p: LandscapeProblem, pest: PointPest): Float6
   return out;
 }
 
+/** Per cell: when the density first reached the detection level and its established level (NaN: not yet). */
+interface Passages {
+  detected: Float32Array;
+  established: Float32Array;
+  /** Cells detected so far. */
+  occupied: number;
+}
+
+function initialPassages(u: Float64Array, level: number, estLevel: ArrayLike<number>): Passages {
+  const n = u.length;
+  const detected = new Float32Array(n).fill(NaN);
+  const established = new Float32Array(n).fill(NaN);
+  let occupied = 0;
+  for (let k = 0; k < n; k++) {
+    if (u[k] >= level) {
+      detected[k] = 0;
+      occupied++;
+    }
+    if (u[k] >= estLevel[k]) established[k] = 0;
+  }
+  return { detected, established, occupied };
+}
+
+/**
+ * Passages of the two levels in the step t → tNew over the stepper's window, at the time interpolated
+ * linearly between the step's ends; `prev` (the state before the step) becomes the state after it.
+ */
+function notePassages(
+  ps: Passages,
+  u: Float64Array,
+  prev: Float64Array,
+  w: { r0: number; r1: number; c0: number; c1: number },
+  nx: number,
+  level: number,
+  estLevel: ArrayLike<number>,
+  t: number,
+  tNew: number,
+): void {
+  const { detected, established } = ps;
+  for (let r = w.r0; r <= w.r1; r++) {
+    for (let q = w.c0, k = r * nx + w.c0; q <= w.c1; q++, k++) {
+      const now = u[k];
+      const before = prev[k];
+      if (now >= level && !(detected[k] >= 0)) {
+        const frac = now > before ? (level - before) / (now - before) : 1;
+        detected[k] = t + Math.min(1, Math.max(0, frac)) * (tNew - t);
+        ps.occupied++;
+      }
+      if (now >= estLevel[k] && !(established[k] >= 0)) {
+        const e = estLevel[k];
+        const frac = now > before ? (e - before) / (now - before) : 1;
+        established[k] = t + Math.min(1, Math.max(0, frac)) * (tNew - t);
+      }
+      prev[k] = now;
+    }
+  }
+}
+
 /** True when the pest has an Allee threshold (small groups fail): then a detected fringe need not breed. */
 export function fringeMatters(pest: PointPest): boolean {
   return hasStrongAllee(pest.growth, 1);
@@ -64,26 +122,20 @@ export function runLandscapeProblem(p: LandscapeProblem, pest: PointPest, s: Run
   const u = Float64Array.from(p.u0);
   const h = Float64Array.from(p.stockingAtCells);
   const prev = Float64Array.from(u);
-  const detected = new Float32Array(n).fill(NaN);
-  const established = new Float32Array(n).fill(NaN);
   const estLevel = establishedAtCells(p, pest);
   const level = s.detectionLevel;
   const cellKm2 = p.mesh.cellKm * p.mesh.cellKm;
-  for (let k = 0; k < n; k++) {
-    if (u[k] >= level) detected[k] = 0;
-    if (u[k] >= estLevel[k]) established[k] = 0;
-  }
+  const ps = initialPassages(u, level, estLevel);
+  const { detected, established } = ps;
   const series = { timesYears: [] as number[], occupiedKm2: [] as number[], totalInsects: [] as number[] };
   const every = s.seriesEveryYears ?? 0.5;
   let nextRecord = 0;
-  let occupied = 0;
-  for (let k = 0; k < n; k++) if (detected[k] === 0) occupied++;
   const record = (t: number) => {
     let total = 0;
     const w = stepper.window();
     for (let r = w.r0; r <= w.r1; r++) for (let q = w.c0, k = r * nx + w.c0; q <= w.c1; q++, k++) total += u[k];
     series.timesYears.push(t);
-    series.occupiedKm2.push(occupied * cellKm2);
+    series.occupiedKm2.push(ps.occupied * cellKm2);
     series.totalInsects.push(total * cellKm2);
   };
   record(0);
@@ -100,24 +152,7 @@ export function runLandscapeProblem(p: LandscapeProblem, pest: PointPest, s: Run
     stepper.step(u, h, step);
     steps++;
     const tNew = i === nSteps - 1 ? s.horizonYears : t + step;
-    const w = stepper.window();
-    for (let r = w.r0; r <= w.r1; r++) {
-      for (let q = w.c0, k = r * nx + w.c0; q <= w.c1; q++, k++) {
-        const now = u[k];
-        const before = prev[k];
-        if (now >= level && !(detected[k] >= 0)) {
-          const frac = now > before ? (level - before) / (now - before) : 1;
-          detected[k] = t + Math.min(1, Math.max(0, frac)) * (tNew - t);
-          occupied++;
-        }
-        if (now >= estLevel[k] && !(established[k] >= 0)) {
-          const e = estLevel[k];
-          const frac = now > before ? (e - before) / (now - before) : 1;
-          established[k] = t + Math.min(1, Math.max(0, frac)) * (tNew - t);
-        }
-        prev[k] = now;
-      }
-    }
+    notePassages(ps, u, prev, stepper.window(), nx, level, estLevel, t, tNew);
     t = tNew;
     if (t >= nextRecord - 1e-9 || i === nSteps - 1) {
       record(t);
