@@ -165,19 +165,11 @@ function modelFlags(fit: CalibrationResult, table: SurveyTable): FlaggedRecord[]
   return out.length > fit.flagged.length ? out : [];
 }
 
-function fitOnce(scenario: Scenario, point: PointScenario, table: SurveyTable, start: StartStretch, setAside: FlaggedRecord[], opts: FitOptions): CalibrationResult {
-  const { records, rowLabels } = table;
-  const front = fitFront(records, rowLabels, start, setAside);
-  const quick = quickEstimate(scenario, point, front);
-  const flaggedSet = new Set(front.flagged.map((f) => f.index));
-  const usedIdx = records.map((_, i) => i).filter((i) => !flaggedSet.has(i));
-  const used = usedIdx.map((i) => records[i]);
-  const years = [...new Set(records.map((r) => r.year))].sort((a, b) => a - b);
-  const firstYear = years[0];
-  const lastYear = years[years.length - 1];
-  const messages: string[] = [];
-
-  // Parameters held on a grid: growth rate and edge preference, when ranges in the scenario and the records allow.
+/**
+ * Parameters held on a grid: the growth rate, and the edge preference of each kind of edge that detections
+ * lie beyond, when the scenario gives them ranges; a range the records say nothing about is kept (with a message).
+ */
+function gridParameters(scenario: Scenario, point: PointScenario, used: SurveyTable['records'], start: StartStretch, opts: FitOptions, messages: string[]): GridParameter[] {
   const crossed = crossedHabitats(point, used.filter((r) => r.detected).map((r) => r.atKm as number), start);
   const candidates: (string | number)[][] = [growthPath(scenario)];
   if (crossed.has('clearing')) candidates.push(['pest', 'edgePreferenceOpen']);
@@ -190,7 +182,22 @@ function fitOnce(scenario: Scenario, point: PointScenario, table: SurveyTable, s
     }
   }
   const nPts = opts.gridPoints ?? (gridParams.length >= 2 ? 3 : 5);
-  const grid: GridParameter[] = gridParams.map((p) => ({ path: p, values: STRATA(nPts).map((u) => quantile(valueAtPath(scenario, p) as Distribution, u)) }));
+  return gridParams.map((p) => ({ path: p, values: STRATA(nPts).map((u) => quantile(valueAtPath(scenario, p) as Distribution, u)) }));
+}
+
+function fitOnce(scenario: Scenario, point: PointScenario, table: SurveyTable, start: StartStretch, setAside: FlaggedRecord[], opts: FitOptions): CalibrationResult {
+  const { records, rowLabels } = table;
+  const front = fitFront(records, rowLabels, start, setAside);
+  const quick = quickEstimate(scenario, point, front);
+  const flaggedSet = new Set(front.flagged.map((f) => f.index));
+  const usedIdx = records.map((_, i) => i).filter((i) => !flaggedSet.has(i));
+  const used = usedIdx.map((i) => records[i]);
+  const years = [...new Set(records.map((r) => r.year))].sort((a, b) => a - b);
+  const firstYear = years[0];
+  const lastYear = years[years.length - 1];
+  const messages: string[] = [];
+
+  const grid = gridParameters(scenario, point, used, start, opts, messages);
 
   const lead = opts.leadYears ?? autoLead(front, quick);
   const initialDiffusion = [point.pest.diffusionHost, ...(quick.diffusion && quick.diffusion > 0 ? [quick.diffusion] : [])];

@@ -206,6 +206,26 @@ export interface MapFitOptions {
   toMap?: (x: number, y: number) => [number, number];
 }
 
+/** What the reader of a map fit is told: the radial method, the young front's lag, the ground it crossed, the set-aside records. */
+function mapFitMessages(front: FrontFit, lag: ReturnType<typeof lagCorrection> | null, pulled: boolean, ground: ReturnType<typeof sweptGround>): string[] {
+  const messages: string[] = ['On a map the movement rate is read from the radial front only (farthest detection per year from the infestation’s centre); the full-model fit is offered on transects.'];
+  if (lag) {
+    messages.push(
+      `A front spreading out from a small infestation moves slower at first than an established one: its radius lags by a logarithm of the time since the start (fitted start ${lag.startYear.toFixed(1)}). ` +
+        `Taking that lag out gives ${sig(lag.kmPerYear)} km/yr where the straight line through the front radii gives ${sig(lag.rawKmPerYear)} km/yr; the movement rate uses the former.`,
+    );
+  } else if (pulled) messages.push('The front radii were too few or too irregular to take out the slower start of a young front; the range can sit low.');
+  if (ground.hostStocking < 0.999) messages.push(`The host forest the front spread through is stocked at ${Math.round(100 * ground.hostStocking)} % of full cover on average; the spread rate is converted at that stocking.`);
+  if (ground.otherShare > 0.1) {
+    messages.push(
+      `${Math.round(100 * ground.otherShare)} % of the ground the front spread over is not host forest (open land, non-host stands, water or built-up). ` +
+        'The radial method treats the ground as unbroken host forest, so the fitted movement rate is an effective rate over this mix and sits low; a transect fit across the same ground, or records inside unbroken forest, pin it better.',
+    );
+  }
+  if (front.flagged.length) messages.push(`${front.flagged.length} detection${front.flagged.length > 1 ? 's' : ''} far ahead of the front ${front.flagged.length > 1 ? 'were' : 'was'} left out as possible human-carried introductions (see the flagged records).`);
+  return messages;
+}
+
 /**
  * Fits the landscape pest's movement rate in host forest to survey records given by map position.
  * @param landscape - the scenario's map, resolved (the GIS loader's result); its infested cells give the origin
@@ -247,21 +267,7 @@ export function fitMapSurvey(scenario: LandscapeScenario, landscape: RasterLands
   const years = [...new Set(table.records.map((r) => r.year))].sort((a, b) => a - b);
   const used = table.records.length - flagged.length;
   const detections = table.records.filter((r) => r.detected).length;
-  const messages = ['On a map the movement rate is read from the radial front only (farthest detection per year from the infestation’s centre); the full-model fit is offered on transects.'];
-  if (lag) {
-    messages.push(
-      `A front spreading out from a small infestation moves slower at first than an established one: its radius lags by a logarithm of the time since the start (fitted start ${lag.startYear.toFixed(1)}). ` +
-        `Taking that lag out gives ${sig(lag.kmPerYear)} km/yr where the straight line through the front radii gives ${sig(lag.rawKmPerYear)} km/yr; the movement rate uses the former.`,
-    );
-  } else if (pulled) messages.push('The front radii were too few or too irregular to take out the slower start of a young front; the range can sit low.');
-  if (ground.hostStocking < 0.999) messages.push(`The host forest the front spread through is stocked at ${Math.round(100 * ground.hostStocking)} % of full cover on average; the spread rate is converted at that stocking.`);
-  if (ground.otherShare > 0.1) {
-    messages.push(
-      `${Math.round(100 * ground.otherShare)} % of the ground the front spread over is not host forest (open land, non-host stands, water or built-up). ` +
-        'The radial method treats the ground as unbroken host forest, so the fitted movement rate is an effective rate over this mix and sits low; a transect fit across the same ground, or records inside unbroken forest, pin it better.',
-    );
-  }
-  if (front.flagged.length) messages.push(`${front.flagged.length} detection${front.flagged.length > 1 ? 's' : ''} far ahead of the front ${front.flagged.length > 1 ? 'were' : 'was'} left out as possible human-carried introductions (see the flagged records).`);
+  const messages = mapFitMessages(front, lag, pulled, ground);
   const spec = FIELDS.diffusionHost;
   const ok = quick.diffusion !== null && quick.interval90 !== null && quick.interval90[0] > 0;
   const parameter: FittedParameter = {
