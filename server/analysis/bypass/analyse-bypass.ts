@@ -27,6 +27,22 @@ const TRANSPORT_MATTERS = 0.05;
 
 const pct = percent;
 
+/** The option's sentence: whether human transport or the width decides, with the chances behind it. */
+function bypassSentence(
+  name: string,
+  horizonYears: number,
+  c: { pBypass: number; overDraws: boolean; probability: number; wider100: number; holdsNatural: number; transportDecides: boolean },
+): string {
+  const chance =
+    `${pct(c.pBypass)}${c.overDraws ? ' over the draws where the front holds' : ''} ` +
+    `(at the central values ${pct(c.probability)}; ${pct(c.wider100)} with a clearing 100 m wider)`;
+  return c.transportDecides
+    ? `Option "${name}": human transport, not the width, decides. An established introduction beyond the clearing within ${horizonYears} years has probability ${chance}, ` +
+        `more than the risk that the front itself gets through (${pct(1 - c.holdsNatural)}). ${REGULATOR_NOTE}`
+    : `Option "${name}": the chance of an established human-carried introduction beyond the clearing within ${horizonYears} years is ${chance}; ` +
+        `natural spread is the larger risk here (front gets through: ${pct(1 - c.holdsNatural)}).`;
+}
+
 /**
  * Bypass risk per option from a run at the central values (curve by year, and with the clearing 100 m
  * wider), combined with the ensemble when there is one.
@@ -74,14 +90,7 @@ export function analyseBypass(
     const pBypass = ensemble ? ensemble.p : probability;
     const transportDecides = pBypass >= TRANSPORT_MATTERS && pBypass > 1 - holdsNatural;
     const wider100 = atLeastOne(tracker.total(1));
-    const chance =
-      `${pct(pBypass)}${ensemble ? ' over the draws where the front holds' : ''} ` +
-      `(at the central values ${pct(probability)}; ${pct(wider100)} with a clearing 100 m wider)`;
-    const sentence = transportDecides
-      ? `Option "${o.name}": human transport, not the width, decides. An established introduction beyond the clearing within ${s.horizonYears} years has probability ${chance}, ` +
-        `more than the risk that the front itself gets through (${pct(1 - holdsNatural)}). ${REGULATOR_NOTE}`
-      : `Option "${o.name}": the chance of an established human-carried introduction beyond the clearing within ${s.horizonYears} years is ${chance}; ` +
-        `natural spread is the larger risk here (front gets through: ${pct(1 - holdsNatural)}).`;
+    const sentence = bypassSentence(o.name, s.horizonYears, { pBypass, overDraws: ensemble !== null, probability, wider100, holdsNatural, transportDecides });
     return {
       name: o.name,
       widthM: o.widthM,

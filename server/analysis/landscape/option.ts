@@ -162,6 +162,33 @@ export function baselineFacts(plan: EvaluationPlan, problem: LandscapeProblem, r
   return { problem, raw, summary: summariseRun(problem, raw, plan.point, false), starts: startCells(problem, plan.level) };
 }
 
+/** The kind of a site's outcome and its sentence, from its arrival year without (b) and with (o) the band. */
+function siteVerdict(
+  b: number | null,
+  o: number | null,
+  delay: number | null,
+  wayPast: WayPast | null,
+  stepYears: number,
+  horizonYears: number,
+  withBand: { fringeOnly?: boolean; detectedYears: number | null },
+): { kind: VerdictKind; sentence: string } {
+  if (b === null && o === null) return { kind: 'not-reached', sentence: `Not reached within ${horizonYears} years, with or without the band.` };
+  if (b === null) return { kind: 'speeds-up', sentence: `Reached in year ${fmt(o!)} with the band, but not within the horizon without it.` };
+  if (o === null) {
+    let sentence = `Not reached within ${horizonYears} years with the band (year ${fmt(b)} without it).`;
+    if (withBand.fringeOnly) sentence += ` The site sees a thin fringe at the detection level from year ${fmt(withBand.detectedYears!)}, but no breeding population forms.`;
+    return { kind: 'not-crossed', sentence };
+  }
+  if (Math.abs(delay!) < Math.max(stepYears, 1e-9)) return { kind: 'no-change', sentence: `Arrives in year ${fmt(o)}, as without the band.` };
+  if (delay! > 0) {
+    return {
+      kind: 'delays',
+      sentence: `Arrives ${fmt(delay!)} years later than without the band (year ${fmt(o)} instead of ${fmt(b)})${wayPast ? `, ${wayPast === 'around' ? 'around the band' : 'through the band'}` : ''}.`,
+    };
+  }
+  return { kind: 'speeds-up', sentence: `Arrives ${fmt(-delay!)} years sooner than without the band (year ${fmt(o)} instead of ${fmt(b)}).` };
+}
+
 /** Everything the option's run says against the baseline's, before the "holds" check. */
 export function optionFacts(plan: EvaluationPlan, base: BaselineFacts, j: number, p: LandscapeProblem, raw: RawRun): OptionFacts {
   const { landscape, l, point, settings } = plan;
@@ -191,28 +218,7 @@ export function optionFacts(plan: EvaluationPlan, base: BaselineFacts, j: number
     let wayPast: WayPast | null = null;
     if (behindBand && o !== null) wayPast = (minOver(optAround, site.cells) ?? Infinity) <= o + tol(o) ? 'around' : 'through';
     const delay = b !== null && o !== null ? o - b : null;
-    let kind: VerdictKind;
-    let sentence: string;
-    if (b === null && o === null) {
-      kind = 'not-reached';
-      sentence = `Not reached within ${settings.horizonYears} years, with or without the band.`;
-    } else if (b === null) {
-      kind = 'speeds-up';
-      sentence = `Reached in year ${fmt(o!)} with the band, but not within the horizon without it.`;
-    } else if (o === null) {
-      kind = 'not-crossed';
-      sentence = `Not reached within ${settings.horizonYears} years with the band (year ${fmt(b)} without it).`;
-      if (run.sites[i].fringeOnly) sentence += ` The site sees a thin fringe at the detection level from year ${fmt(run.sites[i].detectedYears!)}, but no breeding population forms.`;
-    } else if (Math.abs(delay!) < Math.max(stepYears, 1e-9)) {
-      kind = 'no-change';
-      sentence = `Arrives in year ${fmt(o)}, as without the band.`;
-    } else if (delay! > 0) {
-      kind = 'delays';
-      sentence = `Arrives ${fmt(delay!)} years later than without the band (year ${fmt(o)} instead of ${fmt(b)})${wayPast ? `, ${wayPast === 'around' ? 'around the band' : 'through the band'}` : ''}.`;
-    } else {
-      kind = 'speeds-up';
-      sentence = `Arrives ${fmt(-delay!)} years sooner than without the band (year ${fmt(o)} instead of ${fmt(b)}).`;
-    }
+    const { kind, sentence } = siteVerdict(b, o, delay, wayPast, stepYears, settings.horizonYears, run.sites[i]);
     return {
       name: site.name,
       behindBand,
