@@ -187,6 +187,49 @@ function loopResult(
 }
 
 /**
+ * Observers fed at their output times inside each step (dense output) and at the step's end; the state
+ * they see holds the window's cells (cells outside are frozen, so u and h there already hold their values).
+ */
+function makeObserverFeed(
+  system: ReturnType<typeof makeReactionDiffusionSystem>,
+  observers: NonNullable<AdaptiveLoopOptions['observers']>,
+  outs: readonly number[],
+  u: Float64Array,
+  h: Float64Array,
+  win: CellWindow,
+) {
+  const state = { t: 0, tPrevious: 0, u, h };
+  const dense = new Float64Array(u.length + h.length);
+  let nextOut = 0;
+  const f = {
+    state,
+    calls: 0,
+    feed(t: number, from: Float64Array): boolean {
+      system.unpack(from, u, h, win.cells.lo, win.cells.hi);
+      state.tPrevious = state.t;
+      state.t = t;
+      f.calls++;
+      let stop = false;
+      for (const o of observers) if (o.handle(state)) stop = true;
+      return stop;
+    },
+    /** Feeds the output times passed in the step just taken, then its end; true when an observer stops the run. */
+    afterStep(stepper: NdfStepper): boolean {
+      let stop = false;
+      while (!stop && nextOut < outs.length && outs[nextOut] < stepper.t - 1e-12) {
+        const tq = outs[nextOut++];
+        if (tq > stepper.tOld) stop = f.feed(tq, stepper.interpolate(tq, dense));
+      }
+      if (stop) return true;
+      while (nextOut < outs.length && outs[nextOut] <= stepper.t + 1e-12) nextOut++;
+      return f.feed(stepper.t, stepper.y);
+    },
+  };
+  for (const o of observers) o.initialize?.(state);
+  return f;
+}
+
+/**
  * Runs the system from (u, h) to tEnd with error control; u and h hold the final state (and, while
  * running, the state of the last observer call).
  */
@@ -206,23 +249,7 @@ export function runAdaptiveLoop(
   const win = makeCellWindow(options.window ?? null, u, coeffs.hostAtCells);
   const { lo, hi } = win.cells;
   const stepper: NdfStepper = makeNdfStepper(system, 0, y, { rtol, atol, maxStep: options.maxStep ?? tEnd / 8, maxOrder: options.maxOrder, nonNegative: true }, { lo: 2 * lo, hi: 2 * hi });
-  const outs = outputTimes(options, tEnd);
-  let nextOut = 0;
-  const state = { t: 0, tPrevious: 0, u, h };
-  const dense = new Float64Array(2 * n);
-  let observerCalls = 0;
-  for (const o of observers) o.initialize?.(state);
-
-  function feed(t: number, from: Float64Array): boolean {
-    // Cells outside the window are frozen, so u and h there already hold their values.
-    system.unpack(from, u, h, win.cells.lo, win.cells.hi);
-    state.tPrevious = state.t;
-    state.t = t;
-    observerCalls++;
-    let stop = false;
-    for (const o of observers) if (o.handle(state)) stop = true;
-    return stop;
-  }
+  const feed = makeObserverFeed(system, observers, outputTimes(options, tEnd), u, h, win);
 
   let status: AdaptiveResult['status'] = 'completed';
   let message = `reached the end time ${tEnd} yr`;
@@ -233,21 +260,11 @@ export function runAdaptiveLoop(
       break;
     }
     const k = stepper.counters.accepted;
-    let stop = false;
-    if (observers.length > 0) {
-      while (!stop && nextOut < outs.length && outs[nextOut] < stepper.t - 1e-12) {
-        const tq = outs[nextOut++];
-        if (tq > stepper.tOld) stop = feed(tq, stepper.interpolate(tq, dense));
-      }
-      if (!stop) {
-        while (nextOut < outs.length && outs[nextOut] <= stepper.t + 1e-12) nextOut++;
-        stop = feed(stepper.t, stepper.y);
-      }
-    }
+    const stop = observers.length > 0 && feed.afterStep(stepper);
     if (win.adjust(stepper.y)) stepper.setWindow(2 * win.cells.lo, 2 * win.cells.hi);
     if (stop) {
       status = 'stopped';
-      message = `stopped by an observer at t = ${state.t.toPrecision(6)} yr`;
+      message = `stopped by an observer at t = ${feed.state.t.toPrecision(6)} yr`;
       break;
     }
     if (k % pollEvery === 0) {
@@ -261,11 +278,11 @@ export function runAdaptiveLoop(
   }
   if (status !== 'stopped') {
     system.unpack(stepper.y, u, h, 0, n);
-    state.t = stepper.t;
+    feed.state.t = stepper.t;
   }
-  for (const o of observers) o.finalize?.(state);
-  return loopResult(status, message, status === 'stopped' ? state.t : stepper.t, stepper, system, {
-    observerCalls,
+  for (const o of observers) o.finalize?.(feed.state);
+  return loopResult(status, message, status === 'stopped' ? feed.state.t : stepper.t, stepper, system, {
+    observerCalls: feed.calls,
     largestWindowCells: win.largest,
     nCells: n,
     rtol,
