@@ -35,44 +35,26 @@ export interface RasterMesh extends Mesh {
 }
 
 /**
- * Builds the mesh of a raster.
- *
- * @param geometry - raster geometry (cell side in m, origin in m)
- * @param classAtCells - class index per raster cell (RASTER_CLASSES)
- * @param outside - what 'outside' cells are to the pest
- * @param mapEdges - what lies beyond the map's edges
+ * The faces between cells (each once, from the east and south neighbours, low index first) and, per cell,
+ * its lethal faces (to the map's edge or an outside cell, as the settings say) and those among them along x.
  */
-export function makeRasterMesh(
-  geometry: RasterGeometry,
-  classAtCells: Uint8Array,
+function meshFaces(
+  nx: number,
+  ny: number,
+  nCells: number,
+  cellOfRaster: Int32Array,
   outside: 'impassable' | 'lethal',
-  mapEdges: 'reflecting' | 'lethal' = 'reflecting',
-): RasterMesh {
-  const { nx, ny } = geometry;
-  if (classAtCells.length !== nx * ny) throw new RangeError(`classAtCells has ${classAtCells.length} entries; the raster has ${nx}×${ny}`);
-  const cellKm = geometry.cellM / 1000;
-  const cellOfRaster = new Int32Array(nx * ny).fill(-1);
-  let nCells = 0;
-  for (let k = 0; k < nx * ny; k++) if (classAtCells[k] !== OUTSIDE) cellOfRaster[k] = nCells++;
-  const rasterOfCell = new Int32Array(nCells);
-  const volumes = new Float64Array(nCells).fill(cellKm * cellKm);
-  const centres = new Float64Array(2 * nCells);
+  mapEdges: 'reflecting' | 'lethal',
+): { faces: number[]; lethalFacesAtCells: Uint8Array; lethalFacesXAtCells: Uint8Array } {
   const lethalFacesAtCells = new Uint8Array(nCells);
   const lethalFacesXAtCells = new Uint8Array(nCells);
-  const x0 = geometry.originXM / 1000;
-  const y0 = geometry.originYM / 1000;
   const faces: number[] = [];
   for (let row = 0; row < ny; row++) {
     for (let col = 0; col < nx; col++) {
-      const k = row * nx + col;
-      const c = cellOfRaster[k];
+      const c = cellOfRaster[row * nx + col];
       if (c < 0) continue;
-      rasterOfCell[c] = k;
-      centres[2 * c] = x0 + (col + 0.5) * cellKm;
-      centres[2 * c + 1] = y0 - (row + 0.5) * cellKm;
       let lethal = 0;
       let lethalX = 0;
-      // East and south neighbours carry the face (each face once, low index first).
       const sides: [number, number, boolean][] = [
         [row, col + 1, true],
         [row + 1, col, true],
@@ -96,6 +78,42 @@ export function makeRasterMesh(
       lethalFacesXAtCells[c] = lethalX;
     }
   }
+  return { faces, lethalFacesAtCells, lethalFacesXAtCells };
+}
+
+/**
+ * Builds the mesh of a raster.
+ *
+ * @param geometry - raster geometry (cell side in m, origin in m)
+ * @param classAtCells - class index per raster cell (RASTER_CLASSES)
+ * @param outside - what 'outside' cells are to the pest
+ * @param mapEdges - what lies beyond the map's edges
+ */
+export function makeRasterMesh(
+  geometry: RasterGeometry,
+  classAtCells: Uint8Array,
+  outside: 'impassable' | 'lethal',
+  mapEdges: 'reflecting' | 'lethal' = 'reflecting',
+): RasterMesh {
+  const { nx, ny } = geometry;
+  if (classAtCells.length !== nx * ny) throw new RangeError(`classAtCells has ${classAtCells.length} entries; the raster has ${nx}×${ny}`);
+  const cellKm = geometry.cellM / 1000;
+  const cellOfRaster = new Int32Array(nx * ny).fill(-1);
+  let nCells = 0;
+  for (let k = 0; k < nx * ny; k++) if (classAtCells[k] !== OUTSIDE) cellOfRaster[k] = nCells++;
+  const rasterOfCell = new Int32Array(nCells);
+  const volumes = new Float64Array(nCells).fill(cellKm * cellKm);
+  const centres = new Float64Array(2 * nCells);
+  const x0 = geometry.originXM / 1000;
+  const y0 = geometry.originYM / 1000;
+  for (let k = 0; k < nx * ny; k++) {
+    const c = cellOfRaster[k];
+    if (c < 0) continue;
+    rasterOfCell[c] = k;
+    centres[2 * c] = x0 + ((k % nx) + 0.5) * cellKm;
+    centres[2 * c + 1] = y0 - (Math.floor(k / nx) + 0.5) * cellKm;
+  }
+  const { faces, lethalFacesAtCells, lethalFacesXAtCells } = meshFaces(nx, ny, nCells, cellOfRaster, outside, mapEdges);
   const nFaces = faces.length / 2;
   const mesh: RasterMesh = {
     dim: 2,

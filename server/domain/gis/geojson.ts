@@ -20,6 +20,42 @@ export interface Stand {
 export const MAX_FEATURES = 20_000;
 
 /**
+ * A feature's polygons as rings of [longitude, latitude], or null after adding the first problem found;
+ * every position read is added to `sums` (their mean picks the UTM zone).
+ */
+function readPolygons(polys: unknown[], where: string, problems: Problem[], sums: { lon: number; lat: number; n: number }): Xy[][][] | null {
+  const out: Xy[][][] = [];
+  for (const p of polys) {
+    if (!Array.isArray(p) || p.length === 0) {
+      problems.push({ path: `${where}.geometry`, value: p, message: 'a polygon needs an outer ring' });
+      return null;
+    }
+    const rings: Xy[][] = [];
+    for (const r of p) {
+      if (!Array.isArray(r) || r.length < 4) {
+        problems.push({ path: `${where}.geometry`, value: Array.isArray(r) ? `${r.length} positions` : r, message: 'a linear ring needs at least 4 positions (closed)' });
+        return null;
+      }
+      const ring: Xy[] = [];
+      for (const pos of r) {
+        const [lon, lat] = Array.isArray(pos) ? pos : [];
+        if (typeof lon !== 'number' || typeof lat !== 'number' || !(Math.abs(lon) <= 180) || !(Math.abs(lat) <= 90)) {
+          problems.push({ path: `${where}.geometry`, value: pos, message: 'positions must be [longitude, latitude] in degrees (RFC 7946); this one is not (a projected file? export it as WGS84)' });
+          return null;
+        }
+        ring.push([lon, lat]);
+        sums.lon += lon;
+        sums.lat += lat;
+        sums.n++;
+      }
+      rings.push(ring);
+    }
+    out.push(rings);
+  }
+  return out;
+}
+
+/**
  * Reads a GeoJSON FeatureCollection of stand polygons (RFC 7946: WGS84 longitude/latitude) and projects it
  * to the WGS84 UTM zone of its centre (named in the result: `projector.crs`). Edges are taken as straight
  * lines in the projected plane (at stand scale the difference from straight lon/lat lines is centimetres).
@@ -47,7 +83,7 @@ export function readStandMap(text: string, path: string, fileName: string, stems
   if (fc.features.length > MAX_FEATURES) throw fail([{ path, value: fileName, message: `has ${fc.features.length} features; at most ${MAX_FEATURES}` }]);
   const problems: Problem[] = [];
   const raw: { props: ReturnType<typeof StandPropertiesSchema.parse>; polys: Xy[][][] }[] = [];
-  let lonSum = 0, latSum = 0, nPts = 0;
+  const sums = { lon: 0, lat: 0, n: 0 };
   fc.features.forEach((f: unknown, i: number) => {
     const where = `${fileName} features[${i}]`;
     const feat = f as { type?: unknown; geometry?: { type?: unknown; coordinates?: unknown }; properties?: unknown };
@@ -68,39 +104,13 @@ export function readStandMap(text: string, path: string, fileName: string, stems
       problems.push(...problemsFromZod(parsed.error.issues, feat.properties, [`${where}.properties`]));
       return;
     }
-    const out: Xy[][][] = [];
-    for (const p of polys) {
-      if (!Array.isArray(p) || p.length === 0) {
-        problems.push({ path: `${where}.geometry`, value: p, message: 'a polygon needs an outer ring' });
-        return;
-      }
-      const rings: Xy[][] = [];
-      for (const r of p) {
-        if (!Array.isArray(r) || r.length < 4) {
-          problems.push({ path: `${where}.geometry`, value: Array.isArray(r) ? `${r.length} positions` : r, message: 'a linear ring needs at least 4 positions (closed)' });
-          return;
-        }
-        const ring: Xy[] = [];
-        for (const pos of r) {
-          const [lon, lat] = Array.isArray(pos) ? pos : [];
-          if (typeof lon !== 'number' || typeof lat !== 'number' || !(Math.abs(lon) <= 180) || !(Math.abs(lat) <= 90)) {
-            problems.push({ path: `${where}.geometry`, value: pos, message: 'positions must be [longitude, latitude] in degrees (RFC 7946); this one is not (a projected file? export it as WGS84)' });
-            return;
-          }
-          ring.push([lon, lat]);
-          lonSum += lon;
-          latSum += lat;
-          nPts++;
-        }
-        rings.push(ring);
-      }
-      out.push(rings);
-    }
+    const out = readPolygons(polys, where, problems, sums);
+    if (!out) return;
     raw.push({ props: parsed.data, polys: out });
   });
   if (problems.length) throw fail(problems.slice(0, 20));
-  if (nPts === 0) throw fail([{ path, value: fileName, message: 'has no stand polygons' }]);
-  const proj = projector(utmCrsFor(lonSum / nPts, latSum / nPts));
+  if (sums.n === 0) throw fail([{ path, value: fileName, message: 'has no stand polygons' }]);
+  const proj = projector(utmCrsFor(sums.lon / sums.n, sums.lat / sums.n));
   const stands: Stand[] = raw.map(({ props, polys }) => {
     const p = resolveQuantities(props);
     return {

@@ -11,6 +11,18 @@ export interface GridSpec {
   originYM: number;
 }
 
+/** Bounding box of rings of points. */
+function boundsOf(rings: readonly (readonly (readonly [number, number])[])[]): { xmin: number; xmax: number; ymin: number; ymax: number } {
+  let xmin = Infinity, xmax = -Infinity, ymin = Infinity, ymax = -Infinity;
+  for (const r of rings) for (const [x, y] of r) {
+    if (x < xmin) xmin = x;
+    if (x > xmax) xmax = x;
+    if (y < ymin) ymin = y;
+    if (y > ymax) ymax = y;
+  }
+  return { xmin, xmax, ymin, ymax };
+}
+
 /**
  * Adds `weight × (share of each cell inside the polygon)` to `out` (row-major, row 0 north). The share is the
  * exact area of polygon ∩ cell over the cell area (to round-off), not a cell-centre test, so Σ share × cell
@@ -30,13 +42,7 @@ export function addPolygonCover(grid: GridSpec, polygon: Polygon, out: Float32Ar
   const { nx, ny, cellM, originXM, originYM } = grid;
   const bottom = originYM - ny * cellM;
   const rings = orientPolygon(polygon).map((r) => r.map(([x, y]) => [(x - originXM) / cellM, (y - bottom) / cellM] as [number, number]));
-  let xmin = Infinity, xmax = -Infinity, ymin = Infinity, ymax = -Infinity;
-  for (const r of rings) for (const [x, y] of r) {
-    if (x < xmin) xmin = x;
-    if (x > xmax) xmax = x;
-    if (y < ymin) ymin = y;
-    if (y > ymax) ymax = y;
-  }
+  const { xmin, xmax, ymin, ymax } = boundsOf(rings);
   const c0 = Math.max(0, Math.floor(xmin));
   const c1 = Math.min(nx - 1, Math.floor(xmax));
   const b0 = Math.max(0, Math.floor(ymin)); // rows counted from the south edge
