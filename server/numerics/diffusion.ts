@@ -114,6 +114,9 @@ const NEGATIVE_TOLERANCE = 1e-13;
  * Crank–Nicolson ring near sharp fronts. Backward Euler, used as fallback, is positivity preserving because
  * `I - dt L` is an M-matrix. Scheme: Bank, Coughran, Fichtner, Grosse, Rose & Smith (1985), IEEE Trans.
  * Electron Devices 32:1992–2007; error constants in Hosea & Shampine (1996), Appl. Numer. Math. 20:21–37.
+ *
+ * Longer than 80 lines on purpose: one closure owns the factorisations of both stages and of the fallback
+ * (kept while the step stays the same) and the scratch the step reuses.
  */
 export function makeDiffusionStepper(op: DiffusionOperator): DiffusionStepper {
   const n = op.n;

@@ -52,6 +52,10 @@ export interface LockstepTridiagonal {
 
 /**
  * Makes a solver for systems of up to `capacity` unknowns; all scratch is allocated here, once.
+ *
+ * Longer than 80 lines on purpose: the closure owns the scratch of both paths (the four-block lockstep
+ * partition and the Thomas fallback) and the factorisation that `solve` reuses; its two long inner
+ * functions are the hand-unrolled hot loops.
  * @param capacity - largest m a factorisation may use
  * @param options.forceThomas - always use the Thomas path (for comparisons and tests)
  */
@@ -104,7 +108,12 @@ export function makeLockstepTridiagonal(capacity: number, options: { forceThomas
     return out;
   }
 
-  /** Lockstep factorisation; false when a pivot is not positive (then the caller falls back). */
+  /**
+   * Lockstep factorisation; false when a pivot is not positive (then the caller falls back).
+   * Longer than 80 lines on purpose: four independent elimination chains are unrolled by hand and run in
+   * one loop (that is where the speed comes from: the chains' recurrences overlap), followed by the small
+   * reduced system that couples the blocks.
+   */
   function factorLockstep(lower: Float64Array, diag: Float64Array, upper: Float64Array): boolean {
     const L = blockLen;
     const s0 = 0;
@@ -248,6 +257,10 @@ export function makeLockstepTridiagonal(capacity: number, options: { forceThomas
     return true;
   }
 
+  /**
+   * Solve with the lockstep factorisation. Longer than 80 lines on purpose: the forward and backward sweeps
+   * of the four chains are unrolled by hand in lockstep, as in the factorisation.
+   */
   function solveLockstep(rhs: Float64Array, out: Float64Array): Float64Array {
     const L = blockLen;
     const s1 = L;

@@ -103,6 +103,11 @@ export interface NdfStepper {
 
 /**
  * Makes an NDF stepper for `system` starting at (t0, y0).
+ *
+ * Longer than 80 lines on purpose: one closure owns the difference table, the Newton matrix and its
+ * factorisation, the weights and the counters that every inner function (start, Newton, step, step-size
+ * change, dense output) reads and updates; as separate modules they would pass a dozen typed arrays and
+ * the mutable step state back and forth on every step.
  * @throws RangeError for tolerances or orders out of range
  */
 export function makeNdfStepper(
@@ -278,6 +283,12 @@ export function makeNdfStepper(
     return -1;
   }
 
+  /**
+   * One accepted step (retrying rejected ones) of the current order, then the order and the next step.
+   * Longer than 80 lines on purpose: it is the algorithm of Shampine & Reichelt (1997) §2 read top to
+   * bottom (step-size limit, predictor, Newton with Jacobian refresh, error test, positivity, difference
+   * update, order choice), each stage using the locals of the one before.
+   */
   function step(tBound: number): boolean {
     if (!started) start(tBound);
     const minStep = 10 * Math.max(Math.abs(t) * Number.EPSILON, Number.MIN_VALUE);

@@ -47,7 +47,12 @@ export interface ReactionDiffusionSystem extends StiffSystem {
 /** Relative step of the forward differences for ∂g/∂u and ∂g/∂h. */
 const DIFF_STEP = 1e-7;
 
-/** Makes the system; all scratch is allocated here. */
+/**
+ * Makes the system; all scratch is allocated here.
+ *
+ * Longer than 80 lines on purpose: the right-hand side, the Jacobian, its factorisation and the solve share
+ * the coefficients and scratch of one closure, and each is a single hot loop over the active window.
+ */
 export function makeReactionDiffusionSystem(
   op: DiffusionOperator,
   coeffs: ReactionDiffusionCoefficients,
