@@ -16,6 +16,16 @@ export interface FieldState {
   readonly u: Float64Array;
   /** Remaining host fraction per cell. */
   readonly h: Float64Array;
+  /**
+   * Dense output: the density of one cell at a time in [tPrevious, t] (the integrator's interpolating
+   * polynomial over the step), when the integrator has one; absent for fixed steps.
+   */
+  readonly densityAt?: (cell: number, t: number) => number;
+  /**
+   * Dense output of the whole state at a time in [tPrevious, t], written into u and h (cells the integrator
+   * skips keep the values they hold, so pass copies of this state's u and h); absent for fixed steps.
+   */
+  readonly stateAt?: (t: number, u: Float64Array, h: Float64Array) => void;
 }
 
 /**
@@ -97,11 +107,19 @@ export class LevelCrossings {
     }
     this.lastT = t;
   }
-  /** Values at the end of a step ending at t (the step began at the previous call's time). */
-  update(t: number, values: (k: number) => number): void {
+  /**
+   * Values at the end of a step ending at t (the step began at the previous call's time). With `valueAt`
+   * (value k at a time inside the step, from the integrator's dense output) a passage is dated by a root
+   * of the interpolant; without it, linearly.
+   */
+  update(t: number, values: (k: number) => number, valueAt?: (k: number, t: number) => number): void {
     for (let k = 0; k < this.last.length; k++) {
       const now = values(k);
-      if (this.times[k] === null && now >= this.level) this.times[k] = interpolateCrossing(this.lastT, this.last[k], t, now, this.level);
+      if (this.times[k] === null && now >= this.level) {
+        this.times[k] = valueAt
+          ? firstPassage((tq) => valueAt(k, tq), this.lastT, this.last[k], t, now, this.level)
+          : interpolateCrossing(this.lastT, this.last[k], t, now, this.level);
+      }
       this.last[k] = now;
     }
     this.lastT = t;
@@ -116,4 +134,39 @@ export class LevelCrossings {
 export function interpolateCrossing(t0: number, v0: number, t1: number, v1: number, level: number): number {
   const frac = v1 > v0 ? (level - v0) / (v1 - v0) : 1;
   return t0 + Math.min(1, Math.max(0, frac)) * (t1 - t0);
+}
+
+/**
+ * Time in [t0, t1] where f reaches `level`, given f(t0) = v0 < level ≤ v1 = f(t1) (the passage, when f
+ * rises through the level once in the step, as it does for steps resolving the front): the Illinois variant of
+ * regula falsi (Dowell & Jarratt 1971, BIT 11:168–174), which keeps the bracket and converges superlinearly.
+ * Stops when the bracket is below 1e-9 of the interval or f is within 1e-12 relative of the level; returns
+ * the linear estimate when v0 is not below the level (a value already at it).
+ */
+export function firstPassage(f: (t: number) => number, t0: number, v0: number, t1: number, v1: number, level: number): number {
+  if (!(v0 < level) || !(t1 > t0)) return interpolateCrossing(t0, v0, t1, v1, level);
+  let a = t0;
+  let fa = v0 - level;
+  let b = t1;
+  let fb = v1 - level;
+  let side = 0;
+  const tolT = 1e-9 * (t1 - t0);
+  for (let it = 0; it < 60 && b - a > tolT; it++) {
+    const c = (a * fb - b * fa) / (fb - fa);
+    const fc = f(c) - level;
+    if (!Number.isFinite(fc)) break;
+    if (Math.abs(fc) <= 1e-12 * Math.abs(level)) return c;
+    if (fc < 0) {
+      a = c;
+      fa = fc;
+      if (side === -1) fb /= 2;
+      side = -1;
+    } else {
+      b = c;
+      fb = fc;
+      if (side === 1) fa /= 2;
+      side = 1;
+    }
+  }
+  return (a * fb - b * fa) / (fb - fa);
 }

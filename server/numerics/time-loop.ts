@@ -16,7 +16,7 @@ export { splitStepper } from './stepper.ts';
 export type { StepController, StepAttempt } from './controller.ts';
 export { fixedStepController } from './controller.ts';
 export type { FieldState, Observer } from './observers.ts';
-export { Schedule, LevelCrossings, interpolateCrossing } from './observers.ts';
+export { Schedule, LevelCrossings, interpolateCrossing, firstPassage } from './observers.ts';
 
 export interface TimeLoopOptions {
   /** End time [yr], > 0. */

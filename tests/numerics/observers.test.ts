@@ -1,6 +1,6 @@
 /** Observers scheduled by time: Schedule due times and LevelCrossings dated by linear dense output (hand values). */
 import { describe, expect, it } from 'vitest';
-import { interpolateCrossing, LevelCrossings, Schedule } from '../../server/numerics/observers.ts';
+import { firstPassage, interpolateCrossing, LevelCrossings, Schedule } from '../../server/numerics/observers.ts';
 import { expectAllClose } from '../helpers/close.ts';
 
 describe('Schedule.periodic', () => {
@@ -82,5 +82,25 @@ describe('LevelCrossings', () => {
     lc.update(2, () => 0);
     lc.update(3, () => 4);
     expect(lc.times[0]).toBe(0.5);
+  });
+});
+
+describe('firstPassage (Illinois regula falsi on a dense-output interpolant)', () => {
+  it('finds the passage of closed forms to round-off: e^t through 2, and a cubic through 0.3', () => {
+    expect(firstPassage(Math.exp, 0, 1, 1, Math.E, 2)).toBeCloseTo(Math.LN2, 12);
+    // (t − 0.2)³ + 0.3 passes 0.3 at t = 0.2 (a flat passage: regula falsi without the Illinois halving stalls).
+    const f = (t: number) => (t - 0.2) ** 3 + 0.3;
+    expect(Math.abs(firstPassage(f, 0, f(0), 1, f(1), 0.3) - 0.2)).toBeLessThan(1e-3);
+  });
+  it('falls back to the chord when the start is not below the level, and LevelCrossings uses it when given valueAt', () => {
+    expect(firstPassage(Math.exp, 0, 2, 1, Math.E, 2)).toBe(interpolateCrossing(0, 2, 1, Math.E, 2));
+    const c = new LevelCrossings(1, 2);
+    c.start(0, () => 1);
+    c.update(1, () => Math.E, (_k, t) => Math.exp(t));
+    expect(c.times[0]).toBeCloseTo(Math.LN2, 12);
+    const linear = new LevelCrossings(1, 2);
+    linear.start(0, () => 1);
+    linear.update(1, () => Math.E);
+    expect(linear.times[0]).toBeCloseTo(1 / (Math.E - 1), 12); // the chord's date, 0.58 instead of 0.69
   });
 });

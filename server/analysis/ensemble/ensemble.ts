@@ -88,7 +88,7 @@ export function evaluatePoint(sp: PointScenario | Problem, settings: { criticalW
         // Stop once the outcome is known: crossing and all arrivals, or (held) the sites on the near side.
         const done = () =>
           pinned ? siteArrivals.arrivalYears.every((a, k) => beyond[k] || a !== null) : watch.crossedYears !== null && siteArrivals.allArrived();
-        const out = runLayout({ scenario: p, pieces, resolution, problem, record: false, shouldCancel, observers: [watch, siteArrivals, { handle: done }] });
+        const out = runLayout({ scenario: p, pieces, resolution, problem, record: false, regularOutputs: false, shouldCancel, observers: [watch, siteArrivals, { handle: done }] });
         crossingYears = pinned ? null : watch.crossedYears;
         arrivals = out.arrivals.arrivalYears.map((a, k) => (pinned && beyond[k] ? null : a));
         if (crossingYears !== null) pinned = false;

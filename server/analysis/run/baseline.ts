@@ -8,7 +8,7 @@ import { optionPlacementProblems, segmentBreaks } from '../../model/scenario.ts'
 import { ScenarioError, type Problem as FieldProblem } from '../../model/errors.ts';
 import type { TransectMesh } from '../../domain/transect-mesh.ts';
 import { cellIndexAt } from '../../numerics/grid.ts';
-import { type FieldState, type Observer } from '../../numerics/time-loop.ts';
+import { firstPassage, type FieldState, type Observer } from '../../numerics/time-loop.ts';
 import { chooseResolution, discretise, type Resolution } from '../../problem/discretise.ts';
 import { type ClearingSpec } from '../../problem/layout.ts';
 import { asProblem, layoutOf, type Problem } from '../../problem/problem.ts';
@@ -130,7 +130,24 @@ class BaselineWatch implements Observer {
   }
   handle(st: FieldState): void {
     this.crossing.handle(st);
-    if (!this.snapshot && st.u[this.triggerCell] >= WINDOW_LEVEL) this.take(st);
+    if (this.snapshot || !(st.u[this.triggerCell] >= WINDOW_LEVEL)) return;
+    const at = st.densityAt;
+    const v0 = at && st.stateAt && st.t > st.tPrevious ? at(this.triggerCell, st.tPrevious) : NaN;
+    if (!(v0 < WINDOW_LEVEL)) {
+      this.take(st);
+      return;
+    }
+    // The state when the level passed the trigger cell, from the dense output (not the step's end).
+    const tp = firstPassage((tq) => at!(this.triggerCell, tq), st.tPrevious, v0, st.t, st.u[this.triggerCell], WINDOW_LEVEL);
+    const u = Float64Array.from(st.u);
+    const h = Float64Array.from(st.h);
+    st.stateAt!(tp, u, h);
+    // The interpolant may dip a round-off below 0 between step ends; densities and hosts cannot.
+    for (let i = 0; i < u.length; i++) {
+      if (u[i] < 0) u[i] = 0;
+      if (h[i] < 0) h[i] = 0;
+    }
+    this.snapshot = { mesh: this.mesh, u, h, t: tp };
   }
 }
 
@@ -165,6 +182,8 @@ export function analyseBaseline(sp: PointScenario | Problem, options: ClearingSp
     problem,
     record,
     observers: [...watches, stopper],
+    // Unrecorded runs only date events (the dense output does that inside each step): no sampling in time.
+    regularOutputs: record,
     shouldCancel: settings.shouldCancel,
     onProgress: (f) => settings.onProgress?.(f, 'baseline'),
   });

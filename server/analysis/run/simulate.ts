@@ -25,6 +25,8 @@ export interface RunRequest {
   observers?: Observer[];
   /** Times [yr] at which observers must see the state exactly (adaptive steps: by dense output; fixed steps: multiples of the step). */
   outputTimes?: readonly number[];
+  /** false: observers see step ends only (they date events by the dense output; no series sampled in time). */
+  regularOutputs?: boolean;
   /** Record profiles and the space–time map (default true; ensembles switch it off). */
   record?: boolean;
   shouldCancel?: () => boolean;
@@ -79,10 +81,11 @@ export function makeEngineStepper(problem: TransectProblem): { op: DiffusionOper
 /** Absolute tolerance of the adaptive integrator as a share of its relative tolerance [relative density]. */
 const ATOL_PER_RTOL = 1e-3;
 /**
- * Observers see an adaptive run every OUTPUT_STEPS × stepYears (dense output), besides every accepted step.
- * stepYears is 0.05/(rate scale); sampling at 0.2/(rate scale) dates level crossings by linear interpolation
- * between samples to ≈ (0.2/r)² · r/8 = 0.005/r yr for an exponentially rising density (rate ≤ r), below
- * the 0.05 yr that counts as a change in arrival; pinning checks and snapshots fall on whole multiples.
+ * Observers see an adaptive run every OUTPUT_STEPS × stepYears (dense output), besides every accepted step,
+ * unless a run asks for step ends only (`regularOutputs: false`). stepYears is 0.05/(rate scale): series
+ * (front positions, totals) are sampled every 0.2/(rate scale), and pinning checks and snapshots fall on
+ * whole multiples. Level passages (arrivals, crossings) do not depend on the sampling: the trackers date
+ * them by a root of the step's interpolating polynomial (FieldState.densityAt).
  */
 export const OUTPUT_STEPS = Number(process.env.OUTPUT_STEPS ?? 4);
 /** Host fraction below which a cell behind the front counts as "hosts gone" for the active window. */
@@ -111,7 +114,19 @@ export function integrate(
   stepper: FieldStepper,
   u: Float64Array,
   h: Float64Array,
-  o: { tEnd: number; detectionLevel: number; observers: Observer[]; outputTimes?: readonly number[]; shouldCancel?: () => boolean; onProgress?: (fraction: number) => void },
+  o: {
+    tEnd: number;
+    detectionLevel: number;
+    observers: Observer[];
+    outputTimes?: readonly number[];
+    /**
+     * Also show observers the state every OUTPUT_STEPS × stepYears (default true: series and snapshots
+     * sampled in time); false when they only date events, which the dense output does inside each step.
+     */
+    regularOutputs?: boolean;
+    shouldCancel?: () => boolean;
+    onProgress?: (fraction: number) => void;
+  },
 ): SolverResult {
   const { stepYears, tolerance } = problem.resolution;
   if (tolerance === undefined) {
@@ -126,7 +141,7 @@ export function integrate(
       tEnd: o.tEnd,
       rtol: tolerance,
       atol: ATOL_PER_RTOL * tolerance,
-      outputEvery: OUTPUT_STEPS * stepYears,
+      outputEvery: o.regularOutputs === false ? undefined : OUTPUT_STEPS * stepYears,
       outputTimes: o.outputTimes ? [...new Set(o.outputTimes.filter((t) => t > 0 && t <= o.tEnd))].sort((a, b) => a - b) : undefined,
       window: { floor: windowFloor(o.detectionLevel, lowDensityGrowth(problem), o.tEnd), hostFloor: HOSTS_GONE },
       observers: o.observers,
@@ -164,6 +179,7 @@ export function runLayout(req: RunRequest): RunOutput {
     detectionLevel: s.detectionLevel,
     observers,
     outputTimes,
+    regularOutputs: req.regularOutputs,
     shouldCancel: req.shouldCancel,
     onProgress: req.onProgress,
   });

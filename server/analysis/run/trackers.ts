@@ -102,10 +102,18 @@ export function makeProbe(grid: Grid, xKm: number): PointProbe {
 
 /** Density at a probe. */
 export function probeValue(p: PointProbe, u: Float64Array): number {
-  const a = u[p.cell];
-  if (p.across !== undefined) return Math.max(a, u[p.across]);
+  return probeOf(p, u[p.cell], p.across !== undefined ? u[p.across] : p.weight === 0 ? 0 : u[p.other]);
+}
+
+/** Density at a probe at time tq inside the last step, from the integrator's dense output. */
+export function probeValueAt(p: PointProbe, densityAt: (cell: number, t: number) => number, tq: number): number {
+  return probeOf(p, densityAt(p.cell, tq), p.across !== undefined ? densityAt(p.across, tq) : p.weight === 0 ? 0 : densityAt(p.other, tq));
+}
+
+/** The probe's value from its cell's density a and its neighbour's b (the cell across an edge, or the interpolation partner). */
+function probeOf(p: PointProbe, a: number, b: number): number {
+  if (p.across !== undefined) return Math.max(a, b);
   if (p.weight === 0) return a;
-  const b = u[p.other];
   if (a > 0 && b > 0) return a * Math.pow(b / a, p.weight);
   return a + p.weight * (b - a);
 }
@@ -130,7 +138,8 @@ export class ArrivalTracker implements Observer {
     this.crossings.start(s.t, (k) => probeValue(this.probes[k], s.u));
   }
   handle(s: FieldState): void {
-    this.crossings.update(s.t, (k) => probeValue(this.probes[k], s.u));
+    const at = s.densityAt;
+    this.crossings.update(s.t, (k) => probeValue(this.probes[k], s.u), at && ((k, tq) => probeValueAt(this.probes[k], at, tq)));
   }
   /** True once every site has been reached. */
   allArrived(): boolean {

@@ -2,7 +2,7 @@
  * Observers of the barrier analysis: the crossing watch (front established beyond the far edge), the
  * approach watch (did the pest reach the clearing), and the levels and probes they use.
  */
-import { type FieldState, type Observer } from '../../numerics/time-loop.ts';
+import { firstPassage, type FieldState, type Observer } from '../../numerics/time-loop.ts';
 import { cellIndexAt, type Grid } from '../../numerics/grid.ts';
 import { alleeThreshold, lowDensityRate } from '../../model/growth.ts';
 import type { PointScenario } from '../../model/scenario.ts';
@@ -41,17 +41,22 @@ export class CrossingWatch implements Observer {
   }
   handle(s: FieldState): boolean {
     if (this.crossedYears !== null) return this.stop;
-    if (this.probeCell >= 0 && s.u[this.probeCell] >= this.detection) {
-      this.crossedYears = s.t;
-      return this.stop;
-    }
-    for (const i of this.beyond) {
-      if (s.u[i] >= this.levels[i]) {
-        this.crossedYears = s.t;
-        return this.stop;
-      }
-    }
-    return false;
+    let crossed = false;
+    let when = s.t;
+    // Dated inside the step by the dense output, when there is one (each cell that is above its level now
+    // was below it at the previous look); else at the step's end.
+    const at = s.densityAt && s.t > s.tPrevious ? s.densityAt : null;
+    const note = (cell: number, level: number) => {
+      crossed = true;
+      if (!at) return;
+      const v0 = at(cell, s.tPrevious);
+      if (v0 < level) when = Math.min(when, firstPassage((tq) => at(cell, tq), s.tPrevious, v0, s.t, s.u[cell], level));
+    };
+    if (this.probeCell >= 0 && s.u[this.probeCell] >= this.detection) note(this.probeCell, this.detection);
+    if (!crossed || at) for (const i of this.beyond) if (s.u[i] >= this.levels[i]) note(i, this.levels[i]);
+    if (!crossed) return false;
+    this.crossedYears = when;
+    return this.stop;
   }
 }
 

@@ -90,7 +90,18 @@ export function initialFields(solver: WindowSolver, start: StartState): { u: Flo
 
 /** An observer that sees absolute time (run time + offset). */
 export function withOffset(o: Observer, offset: number): Observer {
-  const shift = (s: FieldState): FieldState => ({ t: s.t + offset, tPrevious: s.tPrevious + offset, u: s.u, h: s.h });
+  const shift = (s: FieldState): FieldState => {
+    const at = s.densityAt;
+    const all = s.stateAt;
+    return {
+      t: s.t + offset,
+      tPrevious: s.tPrevious + offset,
+      u: s.u,
+      h: s.h,
+      ...(at ? { densityAt: (cell: number, t: number) => at(cell, t - offset) } : {}),
+      ...(all ? { stateAt: (t: number, u: Float64Array, h: Float64Array) => all(t - offset, u, h) } : {}),
+    };
+  };
   return {
     initialize: o.initialize ? (s) => o.initialize!(shift(s)) : undefined,
     handle: (s) => o.handle(shift(s)),

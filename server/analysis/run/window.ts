@@ -91,6 +91,8 @@ export function runWindow(solver: WindowSolver, o: WindowRunOptions): WindowOutc
       tEnd: span,
       detectionLevel: s.detectionLevel,
       observers: [withOffset(observer, t0)],
+      // The crossing and the arrivals are dated by the dense output; pinning checks run at step ends.
+      regularOutputs: false,
       shouldCancel: o.shouldCancel,
     });
     steps = res.info.steps;

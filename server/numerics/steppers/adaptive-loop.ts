@@ -198,7 +198,14 @@ function makeObserverFeed(
   h: Float64Array,
   win: CellWindow,
 ) {
-  const state = { t: 0, tPrevious: 0, u, h };
+  const state: {
+    t: number;
+    tPrevious: number;
+    u: Float64Array;
+    h: Float64Array;
+    densityAt?: (cell: number, t: number) => number;
+    stateAt?: (t: number, u: Float64Array, h: Float64Array) => void;
+  } = { t: 0, tPrevious: 0, u, h };
   const dense = new Float64Array(u.length + h.length);
   let nextOut = 0;
   const f = {
@@ -215,6 +222,9 @@ function makeObserverFeed(
     },
     /** Feeds the output times passed in the step just taken, then its end; true when an observer stops the run. */
     afterStep(stepper: NdfStepper): boolean {
+      // Every step's end is looked at, so tPrevious ≥ the step's start and the step's polynomial covers it.
+      state.densityAt ??= (cell, tq) => stepper.interpolateAt(tq, 2 * cell);
+      state.stateAt ??= (tq, uOut, hOut) => system.unpack(stepper.interpolate(tq, dense), uOut, hOut, win.cells.lo, win.cells.hi);
       let stop = false;
       while (!stop && nextOut < outs.length && outs[nextOut] < stepper.t - 1e-12) {
         const tq = outs[nextOut++];

@@ -96,6 +96,8 @@ export interface NdfStepper {
   step(tBound: number): boolean;
   /** Dense output: the interpolating polynomial of the last step at tq ∈ [tOld, t], into out[lo…hi). */
   interpolate(tq: number, out: Float64Array): Float64Array;
+  /** Dense output of one component i at tq ∈ [tOld, t] (the same polynomial as {@link interpolate}). */
+  interpolateAt(tq: number, i: number): number;
   /** Moves the active window (components entering must hold their frozen value in y). */
   setWindow(lo: number, hi: number): void;
   readonly counters: StepperCounters;
@@ -529,6 +531,15 @@ export function makeNdfStepper(
       const D5 = D[5];
       for (let i = lo; i < hi; i++) out[i] = D0[i] + p1 * D1[i] + p2 * D2[i] + p3 * D3[i] + p4 * D4[i] + p5 * D5[i];
       return out;
+    },
+    interpolateAt(tq, i) {
+      let v = D[0][i];
+      let q = 1;
+      for (let j = 1; j <= order; j++) {
+        q *= (tq - (t - (j - 1) * hAbs)) / (j * hAbs);
+        v += q * D[j][i];
+      }
+      return v;
     },
     setWindow(lo, hi) {
       if (!(lo >= 0 && hi <= N && lo < hi)) throw new RangeError(`window ${lo}…${hi} outside 0…${N}`);

@@ -75,6 +75,15 @@ describe('CrossingWatch', () => {
     expect(w.handle(state(2, [1, 1, 1, 1, 0, 0, 0.01, 0]))).toBe(false); // not stopping
     expect(w.crossedYears).toBe(2);
   });
+  it('with dense output, dates the crossing inside the step: the earliest root over the cells that crossed', () => {
+    const w = new CrossingWatch(grid, g, levels, true, 100, 0.01);
+    // Cell 5 rises linearly from 0 at t = 1 to 2·L at t = 2 (passes L at 1.5); cell 6 from 0 to 1.25·L' (passes at 1.8).
+    const rise = (cell: number, top: number) => (t: number) => (cell === 5 ? 2 * levels[5] : cell === 6 ? top : 0) * (t - 1);
+    const u = [1, 1, 1, 1, 0, 2 * levels[5], 1.25 * levels[6], 0];
+    const densityAt = (cell: number, t: number) => rise(cell, 1.25 * levels[6])(t);
+    expect(w.handle({ t: 2, tPrevious: 1, u: Float64Array.from(u), h: new Float64Array(8), densityAt })).toBe(true);
+    expect(w.crossedYears).toBeCloseTo(1.5, 12);
+  });
 });
 
 describe('approachCells and isPresent', () => {

@@ -112,6 +112,10 @@ describe('NDF adaptive control', () => {
       }
       st.interpolate(st.t, out);
       expect(out[0]).toBeCloseTo(st.y[0], 14);
+      // One component at a time (event location): the same polynomial, bit for bit.
+      const tq = st.tOld + 0.3 * (st.t - st.tOld);
+      st.interpolate(tq, out);
+      expect([st.interpolateAt(tq, 0), st.interpolateAt(tq, 1)]).toEqual([out[0], out[1]]);
     }
     console.log(`NDF dense output: worst interpolation error ${worst.toExponential(2)} at rtol 1e-8`);
     expect(worst).toBeLessThan(1e-6);
