@@ -118,6 +118,7 @@ const COVERED_ELSEWHERE: Record<string, Cover> = {
   'server/web/form-layout.ts': { by: ['tests/web/form-state.test.ts'], why: 'the form layout (sections, row tables, applies): the form-state round trips are its test (form-state.ts re-exports it)' },
   'server/web/form-read.ts': { by: ['tests/web/form-state.test.ts', 'tests/web/form-distance.test.ts'], why: 'form text → scenario: the form-state round trips are its test (form-state.ts is the entry that re-exports it)' },
   'server/web/form-write.ts': { by: ['tests/web/form-state.test.ts'], why: 'scenario → form text: the form-state round trips are its test (form-state.ts is the entry that re-exports it)' },
+  'server/web/job-state.ts': { by: ['tests/web/durable-jobs.test.ts', 'tests/web/runs-results.test.ts'], why: WEB + ' (the in-memory job table jobs.ts runs on)' },
   'server/web/job-store.ts': { by: ['tests/web/durable-jobs.test.ts', 'tests/web/main.test.ts'], why: 'the jobs tables: checked by resuming stored jobs after a restart' },
   'server/web/jobs.ts': { by: ['tests/web/durable-jobs.test.ts', 'tests/web/runs-results.test.ts'], why: WEB },
   'server/web/landscape-catalogue.ts': { by: ['tests/web/landscape-demo.test.ts', 'tests/web/landscape-upload.test.ts'], why: WEB + ' (the demo maps listed and run at the web cell)' },
