@@ -131,6 +131,7 @@ const COVERED_ELSEWHERE: Record<string, Cover> = {
   'server/web/plugins/openapi.ts': { by: ['tests/web/api.test.ts'], why: WEB },
   'server/web/plugins/security.ts': { by: ['tests/web/security.test.ts'], why: WEB + ' (security.test.ts is its test under a plain name)' },
   'server/web/plugins/views.ts': { by: ['tests/web/app.test.ts'], why: WEB },
+  'server/web/routes/api-schemas.ts': { by: ['tests/web/api.test.ts'], why: WEB + ' (the API\'s shared zod schemas; api.test.ts checks their answers and the OpenAPI document)' },
   'server/web/routes/api.ts': { by: ['tests/web/api.test.ts'], why: WEB + ' (api.test.ts is its test)' },
   'server/web/routes/fit-pages.ts': { by: ['tests/web/fit-pages.test.ts'], why: WEB + ' (fit-pages.test.ts is its test)' },
   'server/web/routes/reference-pages.ts': { by: ['tests/web/app.test.ts'], why: WEB },

@@ -50,11 +50,12 @@ export default async function resultPages(app: FastifyInstance, deps: WebDeps) {
   };
   pageRoutes(app, deps, resultOr404);
   downloadRoutes(app, deps, resultOr404);
+  deleteRoutes(app, deps, resultOr404);
 }
 
 type ResultOr404 = (id: string) => StoredResult;
 
-/** The pages: past results, one result, its options side by side, two results side by side, delete. */
+/** The pages: past results, one result, its options side by side, two results side by side. */
 function pageRoutes(app: FastifyInstance, deps: WebDeps, resultOr404: ResultOr404) {
   const { store } = deps;
   app.get('/results', async (req, reply) => {
@@ -89,23 +90,6 @@ function pageRoutes(app: FastifyInstance, deps: WebDeps, resultOr404: ResultOr40
     const b = resultOr404(picks[1]);
     return reply.page('compare-results', { title: `Two results side by side`, c: compareResultsView(a, b), cautions: a.document.cautions });
   });
-
-  app.get<IdParams>('/results/:id/delete', async (req, reply) => {
-    const stored = resultOr404(req.params.id);
-    return reply.page('confirm-delete', {
-      title: `Delete this result?`,
-      what: 'result',
-      name: `${stored.title} (${stored.createdAt})`,
-      detail: 'The scenario it came from is not affected.',
-      action: `/results/${stored.id}/delete`,
-      back: `/results/${stored.id}`,
-    });
-  });
-  app.post<IdParams>('/results/:id/delete', async (req, reply) => {
-    const stored = resultOr404(req.params.id);
-    store.deleteResult(stored.id);
-    return reply.redirect('/results?deleted=1', 303);
-  });
 }
 
 /** A result's downloads: the document, the series and each table as CSV, the exact scenario, the briefing. */
@@ -137,5 +121,26 @@ function downloadRoutes(app: FastifyInstance, deps: WebDeps, resultOr404: Result
     const stored = resultOr404(req.params.id);
     const pdf = await briefingNow(deps.briefings, stored.id);
     return download(reply, 'application/pdf', briefingName(stored.id), pdf);
+  });
+}
+
+/** Deleting a result: the confirmation page and the post. */
+function deleteRoutes(app: FastifyInstance, deps: WebDeps, resultOr404: ResultOr404) {
+  const { store } = deps;
+  app.get<IdParams>('/results/:id/delete', async (req, reply) => {
+    const stored = resultOr404(req.params.id);
+    return reply.page('confirm-delete', {
+      title: `Delete this result?`,
+      what: 'result',
+      name: `${stored.title} (${stored.createdAt})`,
+      detail: 'The scenario it came from is not affected.',
+      action: `/results/${stored.id}/delete`,
+      back: `/results/${stored.id}`,
+    });
+  });
+  app.post<IdParams>('/results/:id/delete', async (req, reply) => {
+    const stored = resultOr404(req.params.id);
+    store.deleteResult(stored.id);
+    return reply.redirect('/results?deleted=1', 303);
   });
 }
