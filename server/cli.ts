@@ -7,7 +7,7 @@
  */
 import { accessSync, closeSync, constants, existsSync, fsyncSync, openSync, readdirSync, readFileSync, renameSync, statSync, writeSync, rmSync } from 'node:fs';
 import { dirname, basename, join } from 'node:path';
-import { parseScenarioText } from './model/scenario.ts';
+import { parseScenarioText, type Scenario } from './model/scenario.ts';
 import { InputError, formatProblems } from './model/errors.ts';
 import { evaluateScenarioParallel } from './jobs/parallel.ts';
 import { parseJsonText } from './model/json-text.ts';
@@ -247,7 +247,6 @@ const READ_ERRORS: Record<string, string> = {
   EPERM: 'permission denied',
 };
 
-/** Runs the CLI; resolves to the exit code (0 ok, 1 invalid scenario or failed run, 2 usage). */
 /** JSON text with the characters JSON.stringify leaves raw (DEL, C1 controls, direction marks) escaped as \\uXXXX. */
 function jsonSafe(text: string): string {
   return text.replace(/[\u007f-\u009f\u202a-\u202e\u2066-\u2069]/gu, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
@@ -279,7 +278,6 @@ async function withSignalsHeld<T>(fn: () => T): Promise<T> {
 
 /** Runs the CLI; resolves to the exit code (0 ok, 1 invalid scenario or failed run, 2 usage). */
 export async function main(argv: string[]): Promise<number> {
-  const err = (s: string) => process.stderr.write(terminalSafe(s));
   let args: CliArgs;
   try {
     args = parseArgs(argv);
@@ -291,88 +289,116 @@ export async function main(argv: string[]): Promise<number> {
     process.stdout.write(`${USAGE}\n`);
     return 0;
   }
-  const outputs = [args.out, args.pdf].filter((p): p is string => p !== undefined);
-  for (const [option, path] of [['--out', args.out], ['--pdf', args.pdf]] as const) {
-    const reason = path === undefined ? undefined : unwritableReason(path);
-    if (reason) {
-      err(`cannot write ${option} ${path}: ${reason}; nothing was written\n`);
-      return 1;
-    }
-  }
-  for (const note of recoverOutputs(outputs)) err(`note: ${note}\n`);
-  let text: string;
-  try {
-    text = readFileSync(args.file, 'utf8');
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    const why = code && READ_ERRORS[code] ? `${code} (${READ_ERRORS[code]})` : (code ?? (e as Error).message);
-    err(`cannot read scenario file ${args.file}: ${why}\n`);
-    return 1;
-  }
+  if (!outputsWritable(args)) return 1;
+  const text = readScenarioFile(args.file);
+  if (text === undefined) return 1;
   try {
     if (isLandscapeText(text)) {
       const progress = progressBar(!args.quiet && process.stderr.isTTY === true);
       return await runLandscapeCli(text, { file: args.file, json: args.json, out: args.out, pdf: args.pdf, progress, write: (option, path, data) => writeOutputs([{ option, path, data }]) });
     }
-    const scenario = parseScenarioText(text);
-    if (args.pdf) {
-      // Refused before the run: text the briefing's fonts cannot draw (report/pdf/fonts.ts).
-      const unsupported = briefingTextProblems(scenario);
-      if (unsupported.length) {
-        err(`cannot write --pdf ${args.pdf}:\n${formatProblems(unsupported).replace(/^/gm, '  ')}\nnothing was written\n`);
-        return 1;
-      }
-    }
-    // Ctrl-C stops an ensemble cleanly (the draws done so far are reported); a second Ctrl-C quits.
-    let cancelled = false;
-    let firstSigintAt = 0;
-    const onSigint = () => {
-      // One key press can arrive twice (from the terminal and relayed by a wrapper such as tsx or npm):
-      // a second signal within a second is the same press.
-      if (cancelled) {
-        if (Date.now() - firstSigintAt > 1000) process.exit(130);
-        return;
-      }
-      firstSigintAt = Date.now();
-      cancelled = true;
-      process.stderr.write('\nstopping after the current draws (Ctrl-C again to quit)…\n');
-    };
-    process.on('SIGINT', onSigint);
-    let doc;
-    try {
-      doc = await evaluateScenarioParallel(scenario, {
-        threads: args.threads,
-        shouldCancel: () => cancelled,
-        onProgress: progressBar(!args.quiet && process.stderr.isTTY === true),
-      });
-    } finally {
-      process.off('SIGINT', onSigint);
-    }
-    const files: { option: string; path: string; data: string | Uint8Array }[] = [];
-    if (args.pdf) files.push({ option: '--pdf', path: args.pdf, data: await renderBriefing(doc, { scenario, rawInput: parseJsonText(text) }) });
-    const output = args.json ? jsonSafe(`${JSON.stringify(doc, null, 1)}\n`) : terminalSafe(`${textSummary(doc)}\n`);
-    if (args.out) files.push({ option: '--out', path: args.out, data: output });
-    if (files.length) await withSignalsHeld(() => writeOutputs(files));
-    if (args.pdf && !args.json && !args.out) err(`briefing written to ${args.pdf}\n`);
-    else if (!args.out) process.stdout.write(output);
-    // Interrupted: the partial result is written, and the exit code says it is partial.
-    return cancelled ? 130 : 0;
+    return await evaluateTransect(args, text);
   } catch (e) {
-    if (e instanceof InputError && e.code === NON_FINITE_CODE) {
-      err(`evaluation stopped, no result: ${e.message}\n`);
+    return failure(args, e);
+  }
+}
+
+/** Writes to standard error, terminal-safe. */
+const err = (s: string) => process.stderr.write(terminalSafe(s));
+
+/** Checks the output files can be written (before any work), then finishes what an interrupted run left. */
+function outputsWritable(args: CliArgs): boolean {
+  const outputs = [args.out, args.pdf].filter((p): p is string => p !== undefined);
+  for (const [option, path] of [['--out', args.out], ['--pdf', args.pdf]] as const) {
+    const reason = path === undefined ? undefined : unwritableReason(path);
+    if (reason) {
+      err(`cannot write ${option} ${path}: ${reason}; nothing was written\n`);
+      return false;
+    }
+  }
+  for (const note of recoverOutputs(outputs)) err(`note: ${note}\n`);
+  return true;
+}
+
+/** The scenario file's text, or undefined after saying why it cannot be read. */
+function readScenarioFile(file: string): string | undefined {
+  try {
+    return readFileSync(file, 'utf8');
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    const why = code && READ_ERRORS[code] ? `${code} (${READ_ERRORS[code]})` : (code ?? (e as Error).message);
+    err(`cannot read scenario file ${file}: ${why}\n`);
+    return undefined;
+  }
+}
+
+/** A transect scenario: evaluated, then its summary or document printed or written (with the briefing). */
+async function evaluateTransect(args: CliArgs, text: string): Promise<number> {
+  const scenario = parseScenarioText(text);
+  if (args.pdf) {
+    // Refused before the run: text the briefing's fonts cannot draw (report/pdf/fonts.ts).
+    const unsupported = briefingTextProblems(scenario);
+    if (unsupported.length) {
+      err(`cannot write --pdf ${args.pdf}:\n${formatProblems(unsupported).replace(/^/gm, '  ')}\nnothing was written\n`);
       return 1;
     }
-    if (e instanceof InputError) {
-      err(`${args.file} is not a valid scenario:\n${formatProblems(e.problems).replace(/^/gm, '  ')}\n`);
-      return 1;
+  }
+  const { doc, cancelled } = await evaluateStoppable(scenario, args);
+  const files: { option: string; path: string; data: string | Uint8Array }[] = [];
+  if (args.pdf) files.push({ option: '--pdf', path: args.pdf, data: await renderBriefing(doc, { scenario, rawInput: parseJsonText(text) }) });
+  const output = args.json ? jsonSafe(`${JSON.stringify(doc, null, 1)}\n`) : terminalSafe(`${textSummary(doc)}\n`);
+  if (args.out) files.push({ option: '--out', path: args.out, data: output });
+  if (files.length) await withSignalsHeld(() => writeOutputs(files));
+  if (args.pdf && !args.json && !args.out) err(`briefing written to ${args.pdf}\n`);
+  else if (!args.out) process.stdout.write(output);
+  // Interrupted: the partial result is written, and the exit code says it is partial.
+  return cancelled ? 130 : 0;
+}
+
+/** Evaluates with Ctrl-C stopping an ensemble cleanly (the draws done so far are reported); a second Ctrl-C quits. */
+async function evaluateStoppable(scenario: Scenario, args: CliArgs) {
+  let cancelled = false;
+  let firstSigintAt = 0;
+  const onSigint = () => {
+    // One key press can arrive twice (from the terminal and relayed by a wrapper such as tsx or npm):
+    // a second signal within a second is the same press.
+    if (cancelled) {
+      if (Date.now() - firstSigintAt > 1000) process.exit(130);
+      return;
     }
-    if (e instanceof OutputError) {
-      err(`${e.message}\n`);
-      return 1;
-    }
-    err(`evaluation failed: ${(e as Error).message}\n`);
+    firstSigintAt = Date.now();
+    cancelled = true;
+    process.stderr.write('\nstopping after the current draws (Ctrl-C again to quit)…\n');
+  };
+  process.on('SIGINT', onSigint);
+  try {
+    const doc = await evaluateScenarioParallel(scenario, {
+      threads: args.threads,
+      shouldCancel: () => cancelled,
+      onProgress: progressBar(!args.quiet && process.stderr.isTTY === true),
+    });
+    return { doc, cancelled };
+  } finally {
+    process.off('SIGINT', onSigint);
+  }
+}
+
+/** The exit code of a failed run, after saying why in words. */
+function failure(args: CliArgs, e: unknown): number {
+  if (e instanceof InputError && e.code === NON_FINITE_CODE) {
+    err(`evaluation stopped, no result: ${e.message}\n`);
     return 1;
   }
+  if (e instanceof InputError) {
+    err(`${args.file} is not a valid scenario:\n${formatProblems(e.problems).replace(/^/gm, '  ')}\n`);
+    return 1;
+  }
+  if (e instanceof OutputError) {
+    err(`${e.message}\n`);
+    return 1;
+  }
+  err(`evaluation failed: ${(e as Error).message}\n`);
+  return 1;
 }
 
 if (import.meta.url === `file://${process.argv[1]}`) {
