@@ -64,6 +64,7 @@ const COVERED_ELSEWHERE: Record<string, Cover> = {
   'server/analysis/words.ts': { by: ['tests/analysis/verdict/barrier-edge-cases.test.ts'], why: 'one plural helper used in verdict sentences; checked in the sentences' },
   // entry points and jobs/
   'server/app.ts': { by: ['tests/web/app.test.ts', 'tests/web/api.test.ts'], why: 'buildApp: every web test builds the app and injects requests; app.test.ts is its test under the folder of the code it wires' },
+  'server/cli-output.ts': { by: ['tests/cli-files.test.ts'], why: 'the command lines\' output files (atomic and paired writes, recovery after a killed run): cli-files.test.ts checks them through cli.ts, which re-exports them' },
   'server/main.ts': { by: ['tests/web/main.test.ts', 'tests/web/main-restart.test.ts'], why: 'process entry point: started as a child process (listen, graceful close, restart)', kind: 'process' },
   'server/jobs/evaluation-job.ts': { by: ['tests/jobs/pool-runner.test.ts', 'tests/jobs/queue-runner.test.ts'], why: 'runEvaluation on each runner: the runner tests compare its documents with the inline evaluation' },
   'server/jobs/evaluation-tasks.ts': { by: ['tests/jobs/pool-runner.test.ts'], why: 'registers the two stage task kinds over the analysis functions; checked through the runs that use them' },
