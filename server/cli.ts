@@ -3,11 +3,10 @@
  * Calls the same analysis as the web routes. Output files are written atomically (a hidden temporary file in
  * the same folder, then a rename); `--pdf` with `--out` are written as one pair (both temporaries first, then
  * a small journal, then both renames), and a run killed midway is cleaned up or completed by the next run
- * that writes to the same folder. Text from the scenario is never written raw to the terminal.
+ * that writes to the same folder (cli-output.ts). Text from the scenario is never written raw to the terminal.
  */
-import { accessSync, closeSync, constants, existsSync, fsyncSync, openSync, readdirSync, readFileSync, renameSync, statSync, writeSync, rmSync } from 'node:fs';
-import { dirname, basename, join } from 'node:path';
-import { parseScenarioText } from './model/scenario.ts';
+import { readFileSync } from 'node:fs';
+import { parseScenarioText, type Scenario } from './model/scenario.ts';
 import { InputError, formatProblems } from './model/errors.ts';
 import { evaluateScenarioParallel } from './jobs/parallel.ts';
 import { parseJsonText } from './model/json-text.ts';
@@ -16,6 +15,9 @@ import { textSummary } from './report/text-summary.ts';
 import { renderBriefing } from './report/briefing.ts';
 import { briefingTextProblems } from './report/pdf/fonts.ts';
 import { isLandscapeText, runLandscapeCli } from './landscape-cli.ts';
+import { recoverOutputs, unwritableReason, writeTogether } from './cli-output.ts';
+
+export { recoverOutputs, unwritableReason, writeAtomically, writeTogether } from './cli-output.ts';
 
 const USAGE = `usage: npm run evaluate -- <scenario.json> [--json] [--out FILE] [--pdf FILE]
   --json        print the result document (JSON) instead of the readable summary
@@ -69,136 +71,12 @@ export function parseArgs(argv: string[]): CliArgs {
   return args as CliArgs;
 }
 
-/** Hidden temporary file of an output, in the output's folder: `.<name>.<pid>.tmp`. */
-function tempName(path: string): string {
-  return join(dirname(path), `.${basename(path)}.${process.pid}.tmp`);
-}
-
-/** Writes data and flushes it to the disk before returning. */
-function writeDurably(path: string, data: string | Uint8Array): void {
-  const fd = openSync(path, 'w');
-  try {
-    const bytes = typeof data === 'string' ? Buffer.from(data, 'utf8') : data;
-    let off = 0;
-    while (off < bytes.length) off += writeSync(fd, bytes, off, bytes.length - off);
-    fsyncSync(fd);
-  } finally {
-    closeSync(fd);
-  }
-}
-
-/** Writes text to a file via a temporary file in the same folder, so a failed run leaves nothing half-written. */
-export function writeAtomically(path: string, data: string | Uint8Array): void {
-  writeTogether([{ path, data }]);
-}
-
-/**
- * Writes several output files as one unit: every temporary file is written and flushed first; then a
- * journal naming the renames is written (`.<first name>.<pid>.pair`), then the renames, then the journal is
- * removed. Killed before the journal exists, the old files stay as they were (and the next run removes the
- * temporaries); killed after, the next run finds the journal and completes the renames (recoverOutputs).
- */
-export function writeTogether(files: readonly { path: string; data: string | Uint8Array }[]): void {
-  const temps = files.map((f) => tempName(f.path));
-  const journal = files.length > 1 ? join(dirname(files[0].path), `.${basename(files[0].path)}.${process.pid}.pair`) : undefined;
-  try {
-    files.forEach((f, i) => writeDurably(temps[i], f.data));
-    if (journal) {
-      writeDurably(`${journal}.tmp`, JSON.stringify({ renames: files.map((f, i) => [temps[i], f.path]) }));
-      renameSync(`${journal}.tmp`, journal);
-    }
-    files.forEach((f, i) => renameSync(temps[i], f.path));
-    if (journal) rmSync(journal, { force: true });
-  } catch (e) {
-    for (const t of temps) rmSync(t, { force: true });
-    if (journal) rmSync(`${journal}.tmp`, { force: true });
-    if (journal && existsSync(journal)) recoverJournal(journal);
-    throw e;
-  }
-}
-
-/** True when a process with this id is running (so its temporaries are not stale). */
-function alive(pid: number): boolean {
-  if (pid === process.pid) return true;
-  try {
-    process.kill(pid, 0);
-    return true;
-  } catch (e) {
-    return (e as NodeJS.ErrnoException).code === 'EPERM';
-  }
-}
-
-/** Completes the renames a journal lists (their temporaries were complete before it was written), then removes it. */
-function recoverJournal(journal: string): void {
-  try {
-    const { renames } = JSON.parse(readFileSync(journal, 'utf8')) as { renames: [string, string][] };
-    for (const [from, to] of renames) if (existsSync(from)) renameSync(from, to);
-  } catch {
-    // A journal that cannot be read was never complete (it is renamed into place whole): nothing to finish.
-  }
-  rmSync(journal, { force: true });
-}
-
-/**
- * Cleans up after an earlier run killed while writing into the folders of these outputs: completes the pair
- * writes whose journal exists, then removes hidden temporaries of processes that no longer run.
- * @returns the names of what was completed or removed (for a note on standard error)
- */
-export function recoverOutputs(paths: readonly string[]): string[] {
-  const done: string[] = [];
-  for (const folder of new Set(paths.map((p) => dirname(p)))) {
-    let names: string[];
-    try {
-      names = readdirSync(folder);
-    } catch {
-      continue;
-    }
-    const stale = (n: string, ext: string) => {
-      const m = new RegExp(`^\\..+\\.(\\d+)\\.${ext}$`).exec(n);
-      return m !== null && !alive(Number(m[1]));
-    };
-    for (const n of names.filter((x) => stale(x, 'pair'))) {
-      recoverJournal(join(folder, n));
-      done.push(`completed the interrupted write recorded in ${join(folder, n)}`);
-    }
-    for (const n of readdirSync(folder).filter((x) => stale(x, 'tmp') || stale(x, 'pair\\.tmp'))) {
-      rmSync(join(folder, n), { force: true });
-      done.push(`removed ${join(folder, n)}, left by an interrupted run`);
-    }
-  }
-  return done;
-}
-
 /**
  * Text safe to print on a terminal: control characters (except line breaks and tabs) and direction marks
  * shown as `\u{…}` escapes, so no scenario text can move the cursor, ring the bell or recolour the screen.
  */
 export function terminalSafe(s: string): string {
   return s.replace(/[\u0000-\u0008\u000b-\u001f\u007f-\u009f\u202a-\u202e\u2066-\u2069]/gu, (c) => `\\u{${c.codePointAt(0)!.toString(16)}}`);
-}
-
-/**
- * Why `path` cannot be written as an output file, or undefined when it can (its folder exists and is writable,
- * and it is not itself a folder). Checked before evaluating, so a long run never ends in a failed write.
- */
-export function unwritableReason(path: string): string | undefined {
-  const folder = dirname(path);
-  try {
-    if (!statSync(folder).isDirectory()) return `${folder} is not a folder`;
-  } catch (e) {
-    return `the folder ${folder} does not exist (${(e as NodeJS.ErrnoException).code ?? 'not found'})`;
-  }
-  try {
-    accessSync(folder, constants.W_OK);
-  } catch {
-    return `the folder ${folder} is not writable`;
-  }
-  try {
-    if (statSync(path).isDirectory()) return 'is a folder; give a file name';
-  } catch {
-    // Does not exist yet: fine.
-  }
-  return undefined;
 }
 
 /** A write of an output file failed (after the evaluation); the message names the options and the files. */
@@ -247,7 +125,6 @@ const READ_ERRORS: Record<string, string> = {
   EPERM: 'permission denied',
 };
 
-/** Runs the CLI; resolves to the exit code (0 ok, 1 invalid scenario or failed run, 2 usage). */
 /** JSON text with the characters JSON.stringify leaves raw (DEL, C1 controls, direction marks) escaped as \\uXXXX. */
 function jsonSafe(text: string): string {
   return text.replace(/[\u007f-\u009f\u202a-\u202e\u2066-\u2069]/gu, (c) => `\\u${c.charCodeAt(0).toString(16).padStart(4, '0')}`);
@@ -279,7 +156,6 @@ async function withSignalsHeld<T>(fn: () => T): Promise<T> {
 
 /** Runs the CLI; resolves to the exit code (0 ok, 1 invalid scenario or failed run, 2 usage). */
 export async function main(argv: string[]): Promise<number> {
-  const err = (s: string) => process.stderr.write(terminalSafe(s));
   let args: CliArgs;
   try {
     args = parseArgs(argv);
@@ -291,88 +167,116 @@ export async function main(argv: string[]): Promise<number> {
     process.stdout.write(`${USAGE}\n`);
     return 0;
   }
-  const outputs = [args.out, args.pdf].filter((p): p is string => p !== undefined);
-  for (const [option, path] of [['--out', args.out], ['--pdf', args.pdf]] as const) {
-    const reason = path === undefined ? undefined : unwritableReason(path);
-    if (reason) {
-      err(`cannot write ${option} ${path}: ${reason}; nothing was written\n`);
-      return 1;
-    }
-  }
-  for (const note of recoverOutputs(outputs)) err(`note: ${note}\n`);
-  let text: string;
-  try {
-    text = readFileSync(args.file, 'utf8');
-  } catch (e) {
-    const code = (e as NodeJS.ErrnoException).code;
-    const why = code && READ_ERRORS[code] ? `${code} (${READ_ERRORS[code]})` : (code ?? (e as Error).message);
-    err(`cannot read scenario file ${args.file}: ${why}\n`);
-    return 1;
-  }
+  if (!outputsWritable(args)) return 1;
+  const text = readScenarioFile(args.file);
+  if (text === undefined) return 1;
   try {
     if (isLandscapeText(text)) {
       const progress = progressBar(!args.quiet && process.stderr.isTTY === true);
       return await runLandscapeCli(text, { file: args.file, json: args.json, out: args.out, pdf: args.pdf, progress, write: (option, path, data) => writeOutputs([{ option, path, data }]) });
     }
-    const scenario = parseScenarioText(text);
-    if (args.pdf) {
-      // Refused before the run: text the briefing's fonts cannot draw (report/pdf/fonts.ts).
-      const unsupported = briefingTextProblems(scenario);
-      if (unsupported.length) {
-        err(`cannot write --pdf ${args.pdf}:\n${formatProblems(unsupported).replace(/^/gm, '  ')}\nnothing was written\n`);
-        return 1;
-      }
-    }
-    // Ctrl-C stops an ensemble cleanly (the draws done so far are reported); a second Ctrl-C quits.
-    let cancelled = false;
-    let firstSigintAt = 0;
-    const onSigint = () => {
-      // One key press can arrive twice (from the terminal and relayed by a wrapper such as tsx or npm):
-      // a second signal within a second is the same press.
-      if (cancelled) {
-        if (Date.now() - firstSigintAt > 1000) process.exit(130);
-        return;
-      }
-      firstSigintAt = Date.now();
-      cancelled = true;
-      process.stderr.write('\nstopping after the current draws (Ctrl-C again to quit)…\n');
-    };
-    process.on('SIGINT', onSigint);
-    let doc;
-    try {
-      doc = await evaluateScenarioParallel(scenario, {
-        threads: args.threads,
-        shouldCancel: () => cancelled,
-        onProgress: progressBar(!args.quiet && process.stderr.isTTY === true),
-      });
-    } finally {
-      process.off('SIGINT', onSigint);
-    }
-    const files: { option: string; path: string; data: string | Uint8Array }[] = [];
-    if (args.pdf) files.push({ option: '--pdf', path: args.pdf, data: await renderBriefing(doc, { scenario, rawInput: parseJsonText(text) }) });
-    const output = args.json ? jsonSafe(`${JSON.stringify(doc, null, 1)}\n`) : terminalSafe(`${textSummary(doc)}\n`);
-    if (args.out) files.push({ option: '--out', path: args.out, data: output });
-    if (files.length) await withSignalsHeld(() => writeOutputs(files));
-    if (args.pdf && !args.json && !args.out) err(`briefing written to ${args.pdf}\n`);
-    else if (!args.out) process.stdout.write(output);
-    // Interrupted: the partial result is written, and the exit code says it is partial.
-    return cancelled ? 130 : 0;
+    return await evaluateTransect(args, text);
   } catch (e) {
-    if (e instanceof InputError && e.code === NON_FINITE_CODE) {
-      err(`evaluation stopped, no result: ${e.message}\n`);
+    return failure(args, e);
+  }
+}
+
+/** Writes to standard error, terminal-safe. */
+const err = (s: string) => process.stderr.write(terminalSafe(s));
+
+/** Checks the output files can be written (before any work), then finishes what an interrupted run left. */
+function outputsWritable(args: CliArgs): boolean {
+  const outputs = [args.out, args.pdf].filter((p): p is string => p !== undefined);
+  for (const [option, path] of [['--out', args.out], ['--pdf', args.pdf]] as const) {
+    const reason = path === undefined ? undefined : unwritableReason(path);
+    if (reason) {
+      err(`cannot write ${option} ${path}: ${reason}; nothing was written\n`);
+      return false;
+    }
+  }
+  for (const note of recoverOutputs(outputs)) err(`note: ${note}\n`);
+  return true;
+}
+
+/** The scenario file's text, or undefined after saying why it cannot be read. */
+function readScenarioFile(file: string): string | undefined {
+  try {
+    return readFileSync(file, 'utf8');
+  } catch (e) {
+    const code = (e as NodeJS.ErrnoException).code;
+    const why = code && READ_ERRORS[code] ? `${code} (${READ_ERRORS[code]})` : (code ?? (e as Error).message);
+    err(`cannot read scenario file ${file}: ${why}\n`);
+    return undefined;
+  }
+}
+
+/** A transect scenario: evaluated, then its summary or document printed or written (with the briefing). */
+async function evaluateTransect(args: CliArgs, text: string): Promise<number> {
+  const scenario = parseScenarioText(text);
+  if (args.pdf) {
+    // Refused before the run: text the briefing's fonts cannot draw (report/pdf/fonts.ts).
+    const unsupported = briefingTextProblems(scenario);
+    if (unsupported.length) {
+      err(`cannot write --pdf ${args.pdf}:\n${formatProblems(unsupported).replace(/^/gm, '  ')}\nnothing was written\n`);
       return 1;
     }
-    if (e instanceof InputError) {
-      err(`${args.file} is not a valid scenario:\n${formatProblems(e.problems).replace(/^/gm, '  ')}\n`);
-      return 1;
+  }
+  const { doc, cancelled } = await evaluateStoppable(scenario, args);
+  const files: { option: string; path: string; data: string | Uint8Array }[] = [];
+  if (args.pdf) files.push({ option: '--pdf', path: args.pdf, data: await renderBriefing(doc, { scenario, rawInput: parseJsonText(text) }) });
+  const output = args.json ? jsonSafe(`${JSON.stringify(doc, null, 1)}\n`) : terminalSafe(`${textSummary(doc)}\n`);
+  if (args.out) files.push({ option: '--out', path: args.out, data: output });
+  if (files.length) await withSignalsHeld(() => writeOutputs(files));
+  if (args.pdf && !args.json && !args.out) err(`briefing written to ${args.pdf}\n`);
+  else if (!args.out) process.stdout.write(output);
+  // Interrupted: the partial result is written, and the exit code says it is partial.
+  return cancelled ? 130 : 0;
+}
+
+/** Evaluates with Ctrl-C stopping an ensemble cleanly (the draws done so far are reported); a second Ctrl-C quits. */
+async function evaluateStoppable(scenario: Scenario, args: CliArgs) {
+  let cancelled = false;
+  let firstSigintAt = 0;
+  const onSigint = () => {
+    // One key press can arrive twice (from the terminal and relayed by a wrapper such as tsx or npm):
+    // a second signal within a second is the same press.
+    if (cancelled) {
+      if (Date.now() - firstSigintAt > 1000) process.exit(130);
+      return;
     }
-    if (e instanceof OutputError) {
-      err(`${e.message}\n`);
-      return 1;
-    }
-    err(`evaluation failed: ${(e as Error).message}\n`);
+    firstSigintAt = Date.now();
+    cancelled = true;
+    process.stderr.write('\nstopping after the current draws (Ctrl-C again to quit)…\n');
+  };
+  process.on('SIGINT', onSigint);
+  try {
+    const doc = await evaluateScenarioParallel(scenario, {
+      threads: args.threads,
+      shouldCancel: () => cancelled,
+      onProgress: progressBar(!args.quiet && process.stderr.isTTY === true),
+    });
+    return { doc, cancelled };
+  } finally {
+    process.off('SIGINT', onSigint);
+  }
+}
+
+/** The exit code of a failed run, after saying why in words. */
+function failure(args: CliArgs, e: unknown): number {
+  if (e instanceof InputError && e.code === NON_FINITE_CODE) {
+    err(`evaluation stopped, no result: ${e.message}\n`);
     return 1;
   }
+  if (e instanceof InputError) {
+    err(`${args.file} is not a valid scenario:\n${formatProblems(e.problems).replace(/^/gm, '  ')}\n`);
+    return 1;
+  }
+  if (e instanceof OutputError) {
+    err(`${e.message}\n`);
+    return 1;
+  }
+  err(`evaluation failed: ${(e as Error).message}\n`);
+  return 1;
 }
 
 if (import.meta.url === `file://${process.argv[1]}`) {

@@ -64,6 +64,7 @@ const COVERED_ELSEWHERE: Record<string, Cover> = {
   'server/analysis/words.ts': { by: ['tests/analysis/verdict/barrier-edge-cases.test.ts'], why: 'one plural helper used in verdict sentences; checked in the sentences' },
   // entry points and jobs/
   'server/app.ts': { by: ['tests/web/app.test.ts', 'tests/web/api.test.ts'], why: 'buildApp: every web test builds the app and injects requests; app.test.ts is its test under the folder of the code it wires' },
+  'server/cli-output.ts': { by: ['tests/cli-files.test.ts'], why: 'the command lines\' output files (atomic and paired writes, recovery after a killed run): cli-files.test.ts checks them through cli.ts, which re-exports them' },
   'server/main.ts': { by: ['tests/web/main.test.ts', 'tests/web/main-restart.test.ts'], why: 'process entry point: started as a child process (listen, graceful close, restart)', kind: 'process' },
   'server/jobs/evaluation-job.ts': { by: ['tests/jobs/pool-runner.test.ts', 'tests/jobs/queue-runner.test.ts'], why: 'runEvaluation on each runner: the runner tests compare its documents with the inline evaluation' },
   'server/jobs/evaluation-tasks.ts': { by: ['tests/jobs/pool-runner.test.ts'], why: 'registers the two stage task kinds over the analysis functions; checked through the runs that use them' },
@@ -119,6 +120,7 @@ const COVERED_ELSEWHERE: Record<string, Cover> = {
   'server/web/form-layout.ts': { by: ['tests/web/form-state.test.ts'], why: 'the form layout (sections, row tables, applies): the form-state round trips are its test (form-state.ts re-exports it)' },
   'server/web/form-read.ts': { by: ['tests/web/form-state.test.ts', 'tests/web/form-distance.test.ts'], why: 'form text → scenario: the form-state round trips are its test (form-state.ts is the entry that re-exports it)' },
   'server/web/form-write.ts': { by: ['tests/web/form-state.test.ts'], why: 'scenario → form text: the form-state round trips are its test (form-state.ts is the entry that re-exports it)' },
+  'server/web/job-state.ts': { by: ['tests/web/durable-jobs.test.ts', 'tests/web/runs-results.test.ts'], why: WEB + ' (the in-memory job table jobs.ts runs on)' },
   'server/web/job-store.ts': { by: ['tests/web/durable-jobs.test.ts', 'tests/web/main.test.ts'], why: 'the jobs tables: checked by resuming stored jobs after a restart' },
   'server/web/jobs.ts': { by: ['tests/web/durable-jobs.test.ts', 'tests/web/runs-results.test.ts'], why: WEB },
   'server/web/landscape-catalogue.ts': { by: ['tests/web/landscape-demo.test.ts', 'tests/web/landscape-upload.test.ts'], why: WEB + ' (the demo maps listed and run at the web cell)' },
@@ -131,6 +133,7 @@ const COVERED_ELSEWHERE: Record<string, Cover> = {
   'server/web/plugins/openapi.ts': { by: ['tests/web/api.test.ts'], why: WEB },
   'server/web/plugins/security.ts': { by: ['tests/web/security.test.ts'], why: WEB + ' (security.test.ts is its test under a plain name)' },
   'server/web/plugins/views.ts': { by: ['tests/web/app.test.ts'], why: WEB },
+  'server/web/routes/api-schemas.ts': { by: ['tests/web/api.test.ts'], why: WEB + ' (the API\'s shared zod schemas; api.test.ts checks their answers and the OpenAPI document)' },
   'server/web/routes/api.ts': { by: ['tests/web/api.test.ts'], why: WEB + ' (api.test.ts is its test)' },
   'server/web/routes/fit-pages.ts': { by: ['tests/web/fit-pages.test.ts'], why: WEB + ' (fit-pages.test.ts is its test)' },
   'server/web/routes/reference-pages.ts': { by: ['tests/web/app.test.ts'], why: WEB },

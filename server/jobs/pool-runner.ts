@@ -41,6 +41,14 @@ export interface PoolRunner extends TaskRunner {
   pending(): number;
 }
 
+/** The pool and what the runner counts of it. */
+interface PoolState {
+  pool: Piscina<PoolTask, unknown>;
+  /** Tasks running or waiting for a thread now. */
+  inFlight: number;
+  closed: boolean;
+}
+
 export function makePoolRunner(opts: PoolRunnerOptions = {}): PoolRunner {
   const threads = Math.max(1, Math.floor(opts.threads ?? defaultThreadCount()));
   const pool = new Piscina<PoolTask, unknown>({
@@ -52,77 +60,81 @@ export function makePoolRunner(opts: PoolRunnerOptions = {}): PoolRunner {
     // Tasks wait in the pool's queue (FIFO) for a free thread; the budget is the thread count.
     maxQueue: Infinity,
   });
-  let inFlight = 0;
-  let closed = false;
+  const st: PoolState = { pool, inFlight: 0, closed: false };
 
   return {
     where: `this machine, ${threads} worker thread${threads === 1 ? '' : 's'}`,
     concurrency: threads,
-    pending: () => inFlight,
+    pending: () => st.inFlight,
     capacity: () => ({ tasks: threads, text: `this machine, ${threads} worker thread${threads === 1 ? '' : 's'}` }),
-    async map<P, R>(kind: TaskKind, payloads: readonly P[], o: MapOptions<R> = {}): Promise<R[]> {
-      if (closed) throw new Error('the worker pool is closed');
-      if (o.signal?.aborted) throw new CancelledError();
-      const cancel = new SharedArrayBuffer(4);
-      const flag = new Int32Array(cancel);
-      const hard = new AbortController();
-      setMaxListeners(0, hard.signal); // one listener per task of the batch (not a leak)
-      let hardTimer: NodeJS.Timeout | undefined;
-      let failed: unknown;
-      const stop = () => {
-        if (Atomics.load(flag, 0) !== 0) return;
-        Atomics.store(flag, 0, 1);
-        hardTimer = setTimeout(() => hard.abort(), CANCEL_GRACE_MS);
-        hardTimer.unref();
-      };
-      o.signal?.addEventListener('abort', stop, { once: true });
-      const results: R[] = new Array(payloads.length);
-      try {
-        const settled = await Promise.allSettled(
-          payloads.map(async (payload, index) => {
-            let port1: MessagePort | undefined;
-            const task: PoolTask = { kind, payload, cancel };
-            const transferList = [];
-            if (o.onProgress) {
-              const ch = new MessageChannel();
-              port1 = ch.port1 as unknown as MessagePort;
-              ch.port1.on('message', (m: { fraction: number; stage: string }) => {
-                if (Atomics.load(flag, 0) === 0) o.onProgress?.(index, m.fraction, m.stage);
-              });
-              task.port = ch.port2;
-              transferList.push(ch.port2);
-            }
-            inFlight++;
-            try {
-              const r = (await pool.run(task, { signal: hard.signal, transferList })) as R;
-              results[index] = r;
-              o.onResult?.(index, r);
-            } catch (e) {
-              // The first real failure stops the rest of the batch.
-              if (!o.signal?.aborted && failed === undefined) {
-                failed = e;
-                stop();
-              }
-              throw e;
-            } finally {
-              inFlight--;
-              (port1 as unknown as { close(): void } | undefined)?.close();
-            }
-          }),
-        );
-        if (o.signal?.aborted) throw new CancelledError();
-        if (failed !== undefined) throw failed;
-        const rejected = settled.find((s) => s.status === 'rejected') as PromiseRejectedResult | undefined;
-        if (rejected) throw rejected.reason;
-        return results;
-      } finally {
-        if (hardTimer) clearTimeout(hardTimer);
-        o.signal?.removeEventListener('abort', stop);
-      }
-    },
+    map: <P, R>(kind: TaskKind, payloads: readonly P[], o: MapOptions<R> = {}) => mapOnPool(st, kind, payloads, o),
     async close() {
-      closed = true;
+      st.closed = true;
       await pool.destroy();
     },
   };
+}
+
+/** One batch on the pool: results in order; the first failure or a cancel stops the rest (see the header). */
+async function mapOnPool<P, R>(st: PoolState, kind: TaskKind, payloads: readonly P[], o: MapOptions<R>): Promise<R[]> {
+  if (st.closed) throw new Error('the worker pool is closed');
+  if (o.signal?.aborted) throw new CancelledError();
+  const cancel = new SharedArrayBuffer(4);
+  const flag = new Int32Array(cancel);
+  const hard = new AbortController();
+  setMaxListeners(0, hard.signal); // one listener per task of the batch (not a leak)
+  let hardTimer: NodeJS.Timeout | undefined;
+  let failed: unknown;
+  const stop = () => {
+    if (Atomics.load(flag, 0) !== 0) return;
+    Atomics.store(flag, 0, 1);
+    hardTimer = setTimeout(() => hard.abort(), CANCEL_GRACE_MS);
+    hardTimer.unref();
+  };
+  o.signal?.addEventListener('abort', stop, { once: true });
+  const results: R[] = new Array(payloads.length);
+  const runOne = async (payload: P, index: number) => {
+    const task: PoolTask = { kind, payload, cancel };
+    const port1 = o.onProgress ? attachProgress(task, flag, (f, stage) => o.onProgress?.(index, f, stage)) : undefined;
+    st.inFlight++;
+    try {
+      const r = (await st.pool.run(task, { signal: hard.signal, transferList: task.port ? [task.port] : [] })) as R;
+      results[index] = r;
+      o.onResult?.(index, r);
+    } catch (e) {
+      // The first real failure stops the rest of the batch.
+      if (!o.signal?.aborted && failed === undefined) {
+        failed = e;
+        stop();
+      }
+      throw e;
+    } finally {
+      st.inFlight--;
+      (port1 as unknown as { close(): void } | undefined)?.close();
+    }
+  };
+  try {
+    const settled = await Promise.allSettled(payloads.map(runOne));
+    if (o.signal?.aborted) throw new CancelledError();
+    if (failed !== undefined) throw failed;
+    const rejected = settled.find((s) => s.status === 'rejected') as PromiseRejectedResult | undefined;
+    if (rejected) throw rejected.reason;
+    return results;
+  } finally {
+    if (hardTimer) clearTimeout(hardTimer);
+    o.signal?.removeEventListener('abort', stop);
+  }
+}
+
+/**
+ * Gives the task a port for its progress messages, passed on while the batch's cancel flag is not set;
+ * returns the local end (closed when the task ends).
+ */
+function attachProgress(task: PoolTask, flag: Int32Array, onProgress: (fraction: number, stage: string) => void): MessagePort {
+  const ch = new MessageChannel();
+  ch.port1.on('message', (m: { fraction: number; stage: string }) => {
+    if (Atomics.load(flag, 0) === 0) onProgress(m.fraction, m.stage);
+  });
+  task.port = ch.port2;
+  return ch.port1 as unknown as MessagePort;
 }

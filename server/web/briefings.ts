@@ -16,7 +16,7 @@ import { InputError } from '../model/errors.ts';
 import { briefingTextProblems } from '../report/pdf/fonts.ts';
 import { randomUUID } from 'node:crypto';
 import { notFound } from './plugins/errors.ts';
-import type { Store } from './store.ts';
+import type { Store, StoredResult } from './store.ts';
 import type { StoredJobStatus } from './job-store.ts';
 
 /** Longest a briefing may take before the request is answered with an error [ms]. */
@@ -84,57 +84,25 @@ export interface BriefingJobOptions {
   log?: (message: string) => void;
 }
 
+/** What the parts below share: the store, the renderer, who waits for which job, and whether shutdown began. */
+interface Drawing {
+  opts: BriefingJobOptions;
+  store: Store;
+  renderer: BriefingRenderer;
+  waiters: Map<string, (() => void)[]>;
+  closing: boolean;
+}
+
 export function makeBriefingJobs(opts: BriefingJobOptions): BriefingJobs {
   const { store } = opts;
-  const renderer = opts.renderer ?? makeBriefingRenderer();
-  const waiters = new Map<string, (() => void)[]>();
-  let closing = false;
-
-  const view = (id: string): BriefingJobView | undefined => {
-    const row = store.jobs.get(id);
-    const resultId = row && store.jobs.briefings.resultOf(id);
-    if (!row || row.kind !== 'briefing' || !resultId) return undefined;
-    return { id, status: row.status, resultId, title: row.title, createdAt: row.createdAt, message: row.message, resumed: row.resumed };
-  };
-  const finished = (id: string) => {
-    for (const w of waiters.get(id) ?? []) w();
-    waiters.delete(id);
-  };
-  const draw = async (id: string) => {
-    const resultId = store.jobs.briefings.resultOf(id);
-    const result = resultId ? store.getResult(resultId) : undefined;
-    try {
-      if (!result) {
-        store.jobs.update(id, { status: 'failed', stage: 'failed', message: 'The result was deleted before its briefing was drawn.', finishedAt: new Date().toISOString() });
-        return;
-      }
-      store.jobs.update(id, { status: 'running', stage: 'drawing the briefing' });
-      const pdf = await renderer.render(result.document, result.scenario);
-      if (closing) return;
-      store.jobs.briefings.savePdf(id, pdf);
-      store.jobs.update(id, { status: 'done', fraction: 1, stage: 'done', message: 'Finished.', finishedAt: new Date().toISOString() });
-    } catch (err) {
-      // Stopped by the shutdown: the row stays unfinished and is drawn at the next start.
-      if (closing) return;
-      const problems = err instanceof InputError ? err.problems : [];
-      if (!problems.length) opts.onError?.(err);
-      store.jobs.update(id, {
-        status: 'failed',
-        stage: 'failed',
-        message: problems.length ? problems.map((p) => `${p.path}: ${p.message}`).join('; ') : 'The briefing could not be drawn; the details were logged on the server.',
-        problems,
-        finishedAt: new Date().toISOString(),
-      });
-    } finally {
-      finished(id);
-    }
-  };
+  const t: Drawing = { opts, store, renderer: opts.renderer ?? makeBriefingRenderer(), waiters: new Map(), closing: false };
+  const view = (id: string) => briefingView(store, id);
 
   // Briefings a stopped or killed server left unfinished: drawn again now.
   for (const r of store.jobs.unfinished('briefing')) {
     store.jobs.update(r.id, { status: 'queued', stage: 'waiting to be drawn again after the restart', resumed: r.resumed + 1 });
     opts.log?.(`resuming briefing ${r.id} ("${r.title}")`);
-    void draw(r.id);
+    void draw(t, r.id);
   }
 
   return {
@@ -146,27 +114,8 @@ export function makeBriefingJobs(opts: BriefingJobOptions): BriefingJobs {
       // Text the briefing's fonts cannot draw is refused by field, before any job (report/pdf/fonts.ts).
       const unsupported = briefingTextProblems(result.scenario);
       if (unsupported.length) throw Object.assign(new InputError('TEXT_NOT_DRAWABLE', unsupported), { statusCode: 422 });
-      const id = randomUUID();
-      const now = new Date().toISOString();
-      // Durable before anything is answered or drawn: the job row, then its link to the result.
-      store.jobs.insert({
-        id,
-        kind: 'briefing',
-        status: 'queued',
-        title: result.title,
-        scenarioRef: result.scenarioRef,
-        scenario: result.scenario,
-        createdAt: now,
-        finishedAt: null,
-        fraction: 0,
-        stage: 'waiting to be drawn',
-        message: '',
-        problems: [],
-        resultId: null,
-        resumed: 0,
-      });
-      store.jobs.briefings.insert(id, resultId);
-      void draw(id);
+      const id = insertBriefingJob(store, resultId, result);
+      void draw(t, id);
       return view(id);
     },
     get: view,
@@ -177,15 +126,83 @@ export function makeBriefingJobs(opts: BriefingJobOptions): BriefingJobs {
       return new Promise((resolve) => {
         const timer = setTimeout(() => resolve(view(id)), ms);
         timer.unref();
-        waiters.set(id, [...(waiters.get(id) ?? []), () => (clearTimeout(timer), resolve(view(id)))]);
+        t.waiters.set(id, [...(t.waiters.get(id) ?? []), () => (clearTimeout(timer), resolve(view(id)))]);
       });
     },
     async close() {
-      closing = true;
-      for (const id of [...waiters.keys()]) finished(id);
-      await renderer.close();
+      t.closing = true;
+      for (const id of [...t.waiters.keys()]) finished(t, id);
+      await t.renderer.close();
     },
   };
+}
+
+function briefingView(store: Store, id: string): BriefingJobView | undefined {
+  const row = store.jobs.get(id);
+  const resultId = row && store.jobs.briefings.resultOf(id);
+  if (!row || row.kind !== 'briefing' || !resultId) return undefined;
+  return { id, status: row.status, resultId, title: row.title, createdAt: row.createdAt, message: row.message, resumed: row.resumed };
+}
+
+/** Durable before anything is answered or drawn: the job row, then its link to the result. Returns the job id. */
+function insertBriefingJob(store: Store, resultId: string, result: StoredResult): string {
+  const id = randomUUID();
+  const now = new Date().toISOString();
+  store.jobs.insert({
+    id,
+    kind: 'briefing',
+    status: 'queued',
+    title: result.title,
+    scenarioRef: result.scenarioRef,
+    scenario: result.scenario,
+    createdAt: now,
+    finishedAt: null,
+    fraction: 0,
+    stage: 'waiting to be drawn',
+    message: '',
+    problems: [],
+    resultId: null,
+    resumed: 0,
+  });
+  store.jobs.briefings.insert(id, resultId);
+  return id;
+}
+
+function finished(t: Drawing, id: string): void {
+  for (const w of t.waiters.get(id) ?? []) w();
+  t.waiters.delete(id);
+}
+
+/** Draws one briefing job and stores its PDF (or why it failed); wakes its waiters either way. */
+async function draw(t: Drawing, id: string): Promise<void> {
+  const { store } = t;
+  const resultId = store.jobs.briefings.resultOf(id);
+  const result = resultId ? store.getResult(resultId) : undefined;
+  try {
+    if (!result) {
+      store.jobs.update(id, { status: 'failed', stage: 'failed', message: 'The result was deleted before its briefing was drawn.', finishedAt: new Date().toISOString() });
+      return;
+    }
+    store.jobs.update(id, { status: 'running', stage: 'drawing the briefing' });
+    const pdf = await t.renderer.render(result.document, result.scenario);
+    if (t.closing) return;
+    store.jobs.briefings.savePdf(id, pdf);
+    store.jobs.update(id, { status: 'done', fraction: 1, stage: 'done', message: 'Finished.', finishedAt: new Date().toISOString() });
+  } catch (err) {
+    // Stopped by the shutdown: the row stays unfinished and is drawn at the next start.
+    if (t.closing) return;
+    const problems = err instanceof InputError ? err.problems : [];
+    if (!problems.length) t.opts.onError?.(err);
+    store.jobs.update(id, {
+      status: 'failed',
+      stage: 'failed',
+      message: problems.length ? problems.map((p) => `${p.path}: ${p.message}`).join('; ') : 'The briefing could not be drawn; the details were logged on the server.',
+      problems,
+      finishedAt: new Date().toISOString(),
+    });
+  } finally {
+    finished(t, id);
+  }
 }
 
 /** Longest a page's briefing link waits for the drawing before answering that it is still under way [ms]. */

@@ -128,7 +128,42 @@ const COLUMNS: Record<string, string> = {
 };
 
 export function makeJobStore(db: Database.Database): JobStore {
-  const toJob = (r: JobRow): StoredJob => ({
+  const q = prepareStatements(db);
+  const clear = db.transaction((id: string) => {
+    q.clearChunks.run(id);
+    q.clearPoint.run(id);
+  });
+  return {
+    insert(job) {
+      q.insert.run({ ...job, scenario: JSON.stringify(job.scenario), problems: JSON.stringify(job.problems) });
+    },
+    update: (id, patch) => updateJob(db, id, patch),
+    get(id) {
+      const r = q.get.get(id);
+      return r ? toJob(r) : undefined;
+    },
+    unfinished: (kind) => (kind === undefined ? q.unfinished.all() : q.unfinishedOf.all(kind)).map(toJob),
+    savePoint: (id, text) => void q.savePoint.run(text, id),
+    point: (id) => q.point.get(id)?.point ?? undefined,
+    saveChunk: (id, chunk, text) => void q.saveChunk.run(id, chunk, text),
+    chunks: (id) => new Map(q.chunks.all(id).map((r) => [r.chunk, r.draws])),
+    clearCheckpoint: (id) => clear(id),
+    prune: (keep) => void q.prune.run(keep),
+    briefings: {
+      insert: (jobId, resultId) => void q.briefingInsert.run(jobId, resultId),
+      resultOf: (jobId) => q.briefingResult.get(jobId)?.result_id,
+      savePdf: (jobId, pdf) => void q.briefingSave.run(pdf, jobId),
+      pdf: (jobId) => q.briefingPdf.get(jobId)?.pdf ?? undefined,
+      latestFor: (resultId) => {
+        const r = q.briefingLatest.get(resultId);
+        return r ? { jobId: r.job_id, status: r.status } : undefined;
+      },
+    },
+  };
+}
+
+function toJob(r: JobRow): StoredJob {
+  return {
     id: r.id,
     kind: r.kind,
     status: r.status,
@@ -143,8 +178,25 @@ export function makeJobStore(db: Database.Database): JobStore {
     problems: JSON.parse(r.problems) as Problem[],
     resultId: r.result_id,
     resumed: r.resumed,
-  });
-  const q = {
+  };
+}
+
+/** Writes the given fields of a job row (those left undefined keep their value). */
+function updateJob(db: Database.Database, id: string, patch: Parameters<JobStore['update']>[1]): void {
+  const sets: string[] = [];
+  const values: Record<string, unknown> = { id };
+  for (const [k, v] of Object.entries(patch)) {
+    const col = COLUMNS[k];
+    if (!col || v === undefined) continue;
+    sets.push(`${col} = @${k}`);
+    values[k] = k === 'problems' ? JSON.stringify(v) : v;
+  }
+  if (sets.length) db.prepare(`UPDATE jobs SET ${sets.join(', ')} WHERE id = @id`).run(values);
+}
+
+/** The job store's statements, prepared once per database. */
+function prepareStatements(db: Database.Database) {
+  return {
     insert: db.prepare(
       `INSERT INTO jobs (id, kind, status, title, scenario_ref, scenario, created_at, finished_at, fraction, stage, message, problems, result_id, resumed)
        VALUES (@id, @kind, @status, @title, @scenarioRef, @scenario, @createdAt, @finishedAt, @fraction, @stage, @message, @problems, @resultId, @resumed)`,
@@ -171,46 +223,5 @@ export function makeJobStore(db: Database.Database): JobStore {
       `DELETE FROM jobs WHERE status IN ('done', 'cancelled', 'failed') AND id NOT IN
          (SELECT id FROM jobs WHERE status IN ('done', 'cancelled', 'failed') ORDER BY finished_at DESC LIMIT ?)`,
     ),
-  };
-  const clear = db.transaction((id: string) => {
-    q.clearChunks.run(id);
-    q.clearPoint.run(id);
-  });
-  return {
-    insert(job) {
-      q.insert.run({ ...job, scenario: JSON.stringify(job.scenario), problems: JSON.stringify(job.problems) });
-    },
-    update(id, patch) {
-      const sets: string[] = [];
-      const values: Record<string, unknown> = { id };
-      for (const [k, v] of Object.entries(patch)) {
-        const col = COLUMNS[k];
-        if (!col || v === undefined) continue;
-        sets.push(`${col} = @${k}`);
-        values[k] = k === 'problems' ? JSON.stringify(v) : v;
-      }
-      if (sets.length) db.prepare(`UPDATE jobs SET ${sets.join(', ')} WHERE id = @id`).run(values);
-    },
-    get(id) {
-      const r = q.get.get(id);
-      return r ? toJob(r) : undefined;
-    },
-    unfinished: (kind) => (kind === undefined ? q.unfinished.all() : q.unfinishedOf.all(kind)).map(toJob),
-    savePoint: (id, text) => void q.savePoint.run(text, id),
-    point: (id) => q.point.get(id)?.point ?? undefined,
-    saveChunk: (id, chunk, text) => void q.saveChunk.run(id, chunk, text),
-    chunks: (id) => new Map(q.chunks.all(id).map((r) => [r.chunk, r.draws])),
-    clearCheckpoint: (id) => clear(id),
-    prune: (keep) => void q.prune.run(keep),
-    briefings: {
-      insert: (jobId, resultId) => void q.briefingInsert.run(jobId, resultId),
-      resultOf: (jobId) => q.briefingResult.get(jobId)?.result_id,
-      savePdf: (jobId, pdf) => void q.briefingSave.run(pdf, jobId),
-      pdf: (jobId) => q.briefingPdf.get(jobId)?.pdf ?? undefined,
-      latestFor: (resultId) => {
-        const r = q.briefingLatest.get(resultId);
-        return r ? { jobId: r.job_id, status: r.status } : undefined;
-      },
-    },
   };
 }

@@ -5,7 +5,7 @@
  * briefing, then the cautions). Every page calls the same analysis functions as the CLI
  * (evaluateLandscapeScenario in the worker, loadLandscape for the checks before a run is queued).
  */
-import type { FastifyInstance, FastifyReply } from 'fastify';
+import type { FastifyInstance, FastifyReply, FastifyRequest } from 'fastify';
 import type { MultipartFile } from '@fastify/multipart';
 import { parseLandscapeScenario, MAX_MODEL_CELLS, type LandscapeScenario } from '../model/landscape.ts';
 import { InputError, type Problem } from '../model/errors.ts';
@@ -68,189 +68,44 @@ function limitsView(uploadBytes: number) {
   ];
 }
 
+/** What the page parts share: the dependencies and the preview cache of this app instance. */
+interface Pages {
+  deps: LandscapeDeps;
+  demos: LandscapeDemo[];
+  jobs: LandscapeJobs;
+  previewCache: Map<string, { svg: string; frame: Record<string, number> }>;
+}
+
 export default async function landscapePages(app: FastifyInstance, deps: LandscapeDeps) {
-  const { landscapeDemos: demos, landscapeJobs: jobs } = deps;
-  const previewCache = new Map<string, { svg: string; frame: Record<string, number> }>();
+  const pages: Pages = { deps, demos: deps.landscapeDemos, jobs: deps.landscapeJobs, previewCache: new Map() };
+  app.get('/landscapes', async (_req, reply) => listPage(pages, reply));
+  bandRoutes(app, pages);
+  app.post('/landscapes/upload', { config: { rateLimit: deps.computeRateLimit } }, async (req, reply) => upload(pages, req, reply));
+  runRoutes(app, pages);
+}
 
-  const demoBase = (ref: string): Base => {
-    const d = demos.find((x) => x.ref === ref);
-    if (!d) throw notFound(`Map scenario "${ref}"`);
-    return { key: d.ref, title: d.title, description: d.description, raw: d.raw, files: d.files, cellNote: d.cellNote, source: d.ref, action: `/landscapes/${d.ref}/bands` };
-  };
-  const runBase = (id: string): Base => {
-    const row = deps.store.jobs.get(id);
-    if (!row || row.kind !== 'landscape') throw notFound(`Map evaluation "${id}"`);
-    const inp = row.scenario as unknown as { scenario: Record<string, unknown>; files: Record<string, string>; source: string; cellNote: string };
-    const files = Object.fromEntries(Object.entries(inp.files).map(([k, v]) => [k, new Uint8Array(Buffer.from(v, 'base64'))]));
-    return { key: id, title: String(inp.scenario.title ?? row.title), description: String(inp.scenario.description ?? ''), raw: inp.scenario, files, cellNote: inp.cellNote, source: inp.source, action: `/landscape-runs/${id}/bands` };
-  };
-
-  const preview = async (base: Base) => {
-    const hit = previewCache.get(base.key);
-    if (hit) return hit;
-    let loaded: LoadedLandscape;
-    try {
-      loaded = await loadLandscape(parseLandscapeScenario(base.raw), base.files);
-    } catch {
-      return null; // the band checks say what is wrong
-    }
-    const mb = mapBaseOf(loaded);
-    const chart = hostCoverMap(mb, { width: PREVIEW_WIDTH });
-    const scale = (PREVIEW_WIDTH - FRAME_LEFT - FRAME_RIGHT) / (mb.grid.nx * mb.grid.cellM);
-    const out = { svg: chart.svg, frame: { left: FRAME_LEFT, top: FRAME_TOP, scale, x0: mb.grid.originXM, y0: mb.grid.originYM } };
-    previewCache.set(base.key, out);
-    while (previewCache.size > 20) previewCache.delete(previewCache.keys().next().value as string);
-    return out;
-  };
-
-  const bandsPage = async (reply: FastifyReply, base: Base, rows: BandRow[], problems: Problem[] = [], status = 200, posted: Record<string, string> | null = null) => {
-    const pv = await preview(base);
-    const s = base.raw as { bands?: { costPerStem?: number; costPerHa?: number; costUnit?: string }; horizonYears?: number; coordinates?: string };
-    const lonlat = s.coordinates === 'lonlat';
-    const bad = new Set(problems.map((p) => p.path));
-    return reply.page(
-      'landscape',
-      {
-        title: `Map: ${base.title}`,
-        base: { title: base.title, description: base.description, action: base.action, cellNote: base.cellNote },
-        rows: rows.map((r, k) => ({
-          ...r,
-          k,
-          n: k + 1,
-          letter: String.fromCharCode(65 + k),
-          clearing: r.cover === 'clearing',
-          bad: { name: bad.has(`bands.options[${k}].name`), widthM: bad.has(`bands.options[${k}].widthM`), line: bad.has(`bands.options[${k}].line`) },
-        })),
-        bandCount: rows.length,
-        canAdd: rows.length < MAX_BAND_ROWS,
-        coordsWord: lonlat ? 'longitude latitude [°]' : 'x y in the map CRS [m]',
-        lonlat,
-        preview: pv,
-        pestGroups: pestFieldsets((base.raw.pest as Record<string, unknown>) ?? {}, posted, problems),
-        problems: problemItems(problems),
-        horizonYears: s.horizonYears,
-        scripts: ['/assets/landscape.js', ...(problems.length ? ['/assets/focus-problems.js'] : [])],
-      },
-      status,
-    );
-  };
-
-  /** Band rows posted: add/remove a row (page again), or run (checks, then the job). */
-  const postBands = async (reply: FastifyReply, base: Base, body: Record<string, unknown>) => {
-    const action = typeof body.action === 'string' ? body.action : 'run';
-    const rows = rowsFromBody(body);
-    const posted = postedPest(body);
-    if (action !== 'run') return bandsPage(reply, base, applyBandAction(rows, action), [], 200, posted);
-    const { options, problems } = rowsToBands(rows);
-    if (problems.length) return bandsPage(reply, base, rows, problems, 400, posted);
-    const raw = clone(base.raw);
-    raw.bands = { ...((raw.bands as object) ?? {}), options };
-    raw.pest = applyPostedPest((raw.pest as Record<string, unknown>) ?? {}, posted);
-    return start(reply, raw, base.files, base.source, base.cellNote, (p, st) => bandsPage(reply, base, rows, p, st, posted));
-  };
-
-  /** Validates the scenario and its map (every named map error, by field) before the job is queued. */
-  const start = async (
-    reply: FastifyReply,
-    raw: Record<string, unknown>,
-    files: Record<string, Uint8Array>,
-    source: string,
-    cellNote: string,
-    fail: (p: Problem[], status: number) => Promise<FastifyReply>,
-  ) => {
-    let scenario: LandscapeScenario;
-    try {
-      scenario = parseLandscapeScenario(raw);
-      await loadLandscape(scenario, files);
-    } catch (e) {
-      if (e instanceof InputError) return fail(e.problems, (e as { code?: string }).code === 'MAP_FILE_TOO_LARGE' ? 413 : 400);
-      throw e;
-    }
-    const job = jobs.submit(scenario.title, { scenario: raw, files: Object.fromEntries(Object.entries(files).map(([k, v]) => [k, b64(v)])), source, cellNote });
-    return reply.redirect(`/landscape-runs/${job.id}`, 303);
-  };
-
-  const listPage = (reply: FastifyReply, problems: Problem[] = [], status = 200) =>
-    reply.page(
-      'landscapes',
-      {
-        title: 'Landscape maps',
-        demos: demos.map((d) => ({ ref: d.ref, title: d.title, description: d.description, link: `/landscapes/${d.ref}`, cellNote: d.cellNote })),
-        limits: limitsView(deps.landscapeUploadBytes),
-        problems: problemItems(problems),
-        scripts: problems.length ? ['/assets/focus-problems.js'] : [],
-      },
-      status,
-    );
-
-  app.get('/landscapes', async (_req, reply) => listPage(reply));
-
+/** The band tables of a demo and of an earlier run: shown, rows added or removed, run. */
+function bandRoutes(app: FastifyInstance, pages: Pages) {
+  const { deps } = pages;
   app.get<{ Params: { ref: string } }>('/landscapes/:ref', async (req, reply) => {
-    const base = demoBase(req.params.ref);
-    return bandsPage(reply, base, bandsToRows(((base.raw.bands as { options?: Record<string, unknown>[] })?.options ?? [])));
+    const base = demoBase(pages, req.params.ref);
+    return bandsPage(pages, reply, base, bandsToRows(((base.raw.bands as { options?: Record<string, unknown>[] })?.options ?? [])));
   });
   app.post<{ Params: { ref: string }; Body: Record<string, unknown> }>('/landscapes/:ref/bands', { config: deps.formPost }, async (req, reply) =>
-    postBands(reply, demoBase(req.params.ref), req.body ?? {}),
+    postBands(pages, reply, demoBase(pages, req.params.ref), req.body ?? {}),
   );
   app.get<{ Params: { id: string } }>('/landscape-runs/:id/bands', async (req, reply) => {
-    const base = runBase(req.params.id);
-    return bandsPage(reply, base, bandsToRows(((base.raw.bands as { options?: Record<string, unknown>[] })?.options ?? [])));
+    const base = runBase(pages, req.params.id);
+    return bandsPage(pages, reply, base, bandsToRows(((base.raw.bands as { options?: Record<string, unknown>[] })?.options ?? [])));
   });
   app.post<{ Params: { id: string }; Body: Record<string, unknown> }>('/landscape-runs/:id/bands', { config: deps.formPost }, async (req, reply) =>
-    postBands(reply, runBase(req.params.id), req.body ?? {}),
+    postBands(pages, reply, runBase(pages, req.params.id), req.body ?? {}),
   );
+}
 
-  app.post('/landscapes/upload', { config: { rateLimit: deps.computeRateLimit } }, async (req, reply) => {
-    const max = deps.landscapeUploadBytes;
-    if (!req.isMultipart()) return listPage(reply, [{ path: 'scenario', value: undefined, message: 'choose the scenario file (.json) and the map file to upload' }], 400);
-    const got: Record<string, { filename: string; bytes: Buffer }> = {};
-    try {
-      for await (const part of req.parts({ limits: { fileSize: max, files: 3, fields: 4, parts: 8 } })) {
-        if (part.type !== 'file') continue;
-        const f = part as MultipartFile;
-        if (!['scenario', 'host', 'classes'].includes(f.fieldname)) {
-          await f.toBuffer().catch(() => undefined);
-          continue;
-        }
-        let bytes: Buffer;
-        try {
-          bytes = await f.toBuffer();
-        } catch (e) {
-          if ((e as { code?: string }).code === 'FST_REQ_FILE_TOO_LARGE') {
-            return listPage(reply, [{ path: f.fieldname, value: f.filename, message: `is larger than ${(max / 1048576).toFixed(2)} MB, the most this server accepts for one file` }], 413);
-          }
-          throw e;
-        }
-        if (f.file.truncated) return listPage(reply, [{ path: f.fieldname, value: f.filename, message: `is larger than ${(max / 1048576).toFixed(2)} MB, the most this server accepts for one file` }], 413);
-        if (bytes.length) got[f.fieldname] = { filename: f.filename, bytes };
-      }
-    } catch (e) {
-      req.log.info({ err: e }, 'damaged map upload');
-      return listPage(reply, [{ path: 'scenario', value: undefined, message: `the upload arrived incomplete or damaged (${(e as Error).message}); choose the files and upload them again` }], 400);
-    }
-    if (!got.scenario) return listPage(reply, [{ path: 'scenario', value: undefined, message: 'choose the scenario file (.json)' }], 400);
-    let raw: Record<string, unknown>;
-    try {
-      raw = JSON.parse(got.scenario.bytes.toString('utf8')) as Record<string, unknown>;
-    } catch (e) {
-      return listPage(reply, [{ path: 'scenario', value: got.scenario.filename, message: `is not readable JSON (${(e as Error).message})` }], 400);
-    }
-    let scenario: LandscapeScenario;
-    try {
-      scenario = parseLandscapeScenario(raw);
-    } catch (e) {
-      if (e instanceof InputError) return listPage(reply, e.problems, 400);
-      throw e;
-    }
-    if (!got.host) return listPage(reply, [{ path: 'host', value: undefined, message: `choose the map file the scenario names as map.file ("${scenario.map.file}")` }], 400);
-    const files: Record<string, Uint8Array> = { [scenario.map.file]: new Uint8Array(got.host.bytes) };
-    if (scenario.map.format === 'geotiff' && scenario.map.classes) {
-      if (!got.classes) return listPage(reply, [{ path: 'classes', value: undefined, message: `the scenario names a class raster ("${scenario.map.classes.file}"): choose it too` }], 400);
-      files[scenario.map.classes.file] = new Uint8Array(got.classes.bytes);
-    }
-    return start(reply, raw, files, 'upload', scenario.map.cellM ? `Model cell ${scenario.map.cellM} m, from the scenario.` : 'Model cell from the map file.', (p, st) => listPage(reply, p, st));
-  });
-
+/** A map evaluation: its progress or result page, cancel, its state as JSON, its downloads. */
+function runRoutes(app: FastifyInstance, pages: Pages) {
+  const { deps, jobs } = pages;
   const jobOr404 = (id: string): LandscapeJobView => {
     const j = jobs.get(id);
     if (!j) throw notFound(`Map evaluation "${id}"`);
@@ -284,6 +139,182 @@ export default async function landscapePages(app: FastifyInstance, deps: Landsca
       .header('content-disposition', `${d.type === 'application/pdf' ? 'inline' : 'attachment'}; filename="${d.name.replace(/[^A-Za-z0-9._-]/g, '_')}"`)
       .send(d.bytes);
   });
+}
+
+function demoBase({ demos }: Pages, ref: string): Base {
+  const d = demos.find((x) => x.ref === ref);
+  if (!d) throw notFound(`Map scenario "${ref}"`);
+  return { key: d.ref, title: d.title, description: d.description, raw: d.raw, files: d.files, cellNote: d.cellNote, source: d.ref, action: `/landscapes/${d.ref}/bands` };
+}
+
+function runBase({ deps }: Pages, id: string): Base {
+  const row = deps.store.jobs.get(id);
+  if (!row || row.kind !== 'landscape') throw notFound(`Map evaluation "${id}"`);
+  const inp = row.scenario as unknown as { scenario: Record<string, unknown>; files: Record<string, string>; source: string; cellNote: string };
+  const files = Object.fromEntries(Object.entries(inp.files).map(([k, v]) => [k, new Uint8Array(Buffer.from(v, 'base64'))]));
+  return { key: id, title: String(inp.scenario.title ?? row.title), description: String(inp.scenario.description ?? ''), raw: inp.scenario, files, cellNote: inp.cellNote, source: inp.source, action: `/landscape-runs/${id}/bands` };
+}
+
+/** The host-cover preview of a base map with its frame for the click script (null when the map does not load). */
+async function preview({ previewCache }: Pages, base: Base) {
+  const hit = previewCache.get(base.key);
+  if (hit) return hit;
+  let loaded: LoadedLandscape;
+  try {
+    loaded = await loadLandscape(parseLandscapeScenario(base.raw), base.files);
+  } catch {
+    return null; // the band checks say what is wrong
+  }
+  const mb = mapBaseOf(loaded);
+  const chart = hostCoverMap(mb, { width: PREVIEW_WIDTH });
+  const scale = (PREVIEW_WIDTH - FRAME_LEFT - FRAME_RIGHT) / (mb.grid.nx * mb.grid.cellM);
+  const out = { svg: chart.svg, frame: { left: FRAME_LEFT, top: FRAME_TOP, scale, x0: mb.grid.originXM, y0: mb.grid.originYM } };
+  previewCache.set(base.key, out);
+  while (previewCache.size > 20) previewCache.delete(previewCache.keys().next().value as string);
+  return out;
+}
+
+async function bandsPage(pages: Pages, reply: FastifyReply, base: Base, rows: BandRow[], problems: Problem[] = [], status = 200, posted: Record<string, string> | null = null) {
+  const pv = await preview(pages, base);
+  const s = base.raw as { bands?: { costPerStem?: number; costPerHa?: number; costUnit?: string }; horizonYears?: number; coordinates?: string };
+  const lonlat = s.coordinates === 'lonlat';
+  const bad = new Set(problems.map((p) => p.path));
+  return reply.page(
+    'landscape',
+    {
+      title: `Map: ${base.title}`,
+      base: { title: base.title, description: base.description, action: base.action, cellNote: base.cellNote },
+      rows: rows.map((r, k) => ({
+        ...r,
+        k,
+        n: k + 1,
+        letter: String.fromCharCode(65 + k),
+        clearing: r.cover === 'clearing',
+        bad: { name: bad.has(`bands.options[${k}].name`), widthM: bad.has(`bands.options[${k}].widthM`), line: bad.has(`bands.options[${k}].line`) },
+      })),
+      bandCount: rows.length,
+      canAdd: rows.length < MAX_BAND_ROWS,
+      coordsWord: lonlat ? 'longitude latitude [°]' : 'x y in the map CRS [m]',
+      lonlat,
+      preview: pv,
+      pestGroups: pestFieldsets((base.raw.pest as Record<string, unknown>) ?? {}, posted, problems),
+      problems: problemItems(problems),
+      horizonYears: s.horizonYears,
+      scripts: ['/assets/landscape.js', ...(problems.length ? ['/assets/focus-problems.js'] : [])],
+    },
+    status,
+  );
+}
+
+/** Band rows posted: add/remove a row (page again), or run (checks, then the job). */
+async function postBands(pages: Pages, reply: FastifyReply, base: Base, body: Record<string, unknown>) {
+  const action = typeof body.action === 'string' ? body.action : 'run';
+  const rows = rowsFromBody(body);
+  const posted = postedPest(body);
+  if (action !== 'run') return bandsPage(pages, reply, base, applyBandAction(rows, action), [], 200, posted);
+  const { options, problems } = rowsToBands(rows);
+  if (problems.length) return bandsPage(pages, reply, base, rows, problems, 400, posted);
+  const raw = clone(base.raw);
+  raw.bands = { ...((raw.bands as object) ?? {}), options };
+  raw.pest = applyPostedPest((raw.pest as Record<string, unknown>) ?? {}, posted);
+  return start(pages, reply, raw, base.files, base.source, base.cellNote, (p, st) => bandsPage(pages, reply, base, rows, p, st, posted));
+}
+
+/** Validates the scenario and its map (every named map error, by field) before the job is queued. */
+async function start(
+  { jobs }: Pages,
+  reply: FastifyReply,
+  raw: Record<string, unknown>,
+  files: Record<string, Uint8Array>,
+  source: string,
+  cellNote: string,
+  fail: (p: Problem[], status: number) => Promise<FastifyReply>,
+) {
+  let scenario: LandscapeScenario;
+  try {
+    scenario = parseLandscapeScenario(raw);
+    await loadLandscape(scenario, files);
+  } catch (e) {
+    if (e instanceof InputError) return fail(e.problems, (e as { code?: string }).code === 'MAP_FILE_TOO_LARGE' ? 413 : 400);
+    throw e;
+  }
+  const job = jobs.submit(scenario.title, { scenario: raw, files: Object.fromEntries(Object.entries(files).map(([k, v]) => [k, b64(v)])), source, cellNote });
+  return reply.redirect(`/landscape-runs/${job.id}`, 303);
+}
+
+function listPage({ demos, deps }: Pages, reply: FastifyReply, problems: Problem[] = [], status = 200) {
+  return reply.page(
+    'landscapes',
+    {
+      title: 'Landscape maps',
+      demos: demos.map((d) => ({ ref: d.ref, title: d.title, description: d.description, link: `/landscapes/${d.ref}`, cellNote: d.cellNote })),
+      limits: limitsView(deps.landscapeUploadBytes),
+      problems: problemItems(problems),
+      scripts: problems.length ? ['/assets/focus-problems.js'] : [],
+    },
+    status,
+  );
+}
+
+/** An upload (scenario file, map file, class raster): read, checked field by field, then run like a band table. */
+async function upload(pages: Pages, req: FastifyRequest, reply: FastifyReply) {
+  const fail = (p: Problem[], st: number) => listPage(pages, reply, p, st);
+  const read = await readUploadParts(req, pages.deps.landscapeUploadBytes);
+  if (!read.ok) return fail(read.problems, read.status);
+  const got = read.files;
+  if (!got.scenario) return fail([{ path: 'scenario', value: undefined, message: 'choose the scenario file (.json)' }], 400);
+  let raw: Record<string, unknown>;
+  try {
+    raw = JSON.parse(got.scenario.bytes.toString('utf8')) as Record<string, unknown>;
+  } catch (e) {
+    return fail([{ path: 'scenario', value: got.scenario.filename, message: `is not readable JSON (${(e as Error).message})` }], 400);
+  }
+  let scenario: LandscapeScenario;
+  try {
+    scenario = parseLandscapeScenario(raw);
+  } catch (e) {
+    if (e instanceof InputError) return fail(e.problems, 400);
+    throw e;
+  }
+  if (!got.host) return fail([{ path: 'host', value: undefined, message: `choose the map file the scenario names as map.file ("${scenario.map.file}")` }], 400);
+  const files: Record<string, Uint8Array> = { [scenario.map.file]: new Uint8Array(got.host.bytes) };
+  if (scenario.map.format === 'geotiff' && scenario.map.classes) {
+    if (!got.classes) return fail([{ path: 'classes', value: undefined, message: `the scenario names a class raster ("${scenario.map.classes.file}"): choose it too` }], 400);
+    files[scenario.map.classes.file] = new Uint8Array(got.classes.bytes);
+  }
+  return start(pages, reply, raw, files, 'upload', scenario.map.cellM ? `Model cell ${scenario.map.cellM} m, from the scenario.` : 'Model cell from the map file.', fail);
+}
+
+type UploadedFiles = Record<string, { filename: string; bytes: Buffer }>;
+
+/** The upload's files by field name, or the problem that stopped the reading (too large, damaged, not multipart). */
+async function readUploadParts(req: FastifyRequest, max: number): Promise<{ ok: true; files: UploadedFiles } | { ok: false; problems: Problem[]; status: number }> {
+  if (!req.isMultipart()) return { ok: false, problems: [{ path: 'scenario', value: undefined, message: 'choose the scenario file (.json) and the map file to upload' }], status: 400 };
+  const got: UploadedFiles = {};
+  const tooLarge = (f: MultipartFile) => ({ ok: false as const, problems: [{ path: f.fieldname, value: f.filename, message: `is larger than ${(max / 1048576).toFixed(2)} MB, the most this server accepts for one file` }], status: 413 });
+  try {
+    for await (const part of req.parts({ limits: { fileSize: max, files: 3, fields: 4, parts: 8 } })) {
+      if (part.type !== 'file') continue;
+      const f = part as MultipartFile;
+      if (!['scenario', 'host', 'classes'].includes(f.fieldname)) {
+        await f.toBuffer().catch(() => undefined);
+        continue;
+      }
+      let bytes: Buffer;
+      try {
+        bytes = await f.toBuffer();
+      } catch (e) {
+        if ((e as { code?: string }).code === 'FST_REQ_FILE_TOO_LARGE') return tooLarge(f);
+        throw e;
+      }
+      if (f.file.truncated) return tooLarge(f);
+      if (bytes.length) got[f.fieldname] = { filename: f.filename, bytes };
+    }
+  } catch (e) {
+    req.log.info({ err: e }, 'damaged map upload');
+    return { ok: false, problems: [{ path: 'scenario', value: undefined, message: `the upload arrived incomplete or damaged (${(e as Error).message}); choose the files and upload them again` }], status: 400 };
+  }
+  return { ok: true, files: got };
 }
 
 /** The result page's view: the answer per option first, then the maps, the downloads and the cautions. */

@@ -157,56 +157,7 @@ export function openStore(dataDir: string, opts: StoreOptions = {}): Store {
       throw storageFailure(e, dataDir) ?? e;
     }
   };
-
-  const now = () => new Date().toISOString();
-  const toScenario = (r: ScenarioRow): SavedScenario => ({
-    id: r.id,
-    title: r.title,
-    scenario: JSON.parse(r.body) as Scenario,
-    createdAt: r.created_at,
-    updatedAt: r.updated_at,
-  });
-  const toResult = (r: ResultRow): StoredResult => ({
-    id: r.id,
-    scenarioRef: r.scenario_ref,
-    title: r.title,
-    scenario: JSON.parse(r.scenario) as Scenario,
-    toolName: r.tool_name,
-    toolVersion: r.tool_version,
-    createdAt: r.created_at,
-    document: JSON.parse(r.document) as ResultDocument,
-  });
-
-  const q = {
-    listScenarios: db.prepare<[], SavedScenarioSummary>(
-      'SELECT id, title, updated_at AS updatedAt FROM scenarios ORDER BY updated_at DESC, id DESC',
-    ),
-    getScenario: db.prepare<[number], ScenarioRow>('SELECT * FROM scenarios WHERE id = ?'),
-    insertScenario: db.prepare<[string, string, string, string]>(
-      'INSERT INTO scenarios (title, body, created_at, updated_at) VALUES (?, ?, ?, ?)',
-    ),
-    updateScenario: db.prepare<[string, string, string, number]>(
-      'UPDATE scenarios SET title = ?, body = ?, updated_at = ? WHERE id = ?',
-    ),
-    deleteScenario: db.prepare<[number]>('DELETE FROM scenarios WHERE id = ?'),
-    insertResult: db.prepare<[string, string | null, string, string, string, string, string, string]>(
-      `INSERT INTO results (id, scenario_ref, title, scenario, tool_name, tool_version, created_at, document)
-       VALUES (?, ?, ?, ?, ?, ?, ?, ?)`,
-    ),
-    listResults: db.prepare<[string | null, string | null, number], ResultRow>(
-      `SELECT id, scenario_ref, title, tool_name, tool_version, created_at FROM results
-       WHERE (? IS NULL OR scenario_ref = ?) ORDER BY created_at DESC LIMIT ?`,
-    ),
-    getResult: db.prepare<[string], ResultRow>('SELECT * FROM results WHERE id = ?'),
-    digestFingerprint: db.prepare<[string], { fp: string | null }>(`SELECT json_extract(document, '$.scenarioFingerprint') AS fp FROM results WHERE id = ?`),
-    digestOptions: db.prepare<[string], { k: number; name: string | null; width: number | null; kind: string | null; decides: number | null }>(
-      `SELECT o.key AS k, json_extract(o.value, '$.name') AS name, json_extract(o.value, '$.widthM') AS width,
-              json_extract(o.value, '$.verdict.kind') AS kind,
-              json_extract(r.document, '$.bypass.options[' || o.key || '].transportDecides') AS decides
-       FROM results r, json_each(r.document, '$.options') o WHERE r.id = ? ORDER BY o.key`,
-    ),
-    deleteResult: db.prepare<[string]>('DELETE FROM results WHERE id = ?'),
-  };
+  const q = prepareStatements(db);
 
   return {
     listScenarios: () => q.listScenarios.all(),
@@ -253,37 +204,101 @@ export function openStore(dataDir: string, opts: StoreOptions = {}): Store {
       const row = q.getResult.get(id);
       return row ? toResult(row) : undefined;
     },
-    resultDigests(ids) {
-      const out = new Map<string, ResultDigest>();
-      for (const id of ids) {
-        const fp = q.digestFingerprint.get(id);
-        if (!fp) continue;
-        out.set(id, {
-          fingerprint: fp.fp ?? '',
-          options: q.digestOptions.all(id).map((o) => ({ name: o.name ?? '', widthM: o.width ?? NaN, kind: o.kind, transportDecides: o.decides === 1 })),
-        });
-      }
-      return out;
-    },
+    resultDigests: (ids) => resultDigests(q, ids),
     deleteResult: (id) => writing(() => q.deleteResult.run(id).changes > 0),
     jobs: makeJobStore(db),
-    checkSpace() {
-      let free: number;
-      try {
-        const fs = statfsSync(dataDir);
-        free = Number(fs.bavail) * Number(fs.bsize);
-      } catch {
-        return; // No figure to go on (an unusual file system): the save itself still reports a full disk.
-      }
-      if (free < minFree) {
-        throw new StorageFullError(
-          `the disk holding the data folder (DATA_DIR ${dataDir}) has only ${(free / 1048576).toFixed(1)} MB free, less than the ` +
-            `${(minFree / 1048576).toFixed(0)} MB an evaluation may need to store its result; free some space or delete old results first`,
-        );
-      }
-    },
+    checkSpace: () => checkFreeSpace(dataDir, minFree),
     close: () => db.close(),
   };
+}
+
+const now = () => new Date().toISOString();
+
+function toScenario(r: ScenarioRow): SavedScenario {
+  return {
+    id: r.id,
+    title: r.title,
+    scenario: JSON.parse(r.body) as Scenario,
+    createdAt: r.created_at,
+    updatedAt: r.updated_at,
+  };
+}
+
+function toResult(r: ResultRow): StoredResult {
+  return {
+    id: r.id,
+    scenarioRef: r.scenario_ref,
+    title: r.title,
+    scenario: JSON.parse(r.scenario) as Scenario,
+    toolName: r.tool_name,
+    toolVersion: r.tool_version,
+    createdAt: r.created_at,
+    document: JSON.parse(r.document) as ResultDocument,
+  };
+}
+
+/** The store's statements, prepared once per database. */
+function prepareStatements(db: Database.Database) {
+  return {
+    listScenarios: db.prepare<[], SavedScenarioSummary>(
+      'SELECT id, title, updated_at AS updatedAt FROM scenarios ORDER BY updated_at DESC, id DESC',
+    ),
+    getScenario: db.prepare<[number], ScenarioRow>('SELECT * FROM scenarios WHERE id = ?'),
+    insertScenario: db.prepare<[string, string, string, string]>(
+      'INSERT INTO scenarios (title, body, created_at, updated_at) VALUES (?, ?, ?, ?)',
+    ),
+    updateScenario: db.prepare<[string, string, string, number]>(
+      'UPDATE scenarios SET title = ?, body = ?, updated_at = ? WHERE id = ?',
+    ),
+    deleteScenario: db.prepare<[number]>('DELETE FROM scenarios WHERE id = ?'),
+    insertResult: db.prepare<[string, string | null, string, string, string, string, string, string]>(
+      `INSERT INTO results (id, scenario_ref, title, scenario, tool_name, tool_version, created_at, document)
+       VALUES (?, ?, ?, ?, ?, ?, ?, ?)`,
+    ),
+    listResults: db.prepare<[string | null, string | null, number], ResultRow>(
+      `SELECT id, scenario_ref, title, tool_name, tool_version, created_at FROM results
+       WHERE (? IS NULL OR scenario_ref = ?) ORDER BY created_at DESC LIMIT ?`,
+    ),
+    getResult: db.prepare<[string], ResultRow>('SELECT * FROM results WHERE id = ?'),
+    digestFingerprint: db.prepare<[string], { fp: string | null }>(`SELECT json_extract(document, '$.scenarioFingerprint') AS fp FROM results WHERE id = ?`),
+    digestOptions: db.prepare<[string], { k: number; name: string | null; width: number | null; kind: string | null; decides: number | null }>(
+      `SELECT o.key AS k, json_extract(o.value, '$.name') AS name, json_extract(o.value, '$.widthM') AS width,
+              json_extract(o.value, '$.verdict.kind') AS kind,
+              json_extract(r.document, '$.bypass.options[' || o.key || '].transportDecides') AS decides
+       FROM results r, json_each(r.document, '$.options') o WHERE r.id = ? ORDER BY o.key`,
+    ),
+    deleteResult: db.prepare<[string]>('DELETE FROM results WHERE id = ?'),
+  };
+}
+
+function resultDigests(q: ReturnType<typeof prepareStatements>, ids: string[]): Map<string, ResultDigest> {
+  const out = new Map<string, ResultDigest>();
+  for (const id of ids) {
+    const fp = q.digestFingerprint.get(id);
+    if (!fp) continue;
+    out.set(id, {
+      fingerprint: fp.fp ?? '',
+      options: q.digestOptions.all(id).map((o) => ({ name: o.name ?? '', widthM: o.width ?? NaN, kind: o.kind, transportDecides: o.decides === 1 })),
+    });
+  }
+  return out;
+}
+
+/** @throws StorageFullError when the data folder's disk has less than `minFree` bytes free */
+function checkFreeSpace(dataDir: string, minFree: number): void {
+  let free: number;
+  try {
+    const fs = statfsSync(dataDir);
+    free = Number(fs.bavail) * Number(fs.bsize);
+  } catch {
+    return; // No figure to go on (an unusual file system): the save itself still reports a full disk.
+  }
+  if (free < minFree) {
+    throw new StorageFullError(
+      `the disk holding the data folder (DATA_DIR ${dataDir}) has only ${(free / 1048576).toFixed(1)} MB free, less than the ` +
+        `${(minFree / 1048576).toFixed(0)} MB an evaluation may need to store its result; free some space or delete old results first`,
+    );
+  }
 }
 
 /**

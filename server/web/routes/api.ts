@@ -1,7 +1,7 @@
 /**
  * JSON API for scripts. Request bodies are validated with the model's zod schemas (the same as the CLI
  * and the form); the OpenAPI document at /api/openapi.json is generated from them. Bad input answers
- * 400 with `problems: [{path, value, message}]`.
+ * 400 with `problems: [{path, value, message}]`. The schemas several route groups share are in api-schemas.ts.
  */
 import type { FastifyInstance } from 'fastify';
 import type { ZodTypeProvider } from 'fastify-type-provider-zod';
@@ -16,66 +16,7 @@ import { jobPayload, sendJobEvents, unknownJob } from './run-pages.ts';
 import { briefingName, download } from './result-pages.ts';
 import type { WebDeps } from '../deps.ts';
 import { briefingNow, type BriefingJobView } from '../briefings.ts';
-
-const ProblemSchema = z.object({ path: z.string(), value: z.unknown(), message: z.string() });
-const ErrorSchema = z
-  .object({ error: z.string(), message: z.string(), problems: z.array(ProblemSchema), reference: z.string().optional() })
-  .describe('Error: a code, a message and one problem per field (path, value found, allowed range)');
-const RefParams = z.object({ ref: z.string().min(1).max(80).describe('Scenario reference: "demo-<name>" or a saved scenario number') });
-const IdParams = z.object({ id: z.string().min(1).max(80) });
-const ScenarioOut = z.record(z.string(), z.unknown()).describe('A scenario (same schema as the request body of POST /api/scenarios)');
-const ScenarioItem = z.object({
-  ref: z.string(),
-  kind: z.enum(['demo', 'saved']),
-  title: z.string(),
-  updatedAt: z.string().optional(),
-});
-const ScenarioEntry = z.object({ ref: z.string(), kind: z.enum(['demo', 'saved']), readOnly: z.boolean(), scenario: ScenarioOut });
-const JobSchema = z.object({
-  id: z.string(),
-  status: z.enum(['queued', 'running', 'cancelling', 'done', 'cancelled', 'failed']),
-  statusText: z.string(),
-  fraction: z.number(),
-  percentText: z.string(),
-  stage: z.string(),
-  timeLeftText: z.string().describe('Estimated time left while running, in words ("about 3 min left"); empty when not known'),
-  where: z.string().describe('Where the work runs ("this machine, 2 worker threads" or "N queue workers")'),
-  trouble: z.string().nullable().describe('What is wrong behind the runner, if anything ("queue unavailable, retrying")'),
-  resumed: z.boolean().describe('Taken up again after a server restart'),
-  resumedText: z.string(),
-  message: z.string(),
-  problems: z.array(ProblemSchema),
-  finished: z.boolean(),
-  serverStopping: z.boolean().describe('The server is stopping; the evaluation is kept and resumes at its next start'),
-  resultUrl: z.string().nullable().describe('Page of the result once done; the JSON is at /api/results/{resultId}'),
-  resultId: z.string().nullable(),
-});
-const ResultSummary = z.object({
-  id: z.string(),
-  scenarioRef: z.string().nullable(),
-  title: z.string(),
-  toolName: z.string(),
-  toolVersion: z.string(),
-  createdAt: z.string(),
-});
-const ResultOut = ResultSummary.extend({
-  scenario: ScenarioOut.describe('The exact scenario the result was computed from'),
-  document: z.record(z.string(), z.unknown()).describe('The result document (fields documented in the README, "Result document")'),
-});
-const EvaluationRequest = z
-  .strictObject({
-    scenarioRef: z.string().min(1).max(80).optional().describe('Evaluate a stored or demo scenario'),
-    scenario: ScenarioSchema.optional().describe('Or evaluate this scenario (not stored as a scenario; the result keeps it)'),
-  })
-  .superRefine((b, ctx) => {
-    if ((b.scenarioRef === undefined) === (b.scenario === undefined)) {
-      ctx.addIssue({ code: 'custom', path: [], input: b, message: 'give exactly one of "scenarioRef" or "scenario"' });
-    }
-  });
-
-/** Allowed range of the result-list limit, in the words of every other problem message. */
-const LIMIT_RANGE = 'must be a whole number from 1 to 500';
-const errors = { 400: ErrorSchema, 404: ErrorSchema };
+import { ErrorSchema, RefParams, IdParams, ScenarioItem, ScenarioEntry, JobSchema, ResultSummary, ResultOut, EvaluationRequest, LIMIT_RANGE, errors } from './api-schemas.ts';
 
 /** Registers the JSON API (OpenAPI at /api/openapi.json), one group of routes per concern. */
 export default async function apiRoutes(app: FastifyInstance, deps: WebDeps) {

@@ -71,60 +71,77 @@ function fitView(fit: CalibrationResult) {
 }
 
 export default async function fitPages(app: FastifyInstance, deps: WebDeps) {
-  const { catalogue, store } = deps;
+  const runFit = makeFitRunner(app);
+  formRoutes(app, deps, runFit);
+  apiRoute(app, deps, runFit);
+}
+
+type RunFit = (task: FitTask) => Promise<FitTaskResult>;
+
+/** The one-thread fit pool, started at the first fit and closed with the app. */
+function makeFitRunner(app: FastifyInstance): RunFit {
   let pool: Piscina | null = null;
-  const runFit = async (task: FitTask): Promise<FitTaskResult> => {
-    pool ??= new Piscina({ filename: new URL('../../analysis/calibration/fit-worker.ts', import.meta.url).href, minThreads: 0, maxThreads: 1, idleTimeout: 30_000, execArgv: workerExecArgv() });
-    return (await pool.run(task)) as FitTaskResult;
-  };
   app.addHook('onClose', async () => {
     await pool?.destroy();
   });
-
-  const entryOr404 = (ref: string) => {
-    const e = catalogue.get(ref);
-    if (!e) throw notFound(`No scenario "${ref}"`);
-    return e;
+  return async (task) => {
+    pool ??= new Piscina({ filename: new URL('../../analysis/calibration/fit-worker.ts', import.meta.url).href, minThreads: 0, maxThreads: 1, idleTimeout: 30_000, execArgv: workerExecArgv() });
+    return (await pool.run(task)) as FitTaskResult;
   };
+}
 
-  const page = (reply: FastifyReply, ref: string, scenario: Scenario, data: Record<string, unknown>, status = 200) =>
-    reply.page(
-      'fit',
-      {
-        title: `Fit to survey records — ${scenario.title}`,
-        scenarioTitle: scenario.title,
-        links: { page: `/scenarios/${ref}`, fit: `/scenarios/${ref}/fit`, adopt: `/scenarios/${ref}/fit/adopt` },
-        infestation: `${scenario.infestation.fromKm}–${scenario.infestation.toKm} km`,
-        ...data,
-      },
-      status,
-    );
+function entryOr404(deps: WebDeps, ref: string) {
+  const e = deps.catalogue.get(ref);
+  if (!e) throw notFound(`No scenario "${ref}"`);
+  return e;
+}
 
+function page(reply: FastifyReply, ref: string, scenario: Scenario, data: Record<string, unknown>, status = 200) {
+  return reply.page(
+    'fit',
+    {
+      title: `Fit to survey records — ${scenario.title}`,
+      scenarioTitle: scenario.title,
+      links: { page: `/scenarios/${ref}`, fit: `/scenarios/${ref}/fit`, adopt: `/scenarios/${ref}/fit/adopt` },
+      infestation: `${scenario.infestation.fromKm}–${scenario.infestation.toKm} km`,
+      ...data,
+    },
+    status,
+  );
+}
+
+/** The posted fit form: the text as typed (shown again), the start stretch and the records table, or what is wrong. */
+function readFitForm(body: Record<string, unknown>) {
+  const text = typeof body.records === 'string' ? body.records : '';
+  const form = { recordsText: text, startFrom: String(body.startFrom ?? ''), startTo: String(body.startTo ?? '') };
+  const problems: Problem[] = [];
+  let start: { fromKm: number; toKm: number } | undefined;
+  if (form.startFrom.trim() !== '' || form.startTo.trim() !== '') {
+    const a = Number(form.startFrom);
+    const b = Number(form.startTo);
+    if (!Number.isFinite(a) || !Number.isFinite(b) || !(b > a)) problems.push({ path: 'start', value: `${form.startFrom}–${form.startTo}`, message: 'must be two positions in km, the first smaller (or leave both empty for the infestation)' });
+    else start = { fromKm: a, toKm: b };
+  }
+  let table: SurveyTable | undefined;
+  try {
+    table = parseSurveyCsv(text);
+  } catch (err) {
+    if (!(err instanceof InputError)) throw err;
+    problems.push(...err.problems);
+  }
+  return { form, start, table, problems };
+}
+
+/** The fit page of a scenario: the form, the fit, and saving the fitted scenario. */
+function formRoutes(app: FastifyInstance, deps: WebDeps, runFit: RunFit) {
   app.get<{ Params: { ref: string } }>('/scenarios/:ref/fit', async (req, reply) => {
-    const e = entryOr404(req.params.ref);
+    const e = entryOr404(deps, req.params.ref);
     return page(reply, e.ref, e.scenario, { recordsText: 'year,km,detected\n', problems: [] });
   });
 
   app.post<{ Params: { ref: string }; Body: Record<string, string> }>('/scenarios/:ref/fit', { config: { rateLimit: deps.computeRateLimit } }, async (req, reply) => {
-    const e = entryOr404(req.params.ref);
-    const body = (req.body ?? {}) as Record<string, unknown>;
-    const text = typeof body.records === 'string' ? body.records : '';
-    const form = { recordsText: text, startFrom: String(body.startFrom ?? ''), startTo: String(body.startTo ?? '') };
-    const problems: Problem[] = [];
-    let start: { fromKm: number; toKm: number } | undefined;
-    if (form.startFrom.trim() !== '' || form.startTo.trim() !== '') {
-      const a = Number(form.startFrom);
-      const b = Number(form.startTo);
-      if (!Number.isFinite(a) || !Number.isFinite(b) || !(b > a)) problems.push({ path: 'start', value: `${form.startFrom}–${form.startTo}`, message: 'must be two positions in km, the first smaller (or leave both empty for the infestation)' });
-      else start = { fromKm: a, toKm: b };
-    }
-    let table: SurveyTable | undefined;
-    try {
-      table = parseSurveyCsv(text);
-    } catch (err) {
-      if (!(err instanceof InputError)) throw err;
-      problems.push(...err.problems);
-    }
+    const e = entryOr404(deps, req.params.ref);
+    const { form, start, table, problems } = readFitForm((req.body ?? {}) as Record<string, unknown>);
     if (problems.length || !table) return page(reply, e.ref, e.scenario, { ...form, problems: problemItems(problems) }, 400);
     const r = await runFit({ scenario: e.scenario, table, start, wallSeconds: Math.min(FIT_WALL_SECONDS, deps.limits.wallSeconds) });
     if (!r.ok) return page(reply, e.ref, e.scenario, { ...form, problems: problemItems(r.problems) }, 400);
@@ -132,7 +149,7 @@ export default async function fitPages(app: FastifyInstance, deps: WebDeps) {
   });
 
   app.post<{ Params: { ref: string }; Body: Record<string, string> }>('/scenarios/:ref/fit/adopt', async (req, reply) => {
-    const e = entryOr404(req.params.ref);
+    const e = entryOr404(deps, req.params.ref);
     const text = typeof (req.body as Record<string, unknown>)?.scenario === 'string' ? (req.body as Record<string, string>).scenario : '';
     let scenario: Scenario;
     try {
@@ -141,10 +158,13 @@ export default async function fitPages(app: FastifyInstance, deps: WebDeps) {
       if (!(err instanceof InputError)) throw err;
       return page(reply, e.ref, e.scenario, { recordsText: '', problems: problemItems(err.problems) }, 400);
     }
-    const saved = store.createScenario({ ...scenario, title: scenario.title.endsWith('(fitted)') ? scenario.title : `${scenario.title.slice(0, 290)} (fitted)` });
+    const saved = deps.store.createScenario({ ...scenario, title: scenario.title.endsWith('(fitted)') ? scenario.title : `${scenario.title.slice(0, 290)} (fitted)` });
     return reply.redirect(`/scenarios/${saved.id}?saved=1`, 303);
   });
+}
 
+/** POST /api/fits: the same fit as JSON. */
+function apiRoute(app: FastifyInstance, deps: WebDeps, runFit: RunFit) {
   const api = app.withTypeProvider<ZodTypeProvider>();
   api.post(
     '/api/fits',
@@ -161,7 +181,7 @@ export default async function fitPages(app: FastifyInstance, deps: WebDeps) {
     },
     async (req) => {
       const b = req.body as z.infer<typeof FitRequest>;
-      const scenario = b.scenarioRef !== undefined ? entryOr404(b.scenarioRef).scenario : (b.scenario as Scenario);
+      const scenario = b.scenarioRef !== undefined ? entryOr404(deps, b.scenarioRef).scenario : (b.scenario as Scenario);
       const table = b.recordsCsv !== undefined ? parseSurveyCsv(b.recordsCsv) : parseSurveyRecords(b.records);
       const r = await runFit({ scenario, table, start: b.start, wallSeconds: Math.min(FIT_WALL_SECONDS, deps.limits.wallSeconds) });
       if (!r.ok) throw new InputError(r.code, r.problems);

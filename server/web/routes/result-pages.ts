@@ -11,7 +11,7 @@ import { seriesCsv, tableCsv } from '../view-models/csv.ts';
 import { optionKey } from '../../report/charts/index.ts';
 import { VERDICT_PLAIN } from '../../report/decision.ts';
 import { integer } from '../../report/format.ts';
-import type { Store, StoredResultSummary } from '../store.ts';
+import type { Store, StoredResult, StoredResultSummary } from '../store.ts';
 import type { WebDeps } from '../deps.ts';
 import { briefingNow } from '../briefings.ts';
 
@@ -43,13 +43,21 @@ export const download = (reply: FastifyReply, type: string, filename: string, bo
   reply.type(type).header('content-disposition', `attachment; filename="${filename}"`).send(body);
 
 export default async function resultPages(app: FastifyInstance, deps: WebDeps) {
-  const { store } = deps;
   const resultOr404 = (id: string) => {
-    const r = /^[0-9a-f-]{36}$/.test(id) ? store.getResult(id) : undefined;
+    const r = /^[0-9a-f-]{36}$/.test(id) ? deps.store.getResult(id) : undefined;
     if (!r) throw notFound('This result');
     return r;
   };
+  pageRoutes(app, deps, resultOr404);
+  downloadRoutes(app, deps, resultOr404);
+  deleteRoutes(app, deps, resultOr404);
+}
 
+type ResultOr404 = (id: string) => StoredResult;
+
+/** The pages: past results, one result, its options side by side, two results side by side. */
+function pageRoutes(app: FastifyInstance, deps: WebDeps, resultOr404: ResultOr404) {
+  const { store } = deps;
   app.get('/results', async (req, reply) => {
     const q = req.query as Record<string, string>;
     return reply.page('results', {
@@ -69,6 +77,23 @@ export default async function resultPages(app: FastifyInstance, deps: WebDeps) {
     return reply.page('compare', { r: comparePageView(stored), title: `Options side by side: ${stored.title}` });
   });
 
+  app.get<{ Querystring: { a?: string; b?: string; pick?: string | string[] } }>('/compare-results', async (req, reply) => {
+    const q = req.query;
+    const picks = [q.a, q.b, ...(Array.isArray(q.pick) ? q.pick : q.pick ? [q.pick] : [])].filter((x): x is string => typeof x === 'string' && x.length > 0);
+    if (!picks.length) return reply.redirect('/results', 303);
+    const a = resultOr404(picks[0]);
+    if (picks.length < 2) {
+      const others = listWithVerdicts(store, store.listResults({ limit: 200 }).filter((r) => r.id !== a.id)).map(resultListItem);
+      const first = resultListItem({ ...a, verdicts: [] });
+      return reply.page('compare-results', { title: 'Compare two results', first, others });
+    }
+    const b = resultOr404(picks[1]);
+    return reply.page('compare-results', { title: `Two results side by side`, c: compareResultsView(a, b), cautions: a.document.cautions });
+  });
+}
+
+/** A result's downloads: the document, the series and each table as CSV, the exact scenario, the briefing. */
+function downloadRoutes(app: FastifyInstance, deps: WebDeps, resultOr404: ResultOr404) {
   app.get<IdParams>('/results/:id/result.json', async (req, reply) => {
     const stored = resultOr404(req.params.id);
     return download(reply, 'application/json; charset=utf-8', `${stem(stored.id)}.json`, `${JSON.stringify(stored.document, null, 1)}\n`);
@@ -87,20 +112,6 @@ export default async function resultPages(app: FastifyInstance, deps: WebDeps) {
     return download(reply, 'text/csv; charset=utf-8', `${stem(stored.id)}-${name}.csv`, tableCsv(table));
   });
 
-  app.get<{ Querystring: { a?: string; b?: string; pick?: string | string[] } }>('/compare-results', async (req, reply) => {
-    const q = req.query;
-    const picks = [q.a, q.b, ...(Array.isArray(q.pick) ? q.pick : q.pick ? [q.pick] : [])].filter((x): x is string => typeof x === 'string' && x.length > 0);
-    if (!picks.length) return reply.redirect('/results', 303);
-    const a = resultOr404(picks[0]);
-    if (picks.length < 2) {
-      const others = listWithVerdicts(store, store.listResults({ limit: 200 }).filter((r) => r.id !== a.id)).map(resultListItem);
-      const first = resultListItem({ ...a, verdicts: [] });
-      return reply.page('compare-results', { title: 'Compare two results', first, others });
-    }
-    const b = resultOr404(picks[1]);
-    return reply.page('compare-results', { title: `Two results side by side`, c: compareResultsView(a, b), cautions: a.document.cautions });
-  });
-
   app.get<IdParams>('/results/:id/scenario.json', async (req, reply) => {
     const stored = resultOr404(req.params.id);
     return download(reply, 'application/json; charset=utf-8', `${stem(stored.id)}-scenario.json`, `${JSON.stringify(stored.scenario, null, 2)}\n`);
@@ -111,7 +122,11 @@ export default async function resultPages(app: FastifyInstance, deps: WebDeps) {
     const pdf = await briefingNow(deps.briefings, stored.id);
     return download(reply, 'application/pdf', briefingName(stored.id), pdf);
   });
+}
 
+/** Deleting a result: the confirmation page and the post. */
+function deleteRoutes(app: FastifyInstance, deps: WebDeps, resultOr404: ResultOr404) {
+  const { store } = deps;
   app.get<IdParams>('/results/:id/delete', async (req, reply) => {
     const stored = resultOr404(req.params.id);
     return reply.page('confirm-delete', {

@@ -101,98 +101,100 @@ export default async function scenarioPages(app: FastifyInstance, deps: WebDeps)
 
 /** The scenario form: new and edit, save and "save and run". */
 function formPages(app: FastifyInstance, deps: WebDeps, kit: PageKit): void {
-  const { store, jobs, limits } = deps;
   const { entryOr404 } = kit;
-  interface FormTarget {
-    entry?: CatalogueEntry;
-  }
-  const formUrls = (t: FormTarget) => {
-    const base = t.entry ? `/scenarios/${encodeURIComponent(t.entry.ref)}/edit` : '/scenarios/new';
-    return { action: base, runAction: `${base}/run`, cancel: t.entry ? `/scenarios/${encodeURIComponent(t.entry.ref)}` : '/scenarios' };
-  };
-  const renderForm = (reply: FastifyReply, t: FormTarget, state: FormState, problems: Problem[], status: number, extra: { notice?: string; focus?: string } = {}) => {
-    const view = formView(state, problems, { maxHorizonYears: limits.maxHorizonYears });
-    return reply.page(
-      'scenario-form',
-      {
-        title: problems.length ? `Problems to correct — ${t.entry?.title ?? 'New scenario'}` : t.entry ? `Edit: ${t.entry.title}` : 'New scenario',
-        heading: t.entry ? `Edit scenario` : 'New scenario',
-        scenarioTitle: t.entry?.title ?? '',
-        readOnly: t.entry?.readOnly ?? false,
-        urls: formUrls(t),
-        notice: extra.notice ?? '',
-        focusId: extra.focus ? inputId(extra.focus) : '',
-        form: view,
-        scripts: ['/assets/scenario-form.js'],
-      },
-      status,
-    );
-  };
-
-  /** Handles a form post: a row button, a check, a save, or save-and-run. */
-  const handleForm = async (req: FastifyRequest, reply: FastifyReply, t: FormTarget, run: boolean) => {
-    const body = (req.body ?? {}) as Record<string, unknown>;
-    const state = formStateFromBody(body);
-    const actionText = typeof body._action === 'string' ? body._action : Array.isArray(body._action) ? String(body._action.at(-1)) : '';
-    const rowAction = parseRowAction(actionText);
-    if (rowAction && !run) {
-      const next = applyRowAction(state, rowAction);
-      const group = ROW_GROUPS[rowAction.group];
-      const rows = rowIndices(next, group.prefix);
-      const at = rowAction.kind === 'add' ? rows.length - 1 : rowAction.kind === 'up' ? rowAction.index - 1 : rowAction.kind === 'down' ? rowAction.index + 1 : -1;
-      const focus = at >= 0 && at < rows.length ? `${group.prefix}[${at}].${group.columns[rowAction.group === 'segments' ? 2 : 0].path}` : undefined;
-      return renderForm(reply, t, next, [], 200, { focus });
-    }
-    const { input, problems: formProblems, notes } = formToScenario(state);
-    let scenario: Scenario | undefined;
-    const problems = [...formProblems];
-    try {
-      scenario = parseScenario(input);
-    } catch (e) {
-      if (!(e instanceof ScenarioError)) throw e;
-      // A number the form refused (ambiguous "1,200", a foreign unit) is reported once, in the form's words.
-      const refused = new Set(formProblems.map((p) => p.path.replace(/~.*$/, '')));
-      problems.push(...e.problems.filter((p) => !refused.has(p.path) && ![...refused].some((r) => p.path.startsWith(`${r}.`))));
-    }
-    if (problems.length || !scenario) return renderForm(reply, t, state, problems, 400);
-    // Check answers what Save and run would: the schema and this server's limits (one limit everywhere).
-    if (run || actionText === 'check') {
-      try {
-        checkLimits(scenario, limits);
-      } catch (e) {
-        if (e instanceof InputError) return renderForm(reply, t, state, e.problems, 400);
-        throw e;
-      }
-      // A nearly full disk is refused before the run, not after it (507 naming DATA_DIR).
-      store.checkSpace();
-    }
-    if (actionText === 'check' && !run) return renderForm(reply, t, state, [], 200, { notice: `No problems found. The scenario has not been saved yet.${readBackText(notes)}` });
-    const id = t.entry && !t.entry.readOnly ? savedId(t.entry.ref) : undefined;
-    const ref = id !== undefined && store.updateScenario(id, scenario) ? String(id) : String(store.createScenario(scenario).id);
-    if (run) {
-      const job = jobs.submit({ scenario, scenarioRef: ref });
-      return reply.redirect(`/runs/${job.id}`, 303);
-    }
-    // Numbers read other than as typed ("1 200 m" as 1200) are shown back on the scenario page.
-    const read = notes.length ? `&read=${encodeURIComponent([...new Set(notes.map((n) => n.path))].slice(0, MAX_READ_BACK).join(' '))}` : '';
-    return reply.redirect(`/scenarios/${ref}?saved=1${read}`, 303);
-  };
-
-  app.get('/scenarios/new', async (_req, reply) => renderForm(reply, {}, scenarioToForm(newScenarioTemplate()), [], 200));
-  app.post('/scenarios/new', { config: deps.formPost }, async (req, reply) => handleForm(req, reply, {}, false));
-  app.post('/scenarios/new/run', { config: { rateLimit: deps.computeRateLimit } }, async (req, reply) => handleForm(req, reply, {}, true));
+  app.get('/scenarios/new', async (_req, reply) => renderForm(deps, reply, {}, scenarioToForm(newScenarioTemplate()), [], 200));
+  app.post('/scenarios/new', { config: deps.formPost }, async (req, reply) => handleForm(deps, req, reply, {}, false));
+  app.post('/scenarios/new/run', { config: { rateLimit: deps.computeRateLimit } }, async (req, reply) => handleForm(deps, req, reply, {}, true));
 
   app.get<RefParams>('/scenarios/:ref/edit', async (req, reply) => {
     const entry = entryOr404(req.params.ref);
-    return renderForm(reply, { entry }, scenarioToForm(entry.scenario), [], 200, {
+    return renderForm(deps, reply, { entry }, scenarioToForm(entry.scenario), [], 200, {
       notice: entry.readOnly ? 'This is a demo scenario: saving creates your own copy and leaves the demo unchanged.' : '',
     });
   });
-  app.post<RefParams>('/scenarios/:ref/edit', { config: deps.formPost }, async (req, reply) => handleForm(req, reply, { entry: entryOr404(req.params.ref) }, false));
+  app.post<RefParams>('/scenarios/:ref/edit', { config: deps.formPost }, async (req, reply) => handleForm(deps, req, reply, { entry: entryOr404(req.params.ref) }, false));
   app.post<RefParams>('/scenarios/:ref/edit/run', { config: { rateLimit: deps.computeRateLimit } }, async (req, reply) =>
-    handleForm(req, reply, { entry: entryOr404(req.params.ref) }, true),
+    handleForm(deps, req, reply, { entry: entryOr404(req.params.ref) }, true),
   );
+}
 
+/** The scenario a form edits (none for a new one). */
+interface FormTarget {
+  entry?: CatalogueEntry;
+}
+
+function formUrls(t: FormTarget) {
+  const base = t.entry ? `/scenarios/${encodeURIComponent(t.entry.ref)}/edit` : '/scenarios/new';
+  return { action: base, runAction: `${base}/run`, cancel: t.entry ? `/scenarios/${encodeURIComponent(t.entry.ref)}` : '/scenarios' };
+}
+
+function renderForm(deps: WebDeps, reply: FastifyReply, t: FormTarget, state: FormState, problems: Problem[], status: number, extra: { notice?: string; focus?: string } = {}) {
+  const view = formView(state, problems, { maxHorizonYears: deps.limits.maxHorizonYears });
+  return reply.page(
+    'scenario-form',
+    {
+      title: problems.length ? `Problems to correct — ${t.entry?.title ?? 'New scenario'}` : t.entry ? `Edit: ${t.entry.title}` : 'New scenario',
+      heading: t.entry ? `Edit scenario` : 'New scenario',
+      scenarioTitle: t.entry?.title ?? '',
+      readOnly: t.entry?.readOnly ?? false,
+      urls: formUrls(t),
+      notice: extra.notice ?? '',
+      focusId: extra.focus ? inputId(extra.focus) : '',
+      form: view,
+      scripts: ['/assets/scenario-form.js'],
+    },
+    status,
+  );
+}
+
+/** Handles a form post: a row button, a check, a save, or save-and-run. */
+async function handleForm(deps: WebDeps, req: FastifyRequest, reply: FastifyReply, t: FormTarget, run: boolean) {
+  const { store, jobs, limits } = deps;
+  const body = (req.body ?? {}) as Record<string, unknown>;
+  const state = formStateFromBody(body);
+  const actionText = typeof body._action === 'string' ? body._action : Array.isArray(body._action) ? String(body._action.at(-1)) : '';
+  const rowAction = parseRowAction(actionText);
+  if (rowAction && !run) {
+    const next = applyRowAction(state, rowAction);
+    const group = ROW_GROUPS[rowAction.group];
+    const rows = rowIndices(next, group.prefix);
+    const at = rowAction.kind === 'add' ? rows.length - 1 : rowAction.kind === 'up' ? rowAction.index - 1 : rowAction.kind === 'down' ? rowAction.index + 1 : -1;
+    const focus = at >= 0 && at < rows.length ? `${group.prefix}[${at}].${group.columns[rowAction.group === 'segments' ? 2 : 0].path}` : undefined;
+    return renderForm(deps, reply, t, next, [], 200, { focus });
+  }
+  const { input, problems: formProblems, notes } = formToScenario(state);
+  let scenario: Scenario | undefined;
+  const problems = [...formProblems];
+  try {
+    scenario = parseScenario(input);
+  } catch (e) {
+    if (!(e instanceof ScenarioError)) throw e;
+    // A number the form refused (ambiguous "1,200", a foreign unit) is reported once, in the form's words.
+    const refused = new Set(formProblems.map((p) => p.path.replace(/~.*$/, '')));
+    problems.push(...e.problems.filter((p) => !refused.has(p.path) && ![...refused].some((r) => p.path.startsWith(`${r}.`))));
+  }
+  if (problems.length || !scenario) return renderForm(deps, reply, t, state, problems, 400);
+  // Check answers what Save and run would: the schema and this server's limits (one limit everywhere).
+  if (run || actionText === 'check') {
+    try {
+      checkLimits(scenario, limits);
+    } catch (e) {
+      if (e instanceof InputError) return renderForm(deps, reply, t, state, e.problems, 400);
+      throw e;
+    }
+    // A nearly full disk is refused before the run, not after it (507 naming DATA_DIR).
+    store.checkSpace();
+  }
+  if (actionText === 'check' && !run) return renderForm(deps, reply, t, state, [], 200, { notice: `No problems found. The scenario has not been saved yet.${readBackText(notes)}` });
+  const id = t.entry && !t.entry.readOnly ? savedId(t.entry.ref) : undefined;
+  const ref = id !== undefined && store.updateScenario(id, scenario) ? String(id) : String(store.createScenario(scenario).id);
+  if (run) {
+    const job = jobs.submit({ scenario, scenarioRef: ref });
+    return reply.redirect(`/runs/${job.id}`, 303);
+  }
+  // Numbers read other than as typed ("1 200 m" as 1200) are shown back on the scenario page.
+  const read = notes.length ? `&read=${encodeURIComponent([...new Set(notes.map((n) => n.path))].slice(0, MAX_READ_BACK).join(' '))}` : '';
+  return reply.redirect(`/scenarios/${ref}?saved=1${read}`, 303);
 }
 
 /** A scenario's overview, its run button and its JSON download. */

@@ -21,6 +21,50 @@ export function quantityText(q: Quantity | undefined, spec: FieldSpec): string {
 export function scenarioView(entry: CatalogueEntry) {
   const s: Scenario = entry.scenario;
   const p = s.pest;
+  const ref = encodeURIComponent(entry.ref);
+  return {
+    ref: entry.ref,
+    kind: entry.kind,
+    readOnly: entry.readOnly,
+    title: s.title,
+    description: s.description,
+    region: s.region ?? '',
+    pestName: p.name,
+    illustrative: p.illustrative,
+    notes: p.notes ?? '',
+    pest: pestRows(s),
+    segments: segmentRows(s),
+    strip: stripFromScenario(s),
+    infestation: `km ${km(s.infestation.fromKm)}–${km(s.infestation.toKm)} at ${num(s.infestation.density)} of capacity`,
+    sites: s.sites.map((x) => ({ name: x.name, at: `km ${km(x.atKm)}` })),
+    barrier: barrierView(s),
+    ensemble: s.uncertainty
+      ? `${integer(s.uncertainty.draws)} draws, seed ${s.uncertainty.seed}, target standard error ${num(s.uncertainty.targetStandardError)}` +
+        `${s.uncertainty.criticalWidth ? ', critical width in every draw' : ''}`
+      : '',
+    transport: transportText(s),
+    mosaics: (s.mosaics ?? []).map((m) => ({
+      name: m.name,
+      pattern: `${integer(m.forestM)} m forest / ${integer(m.gapM)} m ${label(COVER_CHOICES, m.cover).toLowerCase()}${m.stocking !== undefined ? `, forest stocking ${num(m.stocking)}` : ''}`,
+    })),
+    horizon: `${num(s.horizonYears)} yr`,
+    detection: `${num(s.detectionLevel)} of capacity`,
+    uncertain: JSON.stringify(s).includes('"dist"'),
+    links: {
+      page: `/scenarios/${ref}`,
+      edit: `/scenarios/${ref}/edit`,
+      json: `/scenarios/${ref}/json`,
+      download: `/scenarios/${ref}/scenario.json`,
+      run: `/scenarios/${ref}/run`,
+      duplicate: `/scenarios/${ref}/duplicate`,
+      remove: `/scenarios/${ref}/delete`,
+    },
+  };
+}
+
+/** The pest's parameters that are set, in the order of the form, with their units and sources. */
+function pestRows(s: Scenario) {
+  const p = s.pest;
   const g = p.growth;
   const pest: { label: string; value: string; source: string }[] = [];
   const add = (spec: FieldSpec, q: Quantity | undefined) => {
@@ -44,8 +88,13 @@ export function scenarioView(entry: CatalogueEntry) {
     pest.push({ label: 'Mate finding', value: label(MATING_CHOICES, g.mating), source: '' });
     add(FIELDS.mateScale, g.mateScale);
   }
+  return pest;
+}
+
+/** The transect's segments with the km span each covers. */
+function segmentRows(s: Scenario) {
   let at = s.transect.originKm;
-  const segments = s.transect.segments.map((seg) => {
+  return s.transect.segments.map((seg) => {
     const from = at;
     at += seg.lengthKm;
     return {
@@ -57,62 +106,31 @@ export function scenarioView(entry: CatalogueEntry) {
       stems: seg.habitat === 'host-forest' ? quantityText(seg.stemsPerHa, FIELDS.stemsPerHa) : '—',
     };
   });
-  const ref = encodeURIComponent(entry.ref);
+}
+
+function barrierView(s: Scenario) {
+  if (!s.barrier) return null;
   return {
-    ref: entry.ref,
-    kind: entry.kind,
-    readOnly: entry.readOnly,
-    title: s.title,
-    description: s.description,
-    region: s.region ?? '',
-    pestName: p.name,
-    illustrative: p.illustrative,
-    notes: p.notes ?? '',
-    pest,
-    segments,
-    strip: stripFromScenario(s),
-    infestation: `km ${km(s.infestation.fromKm)}–${km(s.infestation.toKm)} at ${num(s.infestation.density)} of capacity`,
-    sites: s.sites.map((x) => ({ name: x.name, at: `km ${km(x.atKm)}` })),
-    barrier: s.barrier
-      ? {
-          length: `${km(s.barrier.lengthKm)} km`,
-          cost: s.barrier.costPerStem !== undefined ? `${num(s.barrier.costPerStem)} ${s.barrier.costUnit ?? ''} per tree`.trim() : 'not given',
-          options: s.barrier.options.map((o) => ({
-            name: o.name,
-            from: `km ${km(o.fromKm)}`,
-            width: `${integer(o.widthM)} m`,
-            cover: label(COVER_CHOICES, o.cover),
-          })),
-        }
-      : null,
-    ensemble: s.uncertainty
-      ? `${integer(s.uncertainty.draws)} draws, seed ${s.uncertainty.seed}, target standard error ${num(s.uncertainty.targetStandardError)}` +
-        `${s.uncertainty.criticalWidth ? ', critical width in every draw' : ''}`
-      : '',
-    transport: s.transport
-      ? `${quantityText(s.transport.ratePerKm2Year, FIELDS.transportRate)}; distances ` +
-        (s.transport.kernel.shape === 'exponential'
-          ? `exponential, mean ${quantityText(s.transport.kernel.meanKm, FIELDS.transportMeanKm)}`
-          : `from a table of ${s.transport.kernel.points.length} rows`) +
-        `; establishment probability ${quantityText(s.transport.establishmentProbability, FIELDS.establishmentProbability)}`
-      : '',
-    mosaics: (s.mosaics ?? []).map((m) => ({
-      name: m.name,
-      pattern: `${integer(m.forestM)} m forest / ${integer(m.gapM)} m ${label(COVER_CHOICES, m.cover).toLowerCase()}${m.stocking !== undefined ? `, forest stocking ${num(m.stocking)}` : ''}`,
+    length: `${km(s.barrier.lengthKm)} km`,
+    cost: s.barrier.costPerStem !== undefined ? `${num(s.barrier.costPerStem)} ${s.barrier.costUnit ?? ''} per tree`.trim() : 'not given',
+    options: s.barrier.options.map((o) => ({
+      name: o.name,
+      from: `km ${km(o.fromKm)}`,
+      width: `${integer(o.widthM)} m`,
+      cover: label(COVER_CHOICES, o.cover),
     })),
-    horizon: `${num(s.horizonYears)} yr`,
-    detection: `${num(s.detectionLevel)} of capacity`,
-    uncertain: JSON.stringify(s).includes('"dist"'),
-    links: {
-      page: `/scenarios/${ref}`,
-      edit: `/scenarios/${ref}/edit`,
-      json: `/scenarios/${ref}/json`,
-      download: `/scenarios/${ref}/scenario.json`,
-      run: `/scenarios/${ref}/run`,
-      duplicate: `/scenarios/${ref}/duplicate`,
-      remove: `/scenarios/${ref}/delete`,
-    },
   };
+}
+
+function transportText(s: Scenario): string {
+  if (!s.transport) return '';
+  return (
+    `${quantityText(s.transport.ratePerKm2Year, FIELDS.transportRate)}; distances ` +
+    (s.transport.kernel.shape === 'exponential'
+      ? `exponential, mean ${quantityText(s.transport.kernel.meanKm, FIELDS.transportMeanKm)}`
+      : `from a table of ${s.transport.kernel.points.length} rows`) +
+    `; establishment probability ${quantityText(s.transport.establishmentProbability, FIELDS.establishmentProbability)}`
+  );
 }
 
 export function scenarioListItem(s: CatalogueSummary) {
