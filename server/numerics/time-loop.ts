@@ -8,7 +8,7 @@ import type { ReactionCounters, ReactionStepper } from './reaction.ts';
 import { fixedStepController, type StepController } from './controller.ts';
 import { splitStepper, type FieldStepper } from './stepper.ts';
 import type { FieldState, Observer } from './observers.ts';
-import type { AdaptiveCounters } from './steppers/adaptive-loop.ts';
+import type { AdaptiveCounters } from './steppers/stiff-system.ts';
 import { checkFiniteState } from './finite.ts';
 
 export type { FieldStepper, StepReport } from './stepper.ts';

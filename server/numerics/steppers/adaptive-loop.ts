@@ -6,7 +6,9 @@ import type { DiffusionOperator } from '../diffusion.ts';
 import type { Observer, SolverResult } from '../time-loop.ts';
 import { makeNdfStepper, type NdfStepper } from './ndf.ts';
 import { makeReactionDiffusionSystem, type ReactionDiffusionCoefficients } from './reaction-diffusion-system.ts';
-import type { StepperCounters } from './stiff-system.ts';
+import type { AdaptiveCounters } from './stiff-system.ts';
+
+export type { AdaptiveCounters } from './stiff-system.ts';
 
 export interface ActiveWindowPolicy {
   /**
@@ -46,19 +48,6 @@ export interface AdaptiveLoopOptions {
   /** Polls cancel / progress every this many accepted steps (default 8). */
   pollEvery?: number;
   forceThomas?: boolean;
-}
-
-/** Counters of an adaptive run (reported in `numerics` of a result). */
-export interface AdaptiveCounters extends StepperCounters {
-  lockstepFactorisations: number;
-  thomasFactorisations: number;
-  /** Observer calls (accepted steps and output times). */
-  observerCalls: number;
-  /** Largest active window [cells] and the grid size. */
-  largestWindowCells: number;
-  nCells: number;
-  rtol: number;
-  atol: number;
 }
 
 /** The time loop's solver report, with the adaptive counters; status 'failed' when the step size collapsed. */

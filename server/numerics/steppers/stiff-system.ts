@@ -43,3 +43,20 @@ export interface ActiveWindow {
   lo: number;
   hi: number;
 }
+
+/**
+ * Counters of an adaptive run (reported in `numerics` of a result): the stepper's, the linear solver's by
+ * path, and the active window's. Here, not in adaptive-loop.ts, so that time-loop.ts can name them without an
+ * import circle.
+ */
+export interface AdaptiveCounters extends StepperCounters {
+  lockstepFactorisations: number;
+  thomasFactorisations: number;
+  /** Observer calls (accepted steps and output times). */
+  observerCalls: number;
+  /** Largest active window [cells] and the grid size. */
+  largestWindowCells: number;
+  nCells: number;
+  rtol: number;
+  atol: number;
+}
