@@ -237,24 +237,20 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
     return f;
   }
 
-  /** out = Px⁻¹ rhs on every row of the window, with factors from rowFactorOf. `out` may alias `rhs`. */
-  function rowApply(f: LineFactors, rhs: Float64Array, out: Float64Array): void {
-    const { r0, r1, c0, c1 } = w!;
+  /** x = Px⁻¹ x on row r of the window, in place, with factors from rowFactorOf. */
+  function solveRow(f: LineFactors, x: Float64Array, r: number): void {
     const { cp, ip, sub } = f;
-    for (let r = r0; r <= r1; r++) {
-      const first = r * nx + c0;
-      const last = r * nx + c1;
-      let y = rhs[first] * ip[first];
-      out[first] = y;
-      for (let k = first + 1; k <= last; k++) {
-        y = (rhs[k] + sub[k] * y) * ip[k];
-        out[k] = y;
-      }
-      let x = out[last];
-      for (let k = last - 1; k >= first; k--) {
-        x = out[k] - cp[k] * x;
-        out[k] = x;
-      }
+    const first = r * nx + w!.c0;
+    const last = r * nx + w!.c1;
+    let y = x[first] * ip[first];
+    x[first] = y;
+    for (let k = first + 1; k <= last; k++) {
+      y = (x[k] + sub[k] * y) * ip[k];
+      x[k] = y;
+    }
+    for (let k = last - 1; k >= first; k--) {
+      y = x[k] - cp[k] * y;
+      x[k] = y;
     }
   }
 
@@ -289,38 +285,53 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
     return f;
   }
 
-  /**
-   * Py⁻¹ rhs on every column of the window (factors from colFactorOf), written to `out`; when `add` is
-   * given, `sum = add + Py⁻¹ rhs` is written too (fused into the back substitution). `out` may alias `rhs`.
-   */
-  function colApply(f: LineFactors, rhs: Float64Array, out: Float64Array, add?: Float64Array, sum?: Float64Array): void {
+  /** Forward sweep of Py⁻¹ on row r of the window, in place (rows above it swept already). */
+  function colForwardRow(f: LineFactors, x: Float64Array, r: number): void {
+    const { ip, sub } = f;
+    const { r0, c0, c1 } = w!;
+    const first = r * nx + c0;
+    const last = r * nx + c1;
+    if (r === r0) for (let k = first; k <= last; k++) x[k] = x[k] * ip[k];
+    else for (let k = first; k <= last; k++) x[k] = (x[k] + sub[k] * x[k - nx]) * ip[k];
+  }
+
+  /** Back substitution of Py⁻¹ over the window, in place; when `add` is given, `sum = add + x` as well. */
+  function colBack(f: LineFactors, x: Float64Array, add?: Float64Array, sum?: Float64Array): void {
     const { r0, r1, c0, c1 } = w!;
-    const { cp, ip, sub } = f;
-    for (let k = r0 * nx + c0; k <= r0 * nx + c1; k++) out[k] = rhs[k] * ip[k];
-    for (let r = r0 + 1; r <= r1; r++) {
-      const base = r * nx;
-      for (let k = base + c0; k <= base + c1; k++) out[k] = (rhs[k] + sub[k] * out[k - nx]) * ip[k];
-    }
+    const { cp } = f;
     if (add && sum) {
       const lastRow = r1 * nx;
-      for (let k = lastRow + c0; k <= lastRow + c1; k++) sum[k] = add[k] + out[k];
+      for (let k = lastRow + c0; k <= lastRow + c1; k++) sum[k] = add[k] + x[k];
     }
     for (let r = r1 - 1; r >= r0; r--) {
       const base = r * nx;
       if (add && sum) {
         for (let k = base + c0; k <= base + c1; k++) {
-          const x = out[k] - cp[k] * out[k + nx];
-          out[k] = x;
-          sum[k] = add[k] + x;
+          const y = x[k] - cp[k] * x[k + nx];
+          x[k] = y;
+          sum[k] = add[k] + y;
         }
       } else {
-        for (let k = base + c0; k <= base + c1; k++) out[k] -= cp[k] * out[k + nx];
+        for (let k = base + c0; k <= base + c1; k++) x[k] -= cp[k] * x[k + nx];
       }
     }
   }
 
-  /** out = alpha (L u + rate u) + beta u + gamma v on the window (zero-flux at its sides); out ≠ u, v. */
-  function combine(u: Float64Array, alpha: number, beta: number, gamma: number, v: Float64Array, out: Float64Array): void {
+  /** x = (Px Py)⁻¹ x over the window, in place, row by row; `sum = add + x` as in colBack. */
+  function lineSolve(rows: LineFactors, cols: LineFactors, x: Float64Array, add?: Float64Array, sum?: Float64Array): void {
+    for (let r = w!.r0; r <= w!.r1; r++) {
+      solveRow(rows, x, r);
+      colForwardRow(cols, x, r);
+    }
+    colBack(cols, x, add, sum);
+  }
+
+  /**
+   * out = (Px Py)⁻¹ [alpha (L u + rate u) + beta u + gamma v] on the window (zero-flux at its sides), out ≠ u, v,
+   * and `sum = add + out` when given. Each row's right-hand side is solved along the row and swept forward
+   * along the columns while it is in cache (the same operations, in the same order, as one pass each).
+   */
+  function combineSolve(u: Float64Array, alpha: number, beta: number, gamma: number, v: Float64Array, rows: LineFactors, cols: LineFactors, out: Float64Array, add?: Float64Array, sum?: Float64Array): void {
     const { r0, r1, c0, c1 } = w!;
     for (let r = r0; r <= r1; r++) {
       const base = r * nx;
@@ -341,7 +352,10 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
         out[k] = alpha * (lu + rate[k] * u[k]) + beta * u[k] + gamma * v[k];
         fw = fe;
       }
+      solveRow(rows, out, r);
+      colForwardRow(cols, out, r);
     }
+    colBack(cols, out, add, sum);
   }
 
   /**
@@ -379,9 +393,7 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       // Mid-step predictor ũ = u⁰ + ((I − dt/2 Lx)(I − dt/2 Ly))⁻¹ dt/2 (L + G⁰) u⁰: O(dt²) locally, the
       // transect's predictor (I − dt/2 L)ũ = (1 + dt/2 g⁰)u⁰ where the state is uniform across, and exact at
       // steady states (so that they stay fixed points of the whole step); negative values are read as 0.
-      combine(u0, halfDt, 0, 0, u0, work);
-      rowApply(rowFactorOf(predictorRows, halfDt, zeros, 'zeros'), work, work);
-      colApply(colFactorOf(predictorCols, halfDt), work, work, u0, mid);
+      combineSolve(u0, halfDt, 0, 0, u0, rowFactorOf(predictorRows, halfDt, zeros, 'zeros'), colFactorOf(predictorCols, halfDt), work, u0, mid);
     }
     let maxPositive = 0;
     const quarter = 0.25 * c * dt;
@@ -405,15 +417,11 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
     if (ok) {
       const tau = theta * dt;
       // Stage 1 (trapezoidal rule over γ dt): x = u⁰ + (Px Py)⁻¹ 2τ A u⁰.
-      combine(u0, 2 * tau, 0, 0, u0, work);
       const rows = rowFactorOf(stageRows, tau, rate, ++stageKey);
       const cols = colFactorOf(stageCols, tau);
-      rowApply(rows, work, work);
-      colApply(cols, work, work, u0, u);
+      combineSolve(u0, 2 * tau, 0, 0, u0, rows, cols, work, u0, u);
       // Stage 2 (BDF2): y = x + (Px Py)⁻¹ (c* x − c_old u⁰ − M x), M x = x − τ A x.
-      combine(u, tau, cStar - 1, -cOld, u0, work);
-      rowApply(rows, work, work);
-      colApply(cols, work, work, u, u);
+      combineSolve(u, tau, cStar - 1, -cOld, u0, rows, cols, work, u, u);
       let min = 0;
       let max = 0;
       for (let r = r0; r <= r1; r++) {
@@ -433,8 +441,7 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
         for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) u[k] = (1 + dt * Math.max(rate[k], 0)) * u0[k];
       }
       for (let r = r0; r <= r1; r++) for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) sinks[k] = rate[k] < 0 ? rate[k] : 0;
-      rowApply(rowFactorOf(stageRows, dt, sinks, null), u, u);
-      colApply(colFactorOf(stageCols, dt), u, u);
+      lineSolve(rowFactorOf(stageRows, dt, sinks, null), colFactorOf(stageCols, dt), u);
       for (let r = r0; r <= r1; r++) for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) if (u[k] < 0) u[k] = 0;
       counters.fallbackSteps++;
     }
