@@ -15,17 +15,27 @@ import { registerTask } from '../../jobs/tasks.ts';
 import type { TaskRunner } from '../../jobs/task-runner.ts';
 import { clipToField, fieldOfPath, probability } from '../ensemble/ensemble.ts';
 import { evaluateLandscape, cellFactor } from './evaluate.ts';
-import { automaticStepYears, CLASS_HABITAT, coarsenLandscape, type PointPest } from './problem.ts';
+import { automaticStepYears, CLASS_HABITAT, coarsenLandscape, MAP_STEP_FACTOR, type PointPest } from './problem.ts';
 import type { LandscapeEnsembleResult, LandscapeSettings, WayPast } from './result.ts';
 
 export const LANDSCAPE_DRAWS_TASK = 'landscape-draws';
+
+/**
+ * Default step of the draws as a multiple of the transect's automatic rule: twice a map run's step
+ * (MAP_STEP_FACTOR, measured on 100 m cells), because the draws' default cell (200 m) is twice as large and the
+ * scheme is second order in space and time, so both errors scale together. On 200 m cells it moves site
+ * arrivals by under half the time the front takes to cross a cell (tests/analysis/landscape/step-rule.test.ts;
+ * on the bench map ≤ 0.07 yr against a four-times-smaller step, where the 200 m cell itself moves them by
+ * ~0.1 yr against 100 m cells).
+ */
+export const DRAW_STEP_FACTOR = 2 * MAP_STEP_FACTOR;
 
 export interface LandscapeEnsembleSettings {
   draws: number;
   seed: number;
   /** Cell of the draws [m] (the map is averaged onto it); 200 m when absent. */
   cellM?: number;
-  /** Draws take time steps this many times the transect's automatic step (default 3: 1.5 × a map run's step). */
+  /** Draws take time steps this many times the transect's automatic step (default DRAW_STEP_FACTOR). */
   stepFactor?: number;
   /** Draws per task (default: spread over the runner's concurrency, at most 25). */
   chunk?: number;
@@ -110,7 +120,7 @@ export async function runLandscapeEnsemble(
       draws,
       indices: Array.from({ length: Math.min(chunk, draws - a) }, (_, j) => a + j),
       settings: { horizonYears: settings.horizonYears, detectionLevel: settings.detectionLevel, mapEdges: settings.mapEdges, infestedDensity: settings.infestedDensity },
-      stepFactor: e.stepFactor ?? 3,
+      stepFactor: e.stepFactor ?? DRAW_STEP_FACTOR,
     });
   }
   let done = 0;
@@ -131,7 +141,7 @@ export async function runLandscapeEnsemble(
     completed: n,
     seed: e.seed,
     cellM: coarse.cellM,
-    stepFactor: e.stepFactor ?? 3,
+    stepFactor: e.stepFactor ?? DRAW_STEP_FACTOR,
     parameters: params.map((p) => ({ path: formatPath(p.path), distribution: p.distribution, centralValue: centralValue(p.distribution) })),
     baseline: { sites: reachedBy(0) },
     options: coarse.bands.map((b, j) => {

@@ -130,7 +130,6 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
   const h0 = new Float64Array(n);
   const rate = new Float64Array(n);
   const mid = new Float64Array(n);
-  const hMid = new Float64Array(n);
   const work = new Float64Array(n);
   const lethalXY = new Float64Array(n);
   // Per-capita rate of cells without host: minus the mortality inside the mesh, 0 outside it.
@@ -403,10 +402,8 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
         let g: number;
         if (hostAtCells[k]) {
           const hm = c > 0 ? h0[k] * expNeg(quarter * (u0[k] + x)) : h0[k];
-          hMid[k] = hm;
           g = perCapita(x > 0 ? x : 0, hm > 0 ? hm : 0);
         } else {
-          hMid[k] = h0[k];
           g = sinkAtCells[k];
         }
         rate[k] = g;

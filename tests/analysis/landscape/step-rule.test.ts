@@ -7,7 +7,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { makeLandscape } from '../../helpers/landscape.ts';
-import { automaticStepYears, landscapeProblem, MAP_STEP_FACTOR, type PointPest } from '../../../server/analysis/landscape/problem.ts';
+import { automaticStepYears, coarsenLandscape, landscapeProblem, MAP_STEP_FACTOR, type PointPest } from '../../../server/analysis/landscape/problem.ts';
+import { DRAW_STEP_FACTOR } from '../../../server/analysis/landscape/ensemble.ts';
 import { runLandscapeProblem } from '../../../server/analysis/landscape/run.ts';
 
 const pest = { name: 'test borer (invented)', illustrative: true, diffusionHost: 0.3, diffusionOpen: 1.2, edgePreferenceOpen: 0.8, growth: { form: 'logistic', rate: 0.8 }, hostKillRate: 0.3, mortalityOpen: 1.5 } as PointPest;
@@ -49,5 +50,26 @@ describe('map time step: cost in accuracy', () => {
       expect(Math.abs(x - y)).toBeLessThan(0.03);
     }
     expect(worst).toBeLessThan(0.05);
+  });
+});
+
+describe('ensemble draws: cost in accuracy of their longer step', () => {
+  it(`on 200 m cells, a step ${DRAW_STEP_FACTOR}× the transect rule moves site arrivals by < 0.1 yr (half the time the front takes to cross a cell) against a four-times-smaller step`, () => {
+    // The draws' cell is twice the map's 100 m, so their step is twice the map run's: second order in both
+    // space and time, the two errors scale together.
+    const coarse = coarsenLandscape(L, 2);
+    const opts = { mapEdges: 'reflecting' as const, infestedDensity: 1, horizonYears: 14, band: 0 };
+    const stepYears = DRAW_STEP_FACTOR * automaticStepYears(pest, ['host-forest', 'clearing']);
+    const run = { horizonYears: 14, detectionLevel: 0.01 };
+    const a = runLandscapeProblem(landscapeProblem(coarse, pest, { ...opts, stepYears }), pest, run);
+    const b = runLandscapeProblem(landscapeProblem(coarse, pest, { ...opts, stepYears: stepYears / 4 }), pest, run);
+    const site = (r: typeof a, cells: Int32Array) => Math.min(...Array.from(cells, (k) => (r.detected[k] >= 0 ? r.detected[k] : Infinity)));
+    const sites = coarse.sites.map((s) => [site(a, s.cells), site(b, s.cells)]);
+    const crossCellYears = coarse.cellM / 1000 / (2 * Math.sqrt(0.8 * 0.3));
+    console.log(`draw step ${stepYears.toFixed(3)} yr vs ${(stepYears / 4).toFixed(3)} yr on ${coarse.cellM} m cells: sites ${sites.map(([x, y]) => `${x.toFixed(3)}/${y.toFixed(3)}`).join(', ')}; a cell is crossed in ${crossCellYears.toFixed(2)} yr`);
+    for (const [x, y] of sites) {
+      expect(Number.isFinite(x)).toBe(true);
+      expect(Math.abs(x - y)).toBeLessThan(0.5 * crossCellYears);
+    }
   });
 });
