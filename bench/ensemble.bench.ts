@@ -6,6 +6,7 @@
 import { parseScenario } from '../server/model/scenario.ts';
 import { runEnsembleParallel, defaultThreads } from '../server/jobs/parallel.ts';
 import { ensembleProblem } from './problems.ts';
+import { TRANSECT_DRAW_FACTOR } from '../server/analysis/ensemble/plan.ts';
 
 const draws = Number(process.env.BENCH_DRAWS ?? 1000);
 const factor = process.env.BENCH_FACTOR ? Number(process.env.BENCH_FACTOR) : undefined;
@@ -29,7 +30,7 @@ const s = (performance.now() - t0) / 1000;
 const cpu = process.cpuUsage(cpu0);
 const cpuS = (cpu.user + cpu.system) / 1e6;
 const o = r.options[0];
-console.log(`(c) ${r.completed}-draw ensemble, resolution factor ${scenario.uncertainty?.resolutionFactor}, ${r.threads} threads: ${s.toFixed(1)} s (${((1000 * s) / r.completed).toFixed(0)} ms per draw wall)`);
+console.log(`(c) ${r.completed}-draw ensemble, resolution factor ${scenario.uncertainty?.resolutionFactor ?? TRANSECT_DRAW_FACTOR}, ${r.threads} threads: ${s.toFixed(1)} s (${((1000 * s) / r.completed).toFixed(0)} ms per draw wall)`);
 console.log(`    critical width: median ${o.criticalWidth.widthM?.median?.toFixed(0)} m, 5–95 % ${o.criticalWidth.widthM?.p05?.toFixed(0)}–${o.criticalWidth.widthM?.p95?.toFixed(0)} m; holds in 90 % of draws from ${o.criticalWidth.holds90M?.toFixed(0)} m, 95 % from ${o.criticalWidth.holds95M?.toFixed(0)} m`);
 console.log(`    P(holds within horizon) ${o.holdsWithinHorizon.p.toFixed(3)} ± ${o.holdsWithinHorizon.standardError.toFixed(3)}; critical width per draw: ${o.criticalWidth.computed ? 'included' : 'NOT included (' + o.criticalWidth.note + ')'}`);
 console.log(`    CPU time ${cpuS.toFixed(1)} s over all threads (${((1000 * cpuS) / r.completed).toFixed(0)} ms per draw): ${(cpuS / r.threads).toFixed(1)} s on ${r.threads} otherwise idle cores`);

@@ -250,7 +250,7 @@ async function landscapeDraws(
       draws: u.draws,
       seed: u.seed,
       cellM,
-      stepFactor: u.resolutionFactor,
+      stepFactor: u.resolutionFactor, // absent: DRAW_STEP_FACTOR (landscape/ensemble.ts)
       signal: opts.signal ?? cancelled.signal,
       onProgress: (done, total) => {
         if (opts.shouldCancel?.()) cancelled.abort();

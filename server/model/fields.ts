@@ -466,7 +466,8 @@ export const FIELDS = {
     typical: '1–3',
     help:
       'Ensemble draws run with cells and time steps this many times the automatic choice (the central-value runs keep the full resolution). ' +
-      '3 makes draws about 5–8× faster than 1; its cost in accuracy is stated in the README (Performance).',
+      '3 makes draws about 5–8× faster than 1; its cost in accuracy is stated in the README (Performance). ' +
+      'On a map the draws keep the central run\'s cells and this is the time step as a multiple of the transect rule (4 when left empty; a map run itself uses 2).',
     defaultValue: 3,
     source: 'Measured on the bench problems (README, Performance); 1 switches it off',
   },

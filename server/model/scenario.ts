@@ -120,8 +120,11 @@ export const UncertaintySchema = z.strictObject({
   targetStandardError: valueSchema(FIELDS.targetStandardError).default(0.02),
   /** Compute each draw's critical width for every option (needs the barrier analysis; the costly part). */
   criticalWidth: z.boolean().default(true),
-  /** Draws use cells and steps this many times the automatic choice (numerics set in the scenario are kept). */
-  resolutionFactor: valueSchema(FIELDS.ensembleResolutionFactor).default(3),
+  /**
+   * Draws use cells and steps this many times the automatic choice (numerics set in the scenario are kept).
+   * Absent: 3 on a transect (TRANSECT_DRAW_FACTOR), 4 × the transect step rule on a map (DRAW_STEP_FACTOR).
+   */
+  resolutionFactor: valueSchema(FIELDS.ensembleResolutionFactor).optional(),
 });
 
 /** Distance kernel of human-carried introductions: exponential by mean, or a user table of distance vs share carried farther. */

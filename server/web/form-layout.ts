@@ -239,7 +239,7 @@ export const FORM_SECTIONS: readonly { id: string; title: string; intro?: string
       { path: 'uncertainty.draws', kind: 'number', field: 'ensembleDraws', showWhen: ON('_uncertainty'), prefill: '1000' },
       { path: 'uncertainty.seed', kind: 'number', field: 'ensembleSeed', showWhen: ON('_uncertainty'), prefill: '1' },
       { path: 'uncertainty.targetStandardError', kind: 'number', field: 'targetStandardError', showWhen: ON('_uncertainty'), prefill: '0.02' },
-      { path: 'uncertainty.resolutionFactor', kind: 'number', field: 'ensembleResolutionFactor', showWhen: ON('_uncertainty'), prefill: '3' },
+      { path: 'uncertainty.resolutionFactor', kind: 'number', field: 'ensembleResolutionFactor', showWhen: ON('_uncertainty') },
       {
         path: 'uncertainty.criticalWidth',
         kind: 'checkbox',

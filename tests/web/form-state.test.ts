@@ -96,7 +96,7 @@ describe('ensemble and transport blocks', () => {
     expect(fresh['uncertainty.draws']).toBe('1000');
     expect(fresh['uncertainty.criticalWidth']).toBe('on');
     fresh._uncertainty = 'on';
-    expect(parseScenario(formToScenario(fresh).input).uncertainty).toEqual({ draws: 1000, seed: 1, targetStandardError: 0.02, criticalWidth: true, resolutionFactor: 3 });
+    expect(parseScenario(formToScenario(fresh).input).uncertainty).toEqual({ draws: 1000, seed: 1, targetStandardError: 0.02, criticalWidth: true });
   });
 
   it('a kernel table row that grows is reported in its row', () => {

@@ -100,6 +100,9 @@ export function drawValues(plan: EnsemblePlan, i: number): { values: number[]; c
   return { values, clipped };
 }
 
+/** Default coarsening of a transect ensemble's draws (cells and steps; tests/analysis/ensemble/ensemble-resolution.test.ts). */
+export const TRANSECT_DRAW_FACTOR = 3;
+
 /**
  * Draw i: its point scenario (resolve.ts) and the problem it runs, with the resolution coarsened by the
  * ensemble's `resolutionFactor` (a variant of the draw's problem; the scenario itself is not rewritten).
@@ -107,7 +110,7 @@ export function drawValues(plan: EnsemblePlan, i: number): { values: number[]; c
 export function drawScenario(scenario: Scenario, plan: EnsemblePlan, i: number): { point: PointScenario; problem: Problem; values: number[]; clipped: boolean[] } {
   const { values, clipped } = drawValues(plan, i);
   const point = resolveDraw(scenario, plan.parameters, values);
-  return { point, problem: coarsened(point, scenario.uncertainty?.resolutionFactor ?? 1), values, clipped };
+  return { point, problem: coarsened(point, scenario.uncertainty?.resolutionFactor ?? TRANSECT_DRAW_FACTOR), values, clipped };
 }
 
 /** The problem of a point scenario with cells and step `factor` times the automatic choice (see coarsenedProblem). */

@@ -6,6 +6,7 @@ import { adoptFit, fitSurvey } from '../../../server/analysis/calibration/fit.ts
 import { withValue } from '../../../server/analysis/calibration/model-fit.ts';
 import { normalCdf } from '../../../server/analysis/calibration/statistics.ts';
 import { coarsened, evaluatePoint, runEnsemble } from '../../../server/analysis/ensemble/ensemble.ts';
+import { TRANSECT_DRAW_FACTOR } from '../../../server/analysis/ensemble/plan.ts';
 import { RECORDS_FILE, SCENARIO_FILE, TRUTH } from '../../../scenarios/generate-survey-records.ts';
 
 /**
@@ -24,7 +25,7 @@ describe('fitted ranges in the ensemble (demo)', () => {
   const adopted = parseScenario(adoptFit(prior, fit));
   // The demo's pest does not kill its hosts, and over the prior's range the crossing comes earlier the larger D
   // is (the bisection's end checks below fail otherwise), so one threshold D* separates holds from crossed.
-  const factor = prior.uncertainty!.resolutionFactor;
+  const factor = prior.uncertainty!.resolutionFactor ?? TRANSECT_DRAW_FACTOR;
   const holds = (d: number) => evaluatePoint(coarsened(withValue(pointScenario(prior), ['pest', 'diffusionHost'], d), factor), { criticalWidth: false }).options[0].crossingYears === null;
 
   it('P(holds) with the prior and with the fitted range both equal F(D*) within one Latin-hypercube stratum', () => {
