@@ -82,7 +82,8 @@ function runDraws(p: DrawsPayload): DrawResult[] {
     for (const c of l.classAtCells) if (c !== RASTER_CLASSES.indexOf('outside')) habitats.add(c);
     for (const b of l.bands) habitats.add(RASTER_CLASSES.indexOf(b.treatment === 'clearing' ? 'open' : 'nonhost'));
     const stepYears = p.stepFactor * automaticStepYears(pest, [...habitats].map((c) => CLASS_HABITAT[c]));
-    const r = evaluateLandscape(l, pest, { ...p.settings, stepYears, crossSection: false });
+    // A draw keeps only which sites were reached and the way past: its runs stop once those are decided.
+    const r = evaluateLandscape(l, pest, { ...p.settings, stepYears, crossSection: false, stopWhenSitesReached: true });
     const reachedOf = (sites: { detectedYears: number | null; fringeOnly: boolean }[]) => sites.map((s) => s.detectedYears !== null && !s.fringeOnly);
     return {
       index: i,

@@ -15,7 +15,7 @@ import { runLandscapeProblem } from './run.ts';
 import { holdPrecheck, verifyHold } from './holds.ts';
 import { landscapeToJson, rawFromJson, type LandscapeJson, type RawRunJson } from './json.ts';
 import { LANDSCAPE_HOLD_TASK, LANDSCAPE_RUN_TASK, type LandscapeHoldPayload, type LandscapeRunPayload } from './run-tasks.ts';
-import { baselineFacts, finishOption, holdSettings, optionFacts, type BaselineFacts, type EvaluationPlan, type OptionFacts } from './option.ts';
+import { baselineFacts, finishOption, holdSettings, optionFacts, wayPastToleranceYears, type BaselineFacts, type EvaluationPlan, type OptionFacts } from './option.ts';
 import { LANDSCAPE_RESULT_VERSION, type LandscapeOptionResult, type LandscapeResult, type LandscapeSettings } from './result.ts';
 
 const HOST_CLASS = RASTER_CLASSES.indexOf('host');
@@ -109,7 +109,8 @@ export function evaluateLandscape(landscape: RasterLandscape, pest: Pest | Point
   const runs = bands.map((band, i) => {
     const problem = problemOf(plan, band);
     const onProgress = (f: number) => settings.onProgress?.((i + f) / (bands.length + 0.5), runLabel(plan, band));
-    return { problem, raw: runLandscapeProblem(problem, plan.point, { horizonYears: settings.horizonYears, detectionLevel: plan.level, shouldCancel: settings.shouldCancel, onProgress }) };
+    const stop = { stopWhenSitesReached: settings.stopWhenSitesReached, stopMarginYears: (a: number) => wayPastToleranceYears(plan.common.stepYears, a) };
+    return { problem, raw: runLandscapeProblem(problem, plan.point, { horizonYears: settings.horizonYears, detectionLevel: plan.level, shouldCancel: settings.shouldCancel, onProgress, ...stop }) };
   });
   const base = baselineFacts(plan, runs[0].problem, runs[0].raw);
   const facts = runs.slice(1).map((r, j) => optionFacts(plan, base, j, r.problem, r.raw));

@@ -62,6 +62,15 @@ export interface OptionFacts {
   treeCost: number | null;
 }
 
+/**
+ * How much later than a site's arrival (a, years) an occupied path may reach it and still count as the
+ * way there: two steps or 2 % of a. A run that goes on this long past every site's arrival has decided
+ * the way past (later passages cannot change it).
+ */
+export function wayPastToleranceYears(stepYears: number, a: number): number {
+  return Math.max(2 * stepYears, 0.02 * a);
+}
+
 /** Cells of the infestation (start cells of occupied paths). */
 export function startCells(p: LandscapeProblem, level: number): Int32Array {
   const out: number[] = [];
@@ -196,7 +205,7 @@ export function optionFacts(plan: EvaluationPlan, base: BaselineFacts, j: number
   const { raw: baseRaw, starts, summary: baseline } = base;
   const run = summariseRun(p, raw, point, true);
   const bandCells = p.bandAtCells!;
-  const tol = (a: number) => Math.max(2 * stepYears, 0.02 * a);
+  const tol = (a: number) => wayPastToleranceYears(stepYears, a);
   // Behind the band: in the baseline, every occupied path avoiding the band's cells reached the site later.
   const baseAround = bottleneckArrival(l.nx, baseRaw.detected, starts, bandCells);
   const optAround = bottleneckArrival(l.nx, raw.detected, starts, bandCells);

@@ -197,6 +197,12 @@ export interface LandscapeSettings {
   transport?: { ratePerKm2Year: number; establishmentProbability: number; kernel: PointKernel };
   /** Run the band cross-section's 1-D critical-width analysis (default true; the costly part). */
   crossSection?: boolean;
+  /**
+   * Stop each run once every protected site is reached and the way past is decided (default false; the
+   * ensemble's draws, which keep only those): arrival maps, host loss and series then cover only the
+   * years run, so a single evaluation keeps this off.
+   */
+  stopWhenSitesReached?: boolean;
   /** Checked between steps; when it returns true the evaluation stops with a CancelledError. */
   shouldCancel?: () => boolean;
   /** Progress as a fraction 0–1 with a few words. */

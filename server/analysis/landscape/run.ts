@@ -15,8 +15,14 @@ export interface RunSettings {
   shouldCancel?: () => boolean;
   /** Fraction of this run's simulated time done. */
   onProgress?: (fraction: number) => void;
-  /** Stop early once every site has seen the detection level and the established level (default false). */
+  /**
+   * Stop early once every site is reached (detection level; with an Allee threshold, the established level
+   * too) and the run has gone `stopMarginYears(arrival)` past each site's arrival (default false). The
+   * per-cell arrival maps, host and series then cover only the years run.
+   */
   stopWhenSitesReached?: boolean;
+  /** Years a run goes on past a site's arrival before it may stop (default 0). */
+  stopMarginYears?: (arrivalYears: number) => number;
   /** Record the occupied area every this many years (default 0.5). */
   seriesEveryYears?: number;
 }
@@ -114,6 +120,24 @@ export function fringeMatters(pest: PointPest): boolean {
   return hasStrongAllee(pest.growth, 1);
 }
 
+/**
+ * True when every site was reached by time t (some cell detected; with an Allee threshold some cell
+ * established, as siteArrivals in option.ts reads it) and t is at least the margin past each site's arrival.
+ */
+function sitesDecided(siteCells: Int32Array[], detected: Float32Array, established: Float32Array, fringe: boolean, t: number, margin?: (a: number) => number): boolean {
+  for (const cells of siteCells) {
+    let d = Infinity;
+    let e = Infinity;
+    for (const k of cells) {
+      if (detected[k] < d) d = detected[k];
+      if (established[k] < e) e = established[k];
+    }
+    if (!Number.isFinite(d) || (fringe && !Number.isFinite(e))) return false;
+    if (t < d + (margin ? margin(d) : 0)) return false;
+  }
+  return true;
+}
+
 export function runLandscapeProblem(p: LandscapeProblem, pest: PointPest, s: RunSettings): RawRun {
   const started = Date.now();
   const { nx, ny } = p.landscape;
@@ -143,6 +167,7 @@ export function runLandscapeProblem(p: LandscapeProblem, pest: PointPest, s: Run
   const dt = p.stepYears;
   const nSteps = Math.max(1, Math.ceil(s.horizonYears / dt - 1e-9));
   const siteCells = p.landscape.sites.map((site) => site.cells);
+  const fringe = fringeMatters(pest);
   let t = 0;
   let steps = 0;
   for (let i = 0; i < nSteps; i++) {
@@ -159,10 +184,7 @@ export function runLandscapeProblem(p: LandscapeProblem, pest: PointPest, s: Run
       nextRecord += every;
     }
     if (i % 20 === 0) s.onProgress?.(t / s.horizonYears);
-    if (s.stopWhenSitesReached && siteCells.length > 0) {
-      const all = siteCells.every((cells) => Array.from(cells).some((k) => detected[k] >= 0 && (established[k] >= 0 || !p.hostAtCells[k])));
-      if (all) break;
-    }
+    if (s.stopWhenSitesReached && siteCells.length > 0 && sitesDecided(siteCells, detected, established, fringe, t, s.stopMarginYears)) break;
   }
   // Outside cells carry no arrival.
   for (let k = 0; k < n; k++) if (!p.op.insideAtCells[k]) detected[k] = NaN;

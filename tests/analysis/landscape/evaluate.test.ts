@@ -44,6 +44,28 @@ describe('evaluateLandscape', () => {
     expect(across.pinning.verified).toBe(false);
   });
 
+  it('stops runs early only once the outcomes an ensemble draw keeps are decided (reached sites, way past)', () => {
+    const early = evaluateLandscape(L, pest, { horizonYears: 12, crossSection: false, stopWhenSitesReached: true });
+    const step = r.baseline.numerics.stepYears;
+    const runs = [[r.baseline, early.baseline], ...r.options.map((o, j) => [o.run, early.options[j].run])];
+    for (const [full, cut] of runs) {
+      expect(cut.sites).toEqual(full.sites);
+      const last = Math.max(...full.sites.map((s) => s.detectedYears!));
+      // It stops after the last arrival plus the way-past tolerance (two steps or 2 %), before the horizon.
+      expect(cut.endYears).toBeGreaterThanOrEqual(last + Math.max(2 * step, 0.02 * last) - 1e-9);
+      expect(cut.endYears).toBeLessThan(Math.min(12, last + Math.max(2 * step, 0.02 * last) + step + 1e-9));
+    }
+    r.options.forEach((o, j) => {
+      expect(early.options[j].wayPast).toBe(o.wayPast);
+      expect(early.options[j].sites.map((s) => [s.behindBand, s.wayPast, s.kind])).toEqual(o.sites.map((s) => [s.behindBand, s.wayPast, s.kind]));
+      expect(early.options[j].pinning.verified).toBe(o.pinning.verified);
+    });
+    // A site not reached within the horizon keeps every run going to the horizon.
+    const short = evaluateLandscape(L, pest, { horizonYears: 3, crossSection: false, stopWhenSitesReached: true });
+    expect(short.baseline.sites[0].detectedYears).toBeNull();
+    expect(short.baseline.endYears).toBe(3);
+  });
+
   it('counts trees removed as band area × host stems per ha exactly, and the cost', () => {
     // 40 × 40 cells of 1 ha at 500 stems/ha; across: 4 × 80 cells.
     expect(r.options[0].trees.stemsRemoved).toBeCloseTo(40 * 4 * 500 * 1, 6);
