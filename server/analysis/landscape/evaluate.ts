@@ -106,10 +106,10 @@ function assemble(plan: EvaluationPlan, base: BaselineFacts, facts: OptionFacts[
 export function evaluateLandscape(landscape: RasterLandscape, pest: Pest | PointPest, settings: LandscapeSettings): LandscapeResult {
   const plan = planEvaluation(landscape, pest, settings);
   const bands = runBands(plan);
+  const stop = { stopWhenSitesReached: settings.stopWhenSitesReached, stopMarginYears: (a: number) => wayPastToleranceYears(plan.common.stepYears, a) };
   const runs = bands.map((band, i) => {
     const problem = problemOf(plan, band);
     const onProgress = (f: number) => settings.onProgress?.((i + f) / (bands.length + 0.5), runLabel(plan, band));
-    const stop = { stopWhenSitesReached: settings.stopWhenSitesReached, stopMarginYears: (a: number) => wayPastToleranceYears(plan.common.stepYears, a) };
     return { problem, raw: runLandscapeProblem(problem, plan.point, { horizonYears: settings.horizonYears, detectionLevel: plan.level, shouldCancel: settings.shouldCancel, onProgress, ...stop }) };
   });
   const base = baselineFacts(plan, runs[0].problem, runs[0].raw);

@@ -6,7 +6,7 @@
  */
 import { RASTER_CLASSES, type RasterLandscape } from '../../domain/raster.ts';
 import type { LandscapeProblem, PointPest, ProblemOptions } from './problem.ts';
-import { fringeMatters, type RawRun } from './run.ts';
+import { fringeMatters, minOver, type RawRun } from './run.ts';
 import { bandDepth, bottleneckArrival, infestationCentre } from './paths.ts';
 import { crossSection, stockingAroundBand } from './cross-section.ts';
 import type { HoldSettings } from './holds.ts';
@@ -76,12 +76,6 @@ export function startCells(p: LandscapeProblem, level: number): Int32Array {
   const out: number[] = [];
   for (let k = 0; k < p.u0.length; k++) if (p.u0[k] > 0 && p.u0[k] >= Math.min(level, p.u0[k])) out.push(k);
   return Int32Array.from(out);
-}
-
-function minOver(field: Float32Array | Float64Array, cells: Int32Array): number | null {
-  let m = Infinity;
-  for (const k of cells) if (field[k] >= 0 && field[k] < m) m = field[k];
-  return Number.isFinite(m) ? m : null;
 }
 
 /** Site arrivals of a run; in an option run a detected site without a breeding population is a fringe only. */

@@ -120,19 +120,21 @@ export function fringeMatters(pest: PointPest): boolean {
   return hasStrongAllee(pest.growth, 1);
 }
 
+/** Earliest non-negative value of a per-cell field over the cells (NaN: never), or null. */
+export function minOver(field: Float32Array | Float64Array, cells: Int32Array): number | null {
+  let m = Infinity;
+  for (const k of cells) if (field[k] >= 0 && field[k] < m) m = field[k];
+  return Number.isFinite(m) ? m : null;
+}
+
 /**
  * True when every site was reached by time t (some cell detected; with an Allee threshold some cell
  * established, as siteArrivals in option.ts reads it) and t is at least the margin past each site's arrival.
  */
 function sitesDecided(siteCells: Int32Array[], detected: Float32Array, established: Float32Array, fringe: boolean, t: number, margin?: (a: number) => number): boolean {
   for (const cells of siteCells) {
-    let d = Infinity;
-    let e = Infinity;
-    for (const k of cells) {
-      if (detected[k] < d) d = detected[k];
-      if (established[k] < e) e = established[k];
-    }
-    if (!Number.isFinite(d) || (fringe && !Number.isFinite(e))) return false;
+    const d = minOver(detected, cells);
+    if (d === null || (fringe && minOver(established, cells) === null)) return false;
     if (t < d + (margin ? margin(d) : 0)) return false;
   }
   return true;
