@@ -45,24 +45,23 @@ function meshFaces(
   cellOfRaster: Int32Array,
   outside: 'impassable' | 'lethal',
   mapEdges: 'reflecting' | 'lethal',
-): { faces: number[]; lethalFacesAtCells: Uint8Array; lethalFacesXAtCells: Uint8Array } {
+): { faces: Int32Array; lethalFacesAtCells: Uint8Array; lethalFacesXAtCells: Uint8Array } {
   const lethalFacesAtCells = new Uint8Array(nCells);
   const lethalFacesXAtCells = new Uint8Array(nCells);
-  const faces: number[] = [];
+  // At most two owned faces per cell, two cell numbers each.
+  const faces = new Int32Array(4 * nCells);
+  let nf = 0;
   for (let row = 0; row < ny; row++) {
     for (let col = 0; col < nx; col++) {
       const c = cellOfRaster[row * nx + col];
       if (c < 0) continue;
       let lethal = 0;
       let lethalX = 0;
-      const sides: [number, number, boolean][] = [
-        [row, col + 1, true],
-        [row + 1, col, true],
-        [row, col - 1, false],
-        [row - 1, col, false],
-      ];
-      for (const [r, q, own] of sides) {
-        const alongX = r === row;
+      // East, south (the faces this cell owns), west, north.
+      for (let side = 0; side < 4; side++) {
+        const r = side === 1 ? row + 1 : side === 3 ? row - 1 : row;
+        const q = side === 0 ? col + 1 : side === 2 ? col - 1 : col;
+        const alongX = side === 0 || side === 2;
         if (r < 0 || r >= ny || q < 0 || q >= nx) {
           if (mapEdges === 'lethal') (lethal++, alongX && lethalX++);
           continue;
@@ -72,13 +71,13 @@ function meshFaces(
           if (outside === 'lethal') (lethal++, alongX && lethalX++);
           continue;
         }
-        if (own) faces.push(c, j);
+        if (side < 2) (faces[nf++] = c), (faces[nf++] = j);
       }
       lethalFacesAtCells[c] = lethal;
       lethalFacesXAtCells[c] = lethalX;
     }
   }
-  return { faces, lethalFacesAtCells, lethalFacesXAtCells };
+  return { faces: faces.slice(0, nf), lethalFacesAtCells, lethalFacesXAtCells };
 }
 
 /**
@@ -125,7 +124,7 @@ export function makeRasterMesh(
     nFaces,
     volumes,
     centres,
-    faceCells: Int32Array.from(faces),
+    faceCells: faces,
     faceAreas: new Float64Array(nFaces).fill(cellKm),
     faceDistances: new Float64Array(nFaces).fill(cellKm),
     rasterOfCell,

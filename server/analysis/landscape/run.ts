@@ -39,11 +39,18 @@ export interface RawRun {
   numerics: LandscapeNumerics;
 }
 
+/**
+ * Established levels by stocking, kept per growth form while it is in use: an evaluation's runs (baseline
+ * and options) share the pest and almost all stocking values, and the level costs an equilibrium search.
+ */
+const levelsByGrowth = new WeakMap<object, Map<number, number>>();
+
 /** Established level per raster cell (Infinity where not host). */
 export function establishedAtCells(p: LandscapeProblem, pest: PointPest): Float64Array {
   const n = p.hostAtCells.length;
   const out = new Float64Array(n).fill(Infinity);
-  const cache = new Map<number, number>();
+  let cache = levelsByGrowth.get(pest.growth);
+  if (cache === undefined) levelsByGrowth.set(pest.growth, (cache = new Map<number, number>()));
   for (let k = 0; k < n; k++) {
     if (!p.hostAtCells[k]) continue;
     const h0 = p.stockingAtCells[k];
@@ -63,6 +70,8 @@ interface Passages {
   established: Float32Array;
   /** Cells detected so far. */
   occupied: number;
+  /** 1 once a cell has passed both levels (or the detection level where it cannot establish): nothing left to note. */
+  done: Uint8Array;
 }
 
 function initialPassages(u: Float64Array, level: number, estLevel: ArrayLike<number>): Passages {
@@ -77,12 +86,14 @@ function initialPassages(u: Float64Array, level: number, estLevel: ArrayLike<num
     }
     if (u[k] >= estLevel[k]) established[k] = 0;
   }
-  return { detected, established, occupied };
+  const done = new Uint8Array(n);
+  for (let k = 0; k < n; k++) done[k] = detected[k] >= 0 && (established[k] >= 0 || estLevel[k] === Infinity) ? 1 : 0;
+  return { detected, established, occupied, done };
 }
 
 /**
  * Passages of the two levels in the step t → tNew over the stepper's window, at the time interpolated
- * linearly between the step's ends; `prev` (the state before the step) becomes the state after it.
+ * linearly between the step's ends; `prev` (the state before the step) becomes the state after it in the cells not yet done.
  */
 function notePassages(
   ps: Passages,
@@ -95,9 +106,12 @@ function notePassages(
   t: number,
   tNew: number,
 ): void {
-  const { detected, established } = ps;
-  for (let r = w.r0; r <= w.r1; r++) {
-    for (let q = w.c0, k = r * nx + w.c0; q <= w.c1; q++, k++) {
+  const { detected, established, done } = ps;
+  const { r0, r1, c0, c1 } = w;
+  for (let r = r0; r <= r1; r++) {
+    for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) {
+      // A cell past both levels needs no previous state any more.
+      if (done[k]) continue;
       const now = u[k];
       const before = prev[k];
       if (now >= level && !(detected[k] >= 0)) {
@@ -110,6 +124,7 @@ function notePassages(
         const frac = now > before ? (e - before) / (now - before) : 1;
         established[k] = t + Math.min(1, Math.max(0, frac)) * (tNew - t);
       }
+      if (detected[k] >= 0 && (established[k] >= 0 || estLevel[k] === Infinity)) done[k] = 1;
       prev[k] = now;
     }
   }

@@ -147,6 +147,9 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
   const stageCols = lineFactors(n);
   let stageKey = 0;
   const zeros = new Float64Array(n);
+  // combineSolve's u·(1/ρ) per cell and south-face fluxes of the row above.
+  const scaled = new Float64Array(n);
+  const southFlux = new Float64Array(nx);
   const sinks = new Float64Array(n);
   const counters: RasterCounters = { steps: 0, substeps: 0, fallbackSteps: 0, activeCellsMax: 0 };
   const theta = 0.5 * GAMMA;
@@ -206,13 +209,73 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
     }
   }
 
+  /**
+   * rowFactorOf's recurrence on four rows at once (the first starting at cell `a`, each `len` cells), in
+   * lockstep so that their divisions overlap; each row's operations and their order are rowFactorOf's.
+   */
+  function factorRows4(f: LineFactors, tau: number, g: Float64Array, a: number, len: number): void {
+    const { cp, ip, sub } = f;
+    const b = a + nx;
+    const cc = b + nx;
+    const d = cc + nx;
+    let pa = 0, pb = 0, pc = 0, pd = 0;
+    let wa = 0, wb = 0, wc = 0, wd = 0;
+    let sa = 0, sb = 0, sc = 0, sd = 0;
+    for (let j = 0; j < len - 1; j++) {
+      const ka = a + j;
+      const kb = b + j;
+      const kc = cc + j;
+      const kd = d + j;
+      const ea = gx[ka];
+      const eb = gx[kb];
+      const ec = gx[kc];
+      const ed = gx[kd];
+      const ia = 1 / (1 + tau * ((wa + ea + lethalX[ka]) * ir[ka] - g[ka]) - sa * pa);
+      const ib = 1 / (1 + tau * ((wb + eb + lethalX[kb]) * ir[kb] - g[kb]) - sb * pb);
+      const ic = 1 / (1 + tau * ((wc + ec + lethalX[kc]) * ir[kc] - g[kc]) - sc * pc);
+      const id = 1 / (1 + tau * ((wd + ed + lethalX[kd]) * ir[kd] - g[kd]) - sd * pd);
+      ip[ka] = ia;
+      ip[kb] = ib;
+      ip[kc] = ic;
+      ip[kd] = id;
+      pa = -tau * ea * ir[ka + 1] * ia;
+      pb = -tau * eb * ir[kb + 1] * ib;
+      pc = -tau * ec * ir[kc + 1] * ic;
+      pd = -tau * ed * ir[kd + 1] * id;
+      cp[ka] = pa;
+      cp[kb] = pb;
+      cp[kc] = pc;
+      cp[kd] = pd;
+      wa = ea;
+      wb = eb;
+      wc = ec;
+      wd = ed;
+      sa = -tau * ea * ir[ka];
+      sb = -tau * eb * ir[kb];
+      sc = -tau * ec * ir[kc];
+      sd = -tau * ed * ir[kd];
+      sub[ka + 1] = tau * ea * ir[ka];
+      sub[kb + 1] = tau * eb * ir[kb];
+      sub[kc + 1] = tau * ec * ir[kc];
+      sub[kd + 1] = tau * ed * ir[kd];
+    }
+    // The last cell of each row: no east face.
+    const j = len - 1;
+    for (const [k, gw, aw, cpPrev] of [[a + j, wa, sa, pa], [b + j, wb, sb, pb], [cc + j, wc, sc, pc], [d + j, wd, sd, pd]]) {
+      ip[k] = 1 / (1 + tau * ((gw + 0 + lethalX[k]) * ir[k] - g[k]) - aw * cpPrev);
+      cp[k] = 0;
+    }
+  }
+
   /** Row (Px) factors valid for the window and tau they were computed for; the key says which rates. */
   function rowFactorOf(f: LineFactors, tau: number, g: Float64Array, key: unknown): LineFactors {
     const win = w!;
     if (f.key === key && key !== null && f.tau === tau && sameWindow(f, win)) return f;
     const { r0, r1, c0, c1 } = win;
     const { cp, ip, sub } = f;
-    for (let r = r0; r <= r1; r++) {
+    let r = r0;
+    for (; r + 3 <= r1; r += 4) factorRows4(f, tau, g, r * nx + c0, c1 - c0 + 1);
+    for (; r <= r1; r++) {
       const first = r * nx + c0;
       const last = r * nx + c1;
       let cpPrev = 0;
@@ -234,6 +297,56 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
     f.key = key;
     setWindow(f, win);
     return f;
+  }
+
+  /**
+   * solveRow on the four rows r … r + 3 at once: the four recurrences are independent, so running them in
+   * lockstep lets the processor overlap their latencies; each row's operations and their order are
+   * solveRow's, so the result is the same to the bit.
+   */
+  function solveRows4(f: LineFactors, x: Float64Array, r: number): void {
+    const { cp, ip, sub } = f;
+    const a = r * nx + w!.c0;
+    const b = a + nx;
+    const cc = b + nx;
+    const d = cc + nx;
+    const len = w!.c1 - w!.c0 + 1;
+    let ya = x[a] * ip[a];
+    let yb = x[b] * ip[b];
+    let yc = x[cc] * ip[cc];
+    let yd = x[d] * ip[d];
+    x[a] = ya;
+    x[b] = yb;
+    x[cc] = yc;
+    x[d] = yd;
+    for (let j = 1; j < len; j++) {
+      const ka = a + j;
+      const kb = b + j;
+      const kc = cc + j;
+      const kd = d + j;
+      ya = (x[ka] + sub[ka] * ya) * ip[ka];
+      yb = (x[kb] + sub[kb] * yb) * ip[kb];
+      yc = (x[kc] + sub[kc] * yc) * ip[kc];
+      yd = (x[kd] + sub[kd] * yd) * ip[kd];
+      x[ka] = ya;
+      x[kb] = yb;
+      x[kc] = yc;
+      x[kd] = yd;
+    }
+    for (let j = len - 2; j >= 0; j--) {
+      const ka = a + j;
+      const kb = b + j;
+      const kc = cc + j;
+      const kd = d + j;
+      ya = x[ka] - cp[ka] * ya;
+      yb = x[kb] - cp[kb] * yb;
+      yc = x[kc] - cp[kc] * yc;
+      yd = x[kd] - cp[kd] * yd;
+      x[ka] = ya;
+      x[kb] = yb;
+      x[kc] = yc;
+      x[kd] = yd;
+    }
   }
 
   /** x = Px⁻¹ x on row r of the window, in place, with factors from rowFactorOf. */
@@ -332,27 +445,39 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
    */
   function combineSolve(u: Float64Array, alpha: number, beta: number, gamma: number, v: Float64Array, rows: LineFactors, cols: LineFactors, out: Float64Array, add?: Float64Array, sum?: Float64Array): void {
     const { r0, r1, c0, c1 } = w!;
-    for (let r = r0; r <= r1; r++) {
-      const base = r * nx;
-      const first = base + c0;
-      const last = base + c1;
-      // Faces to the north and south inside the window (none on its edge rows: zero flux there).
-      const gN = r > r0 ? gy : zeros;
-      const gS = r < r1 ? gy : zeros;
-      const offN = r > r0 ? nx : 0;
-      const offS = r < r1 ? nx : 0;
-      // Flux through the west face of k, carried over from the east face of k − 1 (same value, one product).
-      let fw = 0;
-      for (let k = first; k <= last; k++) {
-        const vk = u[k] * ir[k];
-        const sNS = gN[k - offN] * (u[k - offN] * ir[k - offN] - vk) + gS[k] * (u[k + offS] * ir[k + offS] - vk);
-        const fe = k < last ? gx[k] * (u[k + 1] * ir[k + 1] - vk) : 0;
-        const lu = fe - fw + sNS - lethalXY[k] * vk;
-        out[k] = alpha * (lu + rate[k] * u[k]) + beta * u[k] + gamma * v[k];
-        fw = fe;
+    for (let k = r0 * nx + c0; k <= r0 * nx + c1; k++) scaled[k] = u[k] * ir[k];
+    // Rows go in groups of four: their right-hand sides, then their row solves in lockstep, then the column
+    // sweep's forward step row by row (which needs the row above finished).
+    for (let g0 = r0; g0 <= r1; g0 += 4) {
+      const gEnd = Math.min(r1, g0 + 3);
+      for (let r = g0; r <= gEnd; r++) {
+        const base = r * nx;
+        const first = base + c0;
+        const last = base + c1;
+        // u·(1/ρ) of the row below, for this row's south faces and that row's own faces.
+        if (r < r1) for (let k = first + nx; k <= last + nx; k++) scaled[k] = u[k] * ir[k];
+        // Faces to the north and south inside the window (none on its edge rows: zero flux there). A row's
+        // north flux is minus the row above's south flux through the same face, kept in southFlux (the same
+        // value: a − b = −(b − a) exactly), so each face's product is formed once.
+        const north = r > r0;
+        const gS = r < r1 ? gy : zeros;
+        const offS = r < r1 ? nx : 0;
+        // Flux through the west face of k, carried over from the east face of k − 1 (same value, one product).
+        let fw = 0;
+        for (let k = first, q = 0; k <= last; k++, q++) {
+          const vk = scaled[k];
+          const fS = gS[k] * (scaled[k + offS] - vk);
+          const fN = north ? -southFlux[q] : 0;
+          southFlux[q] = fS;
+          const fe = k < last ? gx[k] * (scaled[k + 1] - vk) : 0;
+          const lu = fe - fw + (fN + fS) - lethalXY[k] * vk;
+          out[k] = alpha * (lu + rate[k] * u[k]) + beta * u[k] + gamma * v[k];
+          fw = fe;
+        }
       }
-      solveRow(rows, out, r);
-      colForwardRow(cols, out, r);
+      if (gEnd === g0 + 3) solveRows4(rows, out, g0);
+      else for (let r = g0; r <= gEnd; r++) solveRow(rows, out, r);
+      for (let r = g0; r <= gEnd; r++) colForwardRow(cols, out, r);
     }
     colBack(cols, out, add, sum);
   }
@@ -366,16 +491,29 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
     const win = w!;
     const { r0, r1, c0, c1 } = win;
     const halfDt = 0.5 * dt;
+    const quarter = 0.25 * c * dt;
+    /** Frozen per-capita rate of cell k at the mid-step state x (host at mid-step by the trapezoidal rule). */
+    const midRate = (k: number, x: number): number => {
+      if (!hostAtCells[k]) return sinkAtCells[k];
+      const hm = c > 0 ? h0[k] * expNeg(quarter * (u0[k] + x)) : h0[k];
+      return perCapita(x > 0 ? x : 0, hm > 0 ? hm : 0);
+    };
+    let maxPositive = 0;
     if (extrapolate) {
       // Mid-step state by linear extrapolation from the previous step, ũ = uⁿ + (dt/2)/dtₙ₋₁ (uⁿ − uⁿ⁻¹):
-      // O(dt²) locally like the predictor below, exact at steady states, and without its line solves.
+      // O(dt²) locally like the predictor below, exact at steady states, and without its line solves. The
+      // rates at ũ are taken in the same sweep.
       const ratio = halfDt / dtPrev;
       for (let r = r0; r <= r1; r++) {
         for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) {
           const ui = u[k];
-          mid[k] = ui + ratio * (ui - u0[k]);
+          const x = ui + ratio * (ui - u0[k]);
+          mid[k] = x;
           u0[k] = ui;
           h0[k] = h[k];
+          const g = midRate(k, x);
+          rate[k] = g;
+          if (g > maxPositive) maxPositive = g;
         }
       }
     } else {
@@ -393,24 +531,18 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       // transect's predictor (I − dt/2 L)ũ = (1 + dt/2 g⁰)u⁰ where the state is uniform across, and exact at
       // steady states (so that they stay fixed points of the whole step); negative values are read as 0.
       combineSolve(u0, halfDt, 0, 0, u0, rowFactorOf(predictorRows, halfDt, zeros, 'zeros'), colFactorOf(predictorCols, halfDt), work, u0, mid);
-    }
-    let maxPositive = 0;
-    const quarter = 0.25 * c * dt;
-    for (let r = r0; r <= r1; r++) {
-      for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) {
-        const x = mid[k];
-        let g: number;
-        if (hostAtCells[k]) {
-          const hm = c > 0 ? h0[k] * expNeg(quarter * (u0[k] + x)) : h0[k];
-          g = perCapita(x > 0 ? x : 0, hm > 0 ? hm : 0);
-        } else {
-          g = sinkAtCells[k];
+      for (let r = r0; r <= r1; r++) {
+        for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) {
+          const g = midRate(k, mid[k]);
+          rate[k] = g;
+          if (g > maxPositive) maxPositive = g;
         }
-        rate[k] = g;
-        if (g > maxPositive) maxPositive = g;
       }
     }
     let ok = theta * dt * maxPositive < STAGE_RATE_LIMIT;
+    // Host loss over the step by the trapezoidal rule in log h: h = h⁰ exp(−c dt (u⁰ + u)/2).
+    const halfC = 0.5 * c * dt;
+    let hostDone = false;
     if (ok) {
       const tau = theta * dt;
       // Stage 1 (trapezoidal rule over γ dt): x = u⁰ + (Px Py)⁻¹ 2τ A u⁰.
@@ -419,6 +551,8 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       combineSolve(u0, 2 * tau, 0, 0, u0, rows, cols, work, u0, u);
       // Stage 2 (BDF2): y = x + (Px Py)⁻¹ (c* x − c_old u⁰ − M x), M x = x − τ A x.
       combineSolve(u, tau, cStar - 1, -cOld, u0, rows, cols, work, u, u);
+      // The range of the result, and the host at the step's end in the same sweep (redone below for cells
+      // clipped at 0 and after a fallback).
       let min = 0;
       let max = 0;
       for (let r = r0; r <= r1; r++) {
@@ -426,11 +560,19 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
           const y = u[k];
           if (y < min) min = y;
           else if (y > max) max = y;
+          if (c > 0 && hostAtCells[k]) h[k] = h0[k] * expNeg(halfC * (u0[k] + y));
         }
       }
       ok = min >= -NEGATIVE_TOLERANCE * max;
+      hostDone = ok;
       if (ok && min < 0) {
-        for (let r = r0; r <= r1; r++) for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) if (u[k] < 0) u[k] = 0;
+        for (let r = r0; r <= r1; r++) {
+          for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) {
+            if (!(u[k] < 0)) continue;
+            u[k] = 0;
+            if (c > 0 && hostAtCells[k]) h[k] = h0[k] * expNeg(halfC * (u0[k] + u[k]));
+          }
+        }
       }
     }
     if (!ok) {
@@ -442,8 +584,7 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       for (let r = r0; r <= r1; r++) for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) if (u[k] < 0) u[k] = 0;
       counters.fallbackSteps++;
     }
-    if (c > 0) {
-      const halfC = 0.5 * c * dt;
+    if (c > 0 && !hostDone) {
       for (let r = r0; r <= r1; r++) {
         for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) if (hostAtCells[k]) h[k] = h0[k] * expNeg(halfC * (u0[k] + u[k]));
       }
