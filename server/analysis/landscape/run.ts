@@ -167,6 +167,8 @@ export function runLandscapeProblem(p: LandscapeProblem, pest: PointPest, s: Run
   const level = s.detectionLevel;
   const cellKm2 = p.mesh.cellKm * p.mesh.cellKm;
   const ps = initialPassages(u, level, estLevel);
+  // Outside cells hold no insects: nothing to note there.
+  for (let k = 0; k < n; k++) if (!p.op.insideAtCells[k]) ps.done[k] = 1;
   const { detected, established } = ps;
   const series = { timesYears: [] as number[], occupiedKm2: [] as number[], totalInsects: [] as number[] };
   const every = s.seriesEveryYears ?? 0.5;

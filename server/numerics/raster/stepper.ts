@@ -109,6 +109,26 @@ function setWindow(f: LineFactors, w: Window): void {
   f.c1 = w.c1;
 }
 
+/**
+ * Runs of inside cells along each row: columns lo, hi in pairs, row r's pairs at `segs[segAt[r]] …
+ * segs[segAt[r + 1] − 1]`.
+ */
+function insideRuns(insideAtCells: Uint8Array, nx: number, ny: number): { segs: Int32Array; segAt: Int32Array } {
+  const runs: number[] = [];
+  const segAt = new Int32Array(ny + 1);
+  for (let r = 0; r < ny; r++) {
+    segAt[r] = runs.length;
+    for (let q = 0; q < nx; q++) {
+      if (!insideAtCells[r * nx + q]) continue;
+      const lo = q;
+      while (q + 1 < nx && insideAtCells[r * nx + q + 1]) q++;
+      runs.push(lo, q);
+    }
+  }
+  segAt[ny] = runs.length;
+  return { segs: Int32Array.from(runs), segAt };
+}
+
 /** exp(−x) for the host-loss factors (x ≥ 0). */
 function expNeg(x: number): number {
   return Math.exp(-x);
@@ -146,6 +166,10 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
   const predictorCols = lineFactors(n);
   const stageCols = lineFactors(n);
   let stageKey = 0;
+  // Outside cells (no habitat) hold no insects and have no faces: the sweeps over cells visit only the runs
+  // of inside cells. The row line solves go over whole window rows, where outside cells decouple (their
+  // faces are 0) and stay at 0; every other array keeps 0 there from its allocation.
+  const { segs, segAt } = insideRuns(insideAtCells, nx, ny);
   const zeros = new Float64Array(n);
   // combineSolve's u·(1/ρ) per cell and south-face fluxes of the row above.
   const scaled = new Float64Array(n);
@@ -401,10 +425,13 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
   function colForwardRow(f: LineFactors, x: Float64Array, r: number): void {
     const { ip, sub } = f;
     const { r0, c0, c1 } = w!;
-    const first = r * nx + c0;
-    const last = r * nx + c1;
-    if (r === r0) for (let k = first; k <= last; k++) x[k] = x[k] * ip[k];
-    else for (let k = first; k <= last; k++) x[k] = (x[k] + sub[k] * x[k - nx]) * ip[k];
+    const base = r * nx;
+    for (let s = segAt[r]; s < segAt[r + 1]; s += 2) {
+      const first = base + Math.max(c0, segs[s]);
+      const last = base + Math.min(c1, segs[s + 1]);
+      if (r === r0) for (let k = first; k <= last; k++) x[k] = x[k] * ip[k];
+      else for (let k = first; k <= last; k++) x[k] = (x[k] + sub[k] * x[k - nx]) * ip[k];
+    }
   }
 
   /** Back substitution of Py⁻¹ over the window, in place; when `add` is given, `sum = add + x` as well. */
@@ -412,19 +439,25 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
     const { r0, r1, c0, c1 } = w!;
     const { cp } = f;
     if (add && sum) {
-      const lastRow = r1 * nx;
-      for (let k = lastRow + c0; k <= lastRow + c1; k++) sum[k] = add[k] + x[k];
+      const base = r1 * nx;
+      for (let s = segAt[r1]; s < segAt[r1 + 1]; s += 2) {
+        for (let k = base + Math.max(c0, segs[s]), last = base + Math.min(c1, segs[s + 1]); k <= last; k++) sum[k] = add[k] + x[k];
+      }
     }
     for (let r = r1 - 1; r >= r0; r--) {
       const base = r * nx;
-      if (add && sum) {
-        for (let k = base + c0; k <= base + c1; k++) {
-          const y = x[k] - cp[k] * x[k + nx];
-          x[k] = y;
-          sum[k] = add[k] + y;
+      for (let s = segAt[r]; s < segAt[r + 1]; s += 2) {
+        const first = base + Math.max(c0, segs[s]);
+        const last = base + Math.min(c1, segs[s + 1]);
+        if (add && sum) {
+          for (let k = first; k <= last; k++) {
+            const y = x[k] - cp[k] * x[k + nx];
+            x[k] = y;
+            sum[k] = add[k] + y;
+          }
+        } else {
+          for (let k = first; k <= last; k++) x[k] -= cp[k] * x[k + nx];
         }
-      } else {
-        for (let k = base + c0; k <= base + c1; k++) x[k] -= cp[k] * x[k + nx];
       }
     }
   }
@@ -438,6 +471,14 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
     colBack(cols, x, add, sum);
   }
 
+  /** scaled = u·(1/ρ) on the inside cells of window row r. */
+  function scaleRow(u: Float64Array, r: number): void {
+    const base = r * nx;
+    for (let s = segAt[r]; s < segAt[r + 1]; s += 2) {
+      for (let k = base + Math.max(w!.c0, segs[s]), last = base + Math.min(w!.c1, segs[s + 1]); k <= last; k++) scaled[k] = u[k] * ir[k];
+    }
+  }
+
   /**
    * out = (Px Py)⁻¹ [alpha (L u + rate u) + beta u + gamma v] on the window (zero-flux at its sides), out ≠ u, v,
    * and `sum = add + out` when given. Each row's right-hand side is solved along the row and swept forward
@@ -445,35 +486,45 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
    */
   function combineSolve(u: Float64Array, alpha: number, beta: number, gamma: number, v: Float64Array, rows: LineFactors, cols: LineFactors, out: Float64Array, add?: Float64Array, sum?: Float64Array): void {
     const { r0, r1, c0, c1 } = w!;
-    for (let k = r0 * nx + c0; k <= r0 * nx + c1; k++) scaled[k] = u[k] * ir[k];
+    scaleRow(u, r0);
     // Rows go in groups of four: their right-hand sides, then their row solves in lockstep, then the column
     // sweep's forward step row by row (which needs the row above finished).
     for (let g0 = r0; g0 <= r1; g0 += 4) {
       const gEnd = Math.min(r1, g0 + 3);
       for (let r = g0; r <= gEnd; r++) {
         const base = r * nx;
-        const first = base + c0;
-        const last = base + c1;
         // u·(1/ρ) of the row below, for this row's south faces and that row's own faces.
-        if (r < r1) for (let k = first + nx; k <= last + nx; k++) scaled[k] = u[k] * ir[k];
+        if (r < r1) scaleRow(u, r + 1);
         // Faces to the north and south inside the window (none on its edge rows: zero flux there). A row's
         // north flux is minus the row above's south flux through the same face, kept in southFlux (the same
-        // value: a − b = −(b − a) exactly), so each face's product is formed once.
+        // value: a − b = −(b − a) exactly), so each face's product is formed once; it is 0 below outside cells.
         const north = r > r0;
         const gS = r < r1 ? gy : zeros;
         const offS = r < r1 ? nx : 0;
-        // Flux through the west face of k, carried over from the east face of k − 1 (same value, one product).
-        let fw = 0;
-        for (let k = first, q = 0; k <= last; k++, q++) {
-          const vk = scaled[k];
-          const fS = gS[k] * (scaled[k + offS] - vk);
-          const fN = north ? -southFlux[q] : 0;
-          southFlux[q] = fS;
-          const fe = k < last ? gx[k] * (scaled[k + 1] - vk) : 0;
-          const lu = fe - fw + (fN + fS) - lethalXY[k] * vk;
-          out[k] = alpha * (lu + rate[k] * u[k]) + beta * u[k] + gamma * v[k];
-          fw = fe;
+        let col = c0;
+        for (let s = segAt[r]; s < segAt[r + 1]; s += 2) {
+          const lo = Math.max(c0, segs[s]);
+          const hi = Math.min(c1, segs[s + 1]);
+          if (lo > hi) continue;
+          for (; col < lo; col++) southFlux[col - c0] = 0;
+          col = hi + 1;
+          const first = base + lo;
+          const last = base + hi;
+          // Flux through the west face of k, carried over from the east face of k − 1 (same value, one
+          // product); none on a run's ends (an outside cell or the window's side).
+          let fw = 0;
+          for (let k = first, q = lo - c0; k <= last; k++, q++) {
+            const vk = scaled[k];
+            const fS = gS[k] * (scaled[k + offS] - vk);
+            const fN = north ? -southFlux[q] : 0;
+            southFlux[q] = fS;
+            const fe = k < last ? gx[k] * (scaled[k + 1] - vk) : 0;
+            const lu = fe - fw + (fN + fS) - lethalXY[k] * vk;
+            out[k] = alpha * (lu + rate[k] * u[k]) + beta * u[k] + gamma * v[k];
+            fw = fe;
+          }
         }
+        for (; col <= c1; col++) southFlux[col - c0] = 0;
       }
       if (gEnd === g0 + 3) solveRows4(rows, out, g0);
       else for (let r = g0; r <= gEnd; r++) solveRow(rows, out, r);
@@ -505,7 +556,7 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       // rates at ũ are taken in the same sweep.
       const ratio = halfDt / dtPrev;
       for (let r = r0; r <= r1; r++) {
-        for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) {
+        for (let s = segAt[r], base = r * nx; s < segAt[r + 1]; s += 2) for (let k = base + Math.max(c0, segs[s]), last = base + Math.min(c1, segs[s + 1]); k <= last; k++) {
           const ui = u[k];
           const x = ui + ratio * (ui - u0[k]);
           mid[k] = x;
@@ -519,7 +570,7 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
     } else {
       // Rates at the start.
       for (let r = r0; r <= r1; r++) {
-        for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) {
+        for (let s = segAt[r], base = r * nx; s < segAt[r + 1]; s += 2) for (let k = base + Math.max(c0, segs[s]), last = base + Math.min(c1, segs[s + 1]); k <= last; k++) {
           const ui = u[k];
           const hi = h[k];
           u0[k] = ui;
@@ -532,7 +583,7 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       // steady states (so that they stay fixed points of the whole step); negative values are read as 0.
       combineSolve(u0, halfDt, 0, 0, u0, rowFactorOf(predictorRows, halfDt, zeros, 'zeros'), colFactorOf(predictorCols, halfDt), work, u0, mid);
       for (let r = r0; r <= r1; r++) {
-        for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) {
+        for (let s = segAt[r], base = r * nx; s < segAt[r + 1]; s += 2) for (let k = base + Math.max(c0, segs[s]), last = base + Math.min(c1, segs[s + 1]); k <= last; k++) {
           const g = midRate(k, mid[k]);
           rate[k] = g;
           if (g > maxPositive) maxPositive = g;
@@ -556,7 +607,7 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       let min = 0;
       let max = 0;
       for (let r = r0; r <= r1; r++) {
-        for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) {
+        for (let s = segAt[r], base = r * nx; s < segAt[r + 1]; s += 2) for (let k = base + Math.max(c0, segs[s]), last = base + Math.min(c1, segs[s + 1]); k <= last; k++) {
           const y = u[k];
           if (y < min) min = y;
           else if (y > max) max = y;
@@ -567,7 +618,7 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       hostDone = ok;
       if (ok && min < 0) {
         for (let r = r0; r <= r1; r++) {
-          for (let q = c0, k = r * nx + c0; q <= c1; q++, k++) {
+          for (let s = segAt[r], base = r * nx; s < segAt[r + 1]; s += 2) for (let k = base + Math.max(c0, segs[s]), last = base + Math.min(c1, segs[s + 1]); k <= last; k++) {
             if (!(u[k] < 0)) continue;
             u[k] = 0;
             if (c > 0 && hostAtCells[k]) h[k] = h0[k] * expNeg(halfC * (u0[k] + u[k]));
