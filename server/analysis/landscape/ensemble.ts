@@ -37,7 +37,7 @@ export interface LandscapeEnsembleSettings {
   cellM?: number;
   /** Draws take time steps this many times the transect's automatic step (default DRAW_STEP_FACTOR). */
   stepFactor?: number;
-  /** Draws per task (default: spread over the runner's concurrency, at most 25). */
+  /** Draws per task (default: guided, a quarter of each worker's share of the draws left, at most 25). */
   chunk?: number;
   signal?: AbortSignal;
   onProgress?: (done: number, total: number) => void;
@@ -111,9 +111,13 @@ export async function runLandscapeEnsemble(
   const cellM = e.cellM ?? 200;
   const coarse = coarsenLandscape(landscape, cellFactor(landscape, cellM));
   const json = landscapeToJson(coarse);
-  const chunk = e.chunk ?? Math.max(1, Math.min(25, Math.ceil(draws / Math.max(1, 4 * runner.concurrency))));
+  // Guided chunks: a quarter of each worker's share of the draws left, at most 25, so that the last tasks
+  // are small and no worker waits long for another's last chunk (draws differ in cost: a run stops once its
+  // sites are reached). The draws are the same whatever the chunks (each is fixed by its index).
+  const workers = Math.max(1, runner.concurrency);
+  const chunkAt = (left: number) => e.chunk ?? Math.max(1, Math.min(25, Math.ceil(left / (4 * workers))));
   const payloads: DrawsPayload[] = [];
-  for (let a = 0; a < draws; a += chunk) {
+  for (let a = 0, chunk = chunkAt(draws); a < draws; a += chunk, chunk = chunkAt(draws - a)) {
     payloads.push({
       landscape: json,
       pest,

@@ -40,26 +40,44 @@ export interface RawRun {
 }
 
 /**
- * Established levels by stocking, kept per growth form while it is in use: an evaluation's runs (baseline
- * and options) share the pest and almost all stocking values, and the level costs an equilibrium search.
+ * Established levels kept per growth form and map while they are in use: an evaluation's runs (baseline and
+ * options) share the pest, the map and almost all host cells, and a level costs an equilibrium search. Per
+ * cell, the stocking a level was found for (NaN: none yet), so a cell whose stocking differs is looked up anew.
  */
-const levelsByGrowth = new WeakMap<object, Map<number, number>>();
+interface LevelCache {
+  stocking: Float64Array;
+  level: Float64Array;
+  byStocking: Map<number, number>;
+}
+const levelCaches = new WeakMap<object, WeakMap<object, LevelCache>>();
+
+function levelCache(p: LandscapeProblem, pest: PointPest): LevelCache {
+  let byMap = levelCaches.get(pest.growth);
+  if (byMap === undefined) levelCaches.set(pest.growth, (byMap = new WeakMap()));
+  let cache = byMap.get(p.landscape);
+  if (cache === undefined || cache.level.length !== p.hostAtCells.length) {
+    const n = p.hostAtCells.length;
+    cache = { stocking: new Float64Array(n).fill(NaN), level: new Float64Array(n), byStocking: new Map() };
+    byMap.set(p.landscape, cache);
+  }
+  return cache;
+}
 
 /** Established level per raster cell (Infinity where not host). */
 export function establishedAtCells(p: LandscapeProblem, pest: PointPest): Float64Array {
   const n = p.hostAtCells.length;
   const out = new Float64Array(n).fill(Infinity);
-  let cache = levelsByGrowth.get(pest.growth);
-  if (cache === undefined) levelsByGrowth.set(pest.growth, (cache = new Map<number, number>()));
+  const { stocking, level, byStocking } = levelCache(p, pest);
   for (let k = 0; k < n; k++) {
     if (!p.hostAtCells[k]) continue;
     const h0 = p.stockingAtCells[k];
-    let v = cache.get(h0);
-    if (v === undefined) {
-      v = establishedLevel(pest.growth, h0);
-      cache.set(h0, v);
+    if (stocking[k] !== h0) {
+      let v = byStocking.get(h0);
+      if (v === undefined) byStocking.set(h0, (v = establishedLevel(pest.growth, h0)));
+      stocking[k] = h0;
+      level[k] = v;
     }
-    out[k] = v;
+    out[k] = level[k];
   }
   return out;
 }

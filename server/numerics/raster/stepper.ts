@@ -6,7 +6,8 @@
  * method for movement and growth together, host loss by the trapezoidal rule in log h, a positive first-order
  * fallback) with each implicit stage solved by one approximately factorised (ADI) correction on
  * tridiagonal lines instead of a banded 2-D solve. Only the active window (cells near occupied ones) is
- * computed; it grows with the front.
+ * computed; it grows with the front. Outside cells (water, built-up, nodata) inside it are skipped by the
+ * sweeps over cells.
  *
  * @remarks
  * Stage systems `M x = b`, `M = I − τ(Lx + Ly + G)` (G = diag of frozen per-capita rates), are solved by
@@ -23,7 +24,8 @@
  * Fallback (any negative value, or τ max g too large): `(I − dt(Lx + G₋))(I − dt Ly) uⁿ⁺¹ = (1 + dt G₊) uⁿ`,
  * a product of inverse-positive M-matrices (positive, first order: locally one-dimensional backward Euler).
  *
- * Results do not depend on threads: the step is sequential and its order of operations fixed.
+ * Results do not depend on threads: the step is sequential and its order of operations fixed (the row
+ * solves run four rows in lockstep, each row with its own operations in their own order).
  *
  * Longer than 400 lines on purpose: the step's sweeps (combine, line factorisations and solves, predictor,
  * stages, fallback) share one set of scratch arrays, the window and the kept factorisations in one closure;
