@@ -561,7 +561,6 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
         for (let s = segAt[r], base = r * nx; s < segAt[r + 1]; s += 2) for (let k = base + Math.max(c0, segs[s]), last = base + Math.min(c1, segs[s + 1]); k <= last; k++) {
           const ui = u[k];
           const x = ui + ratio * (ui - u0[k]);
-          mid[k] = x;
           u0[k] = ui;
           h0[k] = h[k];
           const g = midRate(k, x);
