@@ -328,9 +328,11 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
   /**
    * solveRow on the four rows r … r + 3 at once: the four recurrences are independent, so running them in
    * lockstep lets the processor overlap their latencies; each row's operations and their order are
-   * solveRow's, so the result is the same to the bit.
+   * solveRow's, so the result is the same to the bit. With `cols` (rows below the window's first), each
+   * value also takes colForwardRow's step as soon as its row value is final: the same operation on the same
+   * operands (the row above is finished, the lanes go top to bottom), so again the same bits.
    */
-  function solveRows4(f: LineFactors, x: Float64Array, r: number): void {
+  function solveRows4(f: LineFactors, x: Float64Array, r: number, cols?: LineFactors): void {
     const { cp, ip, sub } = f;
     const a = r * nx + w!.c0;
     const b = a + nx;
@@ -359,6 +361,31 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       x[kc] = yc;
       x[kd] = yd;
     }
+    if (!cols) {
+      for (let j = len - 2; j >= 0; j--) {
+        const ka = a + j;
+        const kb = b + j;
+        const kc = cc + j;
+        const kd = d + j;
+        ya = x[ka] - cp[ka] * ya;
+        yb = x[kb] - cp[kb] * yb;
+        yc = x[kc] - cp[kc] * yc;
+        yd = x[kd] - cp[kd] * yd;
+        x[ka] = ya;
+        x[kb] = yb;
+        x[kc] = yc;
+        x[kd] = yd;
+      }
+      return;
+    }
+    const cs = cols.sub;
+    const ci = cols.ip;
+    // The last cell of each row is final after the forward pass.
+    const j0 = len - 1;
+    x[a + j0] = (ya + cs[a + j0] * x[a + j0 - nx]) * ci[a + j0];
+    x[b + j0] = (yb + cs[b + j0] * x[b + j0 - nx]) * ci[b + j0];
+    x[cc + j0] = (yc + cs[cc + j0] * x[cc + j0 - nx]) * ci[cc + j0];
+    x[d + j0] = (yd + cs[d + j0] * x[d + j0 - nx]) * ci[d + j0];
     for (let j = len - 2; j >= 0; j--) {
       const ka = a + j;
       const kb = b + j;
@@ -368,10 +395,10 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       yb = x[kb] - cp[kb] * yb;
       yc = x[kc] - cp[kc] * yc;
       yd = x[kd] - cp[kd] * yd;
-      x[ka] = ya;
-      x[kb] = yb;
-      x[kc] = yc;
-      x[kd] = yd;
+      x[ka] = (ya + cs[ka] * x[ka - nx]) * ci[ka];
+      x[kb] = (yb + cs[kb] * x[kb - nx]) * ci[kb];
+      x[kc] = (yc + cs[kc] * x[kc - nx]) * ci[kc];
+      x[kd] = (yd + cs[kd] * x[kd - nx]) * ci[kd];
     }
   }
 
@@ -488,6 +515,8 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
    */
   function combineSolve(u: Float64Array, alpha: number, beta: number, gamma: number, v: Float64Array, rows: LineFactors, cols: LineFactors, out: Float64Array, add?: Float64Array, sum?: Float64Array): void {
     const { r0, r1, c0, c1 } = w!;
+    // Stage 1 and the predictor add nothing to alpha (L u + rate u).
+    const plain = beta === 0 && gamma === 0;
     scaleRow(u, r0);
     // Rows go in groups of four: their right-hand sides, then their row solves in lockstep, then the column
     // sweep's forward step row by row (which needs the row above finished).
@@ -522,15 +551,21 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
             southFlux[q] = fS;
             const fe = k < last ? gx[k] * (scaled[k + 1] - vk) : 0;
             const lu = fe - fw + (fN + fS) - lethalXY[k] * vk;
-            out[k] = alpha * (lu + rate[k] * u[k]) + beta * u[k] + gamma * v[k];
+            const uk = u[k];
+            const a = alpha * (lu + rate[k] * uk);
+            out[k] = plain ? a : a + beta * uk + gamma * v[k];
             fw = fe;
           }
         }
         for (; col <= c1; col++) southFlux[col - c0] = 0;
       }
-      if (gEnd === g0 + 3) solveRows4(rows, out, g0);
-      else for (let r = g0; r <= gEnd; r++) solveRow(rows, out, r);
-      for (let r = g0; r <= gEnd; r++) colForwardRow(cols, out, r);
+      if (gEnd === g0 + 3 && g0 > r0) {
+        solveRows4(rows, out, g0, cols);
+      } else {
+        if (gEnd === g0 + 3) solveRows4(rows, out, g0);
+        else for (let r = g0; r <= gEnd; r++) solveRow(rows, out, r);
+        for (let r = g0; r <= gEnd; r++) colForwardRow(cols, out, r);
+      }
     }
     colBack(cols, out, add, sum);
   }
