@@ -287,10 +287,16 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
     }
     // The last cell of each row: no east face.
     const j = len - 1;
-    for (const [k, gw, aw, cpPrev] of [[a + j, wa, sa, pa], [b + j, wb, sb, pb], [cc + j, wc, sc, pc], [d + j, wd, sd, pd]]) {
-      ip[k] = 1 / (1 + tau * ((gw + 0 + lethalX[k]) * ir[k] - g[k]) - aw * cpPrev);
-      cp[k] = 0;
-    }
+    lastFactor(f, tau, g, a + j, wa, sa, pa);
+    lastFactor(f, tau, g, b + j, wb, sb, pb);
+    lastFactor(f, tau, g, cc + j, wc, sc, pc);
+    lastFactor(f, tau, g, d + j, wd, sd, pd);
+  }
+
+  /** rowFactorOf's step at a row's last cell k (no east face), given the west face's carried values. */
+  function lastFactor(f: LineFactors, tau: number, g: Float64Array, k: number, gw: number, aw: number, cpPrev: number): void {
+    f.ip[k] = 1 / (1 + tau * ((gw + 0 + lethalX[k]) * ir[k] - g[k]) - aw * cpPrev);
+    f.cp[k] = 0;
   }
 
   /** Row (Px) factors valid for the window and tau they were computed for; the key says which rates. */
