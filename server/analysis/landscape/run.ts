@@ -92,6 +92,11 @@ interface Passages {
   done: Uint8Array;
 }
 
+/** True when cell k has nothing left to note: detected, and established unless it cannot establish. */
+function passedBoth(detected: Float32Array, established: Float32Array, estLevel: ArrayLike<number>, k: number): boolean {
+  return detected[k] >= 0 && (established[k] >= 0 || estLevel[k] === Infinity);
+}
+
 function initialPassages(u: Float64Array, level: number, estLevel: ArrayLike<number>): Passages {
   const n = u.length;
   const detected = new Float32Array(n).fill(NaN);
@@ -105,7 +110,7 @@ function initialPassages(u: Float64Array, level: number, estLevel: ArrayLike<num
     if (u[k] >= estLevel[k]) established[k] = 0;
   }
   const done = new Uint8Array(n);
-  for (let k = 0; k < n; k++) done[k] = detected[k] >= 0 && (established[k] >= 0 || estLevel[k] === Infinity) ? 1 : 0;
+  for (let k = 0; k < n; k++) done[k] = passedBoth(detected, established, estLevel, k) ? 1 : 0;
   return { detected, established, occupied, done };
 }
 
@@ -142,7 +147,7 @@ function notePassages(
         const frac = now > before ? (e - before) / (now - before) : 1;
         established[k] = t + Math.min(1, Math.max(0, frac)) * (tNew - t);
       }
-      if (detected[k] >= 0 && (established[k] >= 0 || estLevel[k] === Infinity)) done[k] = 1;
+      if (passedBoth(detected, established, estLevel, k)) done[k] = 1;
       prev[k] = now;
     }
   }

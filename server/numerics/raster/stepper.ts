@@ -367,31 +367,17 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       x[kc] = yc;
       x[kd] = yd;
     }
-    if (!cols) {
-      for (let j = len - 2; j >= 0; j--) {
-        const ka = a + j;
-        const kb = b + j;
-        const kc = cc + j;
-        const kd = d + j;
-        ya = x[ka] - cp[ka] * ya;
-        yb = x[kb] - cp[kb] * yb;
-        yc = x[kc] - cp[kc] * yc;
-        yd = x[kd] - cp[kd] * yd;
-        x[ka] = ya;
-        x[kb] = yb;
-        x[kc] = yc;
-        x[kd] = yd;
-      }
-      return;
+    const fuse = cols !== undefined;
+    const cs = fuse ? cols.sub : sub;
+    const ci = fuse ? cols.ip : ip;
+    if (fuse) {
+      // The last cell of each row is final after the forward pass.
+      const j0 = len - 1;
+      x[a + j0] = (ya + cs[a + j0] * x[a + j0 - nx]) * ci[a + j0];
+      x[b + j0] = (yb + cs[b + j0] * x[b + j0 - nx]) * ci[b + j0];
+      x[cc + j0] = (yc + cs[cc + j0] * x[cc + j0 - nx]) * ci[cc + j0];
+      x[d + j0] = (yd + cs[d + j0] * x[d + j0 - nx]) * ci[d + j0];
     }
-    const cs = cols.sub;
-    const ci = cols.ip;
-    // The last cell of each row is final after the forward pass.
-    const j0 = len - 1;
-    x[a + j0] = (ya + cs[a + j0] * x[a + j0 - nx]) * ci[a + j0];
-    x[b + j0] = (yb + cs[b + j0] * x[b + j0 - nx]) * ci[b + j0];
-    x[cc + j0] = (yc + cs[cc + j0] * x[cc + j0 - nx]) * ci[cc + j0];
-    x[d + j0] = (yd + cs[d + j0] * x[d + j0 - nx]) * ci[d + j0];
     for (let j = len - 2; j >= 0; j--) {
       const ka = a + j;
       const kb = b + j;
@@ -401,10 +387,10 @@ export function makeRasterStepper(op: RasterOperator, coeffs: RasterCoefficients
       yb = x[kb] - cp[kb] * yb;
       yc = x[kc] - cp[kc] * yc;
       yd = x[kd] - cp[kd] * yd;
-      x[ka] = (ya + cs[ka] * x[ka - nx]) * ci[ka];
-      x[kb] = (yb + cs[kb] * x[kb - nx]) * ci[kb];
-      x[kc] = (yc + cs[kc] * x[kc - nx]) * ci[kc];
-      x[kd] = (yd + cs[kd] * x[kd - nx]) * ci[kd];
+      x[ka] = fuse ? (ya + cs[ka] * x[ka - nx]) * ci[ka] : ya;
+      x[kb] = fuse ? (yb + cs[kb] * x[kb - nx]) * ci[kb] : yb;
+      x[kc] = fuse ? (yc + cs[kc] * x[kc - nx]) * ci[kc] : yc;
+      x[kd] = fuse ? (yd + cs[kd] * x[kd - nx]) * ci[kd] : yd;
     }
   }
 
