@@ -74,7 +74,6 @@ const COVERED_ELSEWHERE: Record<string, Cover> = {
   'server/jobs/queue-config.ts': { by: ['tests/jobs/queue-runner.test.ts'], why: 'queue settings read from the environment; checked with the queue runner' },
   'server/jobs/queue-worker.ts': { by: ['tests/jobs/queue-runner.test.ts', 'tests/jobs/queue-web.test.ts'], why: 'process entry point (npm run worker): the queue tests start it as a child process', kind: 'process' },
   'server/jobs/tasks.ts': { by: ['tests/jobs/inline-runner.test.ts'], why: 'the task-kind registry (a map and two lookups); checked by the inline runner test' },
-  'server/jobs/worker-loader.ts': { by: ['tests/jobs/pool-runner.test.ts'], why: 'adds --import tsx for worker threads; every pool test depends on it' },
   // model/
   'server/model/pest.ts': { by: ['tests/model/scenario-validation.test.ts', 'tests/model/canonical.test.ts'], why: 'zod schema of the pest; the bad-scenario corpus checks each rule\'s path, value and range' },
   'server/model/scenario.ts': { by: ['tests/model/scenario-validation.test.ts', 'tests/model/canonical.test.ts'], why: 'zod schema of a scenario: the bad-scenario corpus (one file per kind of mistake) is its test' },

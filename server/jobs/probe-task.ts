@@ -18,7 +18,12 @@ export interface ProbeTask {
 export interface ProbeResult {
   value: number | null;
   pid: number;
+  /** How the thread compiled the sources: 'module' (ES modules, as intended) or 'commonjs' (see jobs/worker-loader.ts). */
+  moduleFormat: 'module' | 'commonjs';
 }
+
+/** In an ES module `require` and `module` are not defined; a CommonJS compile defines both. */
+const MODULE_FORMAT: ProbeResult['moduleFormat'] = typeof module === 'undefined' ? 'module' : 'commonjs';
 
 registerTask('runner-probe', (p: ProbeTask, ctx = NO_CONTEXT): ProbeResult => {
   if (p.fail) throw new Error(p.fail);
@@ -33,5 +38,5 @@ registerTask('runner-probe', (p: ProbeTask, ctx = NO_CONTEXT): ProbeResult => {
       ctx.progress((now - t0) / ms, 'probe');
     }
   }
-  return { value: p.value ?? null, pid: process.pid };
+  return { value: p.value ?? null, pid: process.pid, moduleFormat: MODULE_FORMAT };
 });

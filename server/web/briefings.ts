@@ -11,7 +11,7 @@ import { Piscina } from 'piscina';
 import type { ResultDocument } from '../analysis/result.ts';
 import type { Scenario } from '../model/scenario.ts';
 import type { BriefingTask } from './briefing-worker.ts';
-import { tsxLoaderUrl } from './jobs.ts';
+import { workerExecArgv } from '../jobs/worker-loader.ts';
 import { InputError } from '../model/errors.ts';
 import { briefingTextProblems } from '../report/pdf/fonts.ts';
 import { randomUUID } from 'node:crypto';
@@ -33,7 +33,7 @@ export function makeBriefingRenderer(): BriefingRenderer {
     minThreads: 0,
     maxThreads: 1,
     idleTimeout: 60_000,
-    execArgv: ['--import', tsxLoaderUrl()],
+    execArgv: workerExecArgv(),
   });
   return {
     async render(document, scenario) {

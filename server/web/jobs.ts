@@ -25,7 +25,6 @@ import { TERMINAL, fromRow, guarded, notify, persist, update, viewOf, type Job, 
 export { TERMINAL, type JobRunnerOptions, type JobStatus, type JobView } from './job-state.ts';
 
 /** The tsx loader, so worker threads can load TypeScript files (briefings use it). */
-export { tsxLoaderUrl } from '../jobs/worker-loader.ts';
 
 export interface ShutdownReport {
   /** Jobs that were running or waiting: kept in the database, resumed at the next start. */

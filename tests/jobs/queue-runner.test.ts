@@ -88,7 +88,7 @@ describe.skipIf(!hasRedisServer)('queue runner with worker processes', () => {
     await a.kill();
     const b = await worker(env);
     const [out] = await result;
-    expect(out).toEqual({ value: 42, pid: b.pid });
+    expect(out).toEqual({ value: 42, pid: b.pid, moduleFormat: 'module' });
     // The same for an ensemble: kill one of two workers half-way; the document is still the local one.
     const c = await worker(env);
     let chunks = 0;
@@ -157,7 +157,7 @@ describe.skipIf(!hasRedisServer)('queue runner with worker processes', () => {
     await running;
     ac.abort();
     await expect(cancelled).rejects.toBeInstanceOf(CancelledError);
-    expect((await kept)[0]).toEqual({ value: 5, pid: a.pid });
+    expect((await kept)[0]).toEqual({ value: 5, pid: a.pid, moduleFormat: 'module' });
     await a.kill();
   });
 
