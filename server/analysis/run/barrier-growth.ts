@@ -59,6 +59,22 @@ export function strongAllee(g: PointGrowth, h = 1): boolean {
  * invaded at all); null without a strong Allee effect.
  */
 export function potentialThreshold(g: PointGrowth, h: number): number | null {
+  // A bisection over a quadrature (some 50 potentials of 10-point rules): an analysis asks for the same few
+  // (growth, stocking) pairs in each of its runs, so values are kept, keyed by the growth's numbers.
+  const key = `${JSON.stringify(g)}|${h}`;
+  const known = thresholdCache.get(key);
+  if (known !== undefined) return known;
+  if (thresholdCache.size >= THRESHOLD_CACHE_SIZE) thresholdCache.clear();
+  const v = computePotentialThreshold(g, h);
+  thresholdCache.set(key, v);
+  return v;
+}
+
+/** Most (growth, stocking) pairs kept by potentialThreshold (a 1000-draw ensemble needs a few thousand). */
+const THRESHOLD_CACHE_SIZE = 20_000;
+const thresholdCache = new Map<string, number | null>();
+
+function computePotentialThreshold(g: PointGrowth, h: number): number | null {
   if (!strongAllee(g, h)) return null;
   const { threshold, capacity } = equilibria(g, h);
   const F = potential(g, h);

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { frontCannotAdvance } from '../../../server/analysis/run/barrier-growth.ts';
+import { frontCannotAdvance, potentialThreshold } from '../../../server/analysis/run/barrier-growth.ts';
 import type { PointGrowth } from '../../../server/model/growth.ts';
 
 describe('frontCannotAdvance: does a front move into unbroken host forest at all?', () => {
@@ -20,5 +20,22 @@ describe('frontCannotAdvance: does a front move into unbroken host forest at all
   });
   it('no host left means no front', () => {
     expect(frontCannotAdvance({ form: 'logistic', rate: 1 }, 0)).toBe(true);
+  });
+});
+
+describe('potentialThreshold: zero of the potential above the Allee threshold', () => {
+  // Cubic u g = r u (1 − u)(u − a): F(θ) = r θ² (−θ²/4 + (1 + a) θ/3 − a/2) = 0 gives
+  // 3θ² − 4(1 + a)θ + 6a = 0, the smaller root lying above a for a < ½ (own algebra).
+  const closedForm = (a: number) => (4 * (1 + a) - Math.sqrt(16 * (1 + a) ** 2 - 72 * a)) / 6;
+  it('matches the closed form for the cubic', () => {
+    for (const a of [0.1, 0.3, 0.45]) expect(potentialThreshold({ form: 'allee-cubic', rate: 1.3, alleeThreshold: a }, 1)).toBeCloseTo(closedForm(a), 12);
+  });
+  it('kept values follow the growth numbers, not the object: a changed object gets its own value', () => {
+    const g = { form: 'allee-cubic' as const, rate: 1, alleeThreshold: 0.2 };
+    const first = potentialThreshold(g, 1);
+    expect(potentialThreshold({ ...g }, 1)).toBe(first);
+    g.alleeThreshold = 0.35;
+    expect(potentialThreshold(g, 1)).toBeCloseTo(closedForm(0.35), 12);
+    expect(potentialThreshold({ form: 'logistic', rate: 1 }, 1)).toBeNull();
   });
 });
