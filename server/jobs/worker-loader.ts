@@ -11,6 +11,8 @@
  * paired runs). Without the hook the require fails, the file is imported, and the code is the same
  * ES-module code the main thread runs.
  */
+import { execFileSync } from 'node:child_process';
+
 /**
  * The preload that registers tsx's ES-module hooks in the new thread, as a file URL for `--import`. (On
  * Node 20, `--import tsx/esm` registers them on the main thread only, and `--import tsx` adds the require
@@ -20,14 +22,30 @@ export function workerPreloadUrl(): string {
   return new URL('./worker-hooks.mjs', import.meta.url).href;
 }
 
+/**
+ * V8's option names (from `node --v8-options`, read once when first needed). V8 options act on the whole
+ * process, so threads share them, and Node refuses them in a worker's execArgv
+ * (ERR_WORKER_INVALID_EXEC_ARGV): `node --max-old-space-size=… ` or `--single-threaded-gc` would otherwise
+ * stop every pool.
+ */
+let v8Names: Set<string> | null = null;
+function isV8Option(option: string): boolean {
+  if (v8Names === null) {
+    const listing = execFileSync(process.execPath, ['--v8-options'], { encoding: 'utf8' });
+    v8Names = new Set([...listing.matchAll(/^\s+--([a-z0-9_-]+)/gm)].map((m) => m[1].replace(/_/g, '-')));
+  }
+  const name = option.replace(/^--(no-)?/, '').split('=')[0].replace(/_/g, '-');
+  return v8Names.has(name);
+}
+
 /** Options that take the next argument as their value (tsx's entries and a script given inline). */
 const WITH_VALUE = new Set(['--require', '-r', '--import', '--loader', '--experimental-loader', '--eval', '-e', '--print', '-p']);
 
 /**
- * execArgv for a worker: the process's own Node options (memory limits, profiling and the like) without
- * tsx's entries or an inline script, and the preload of tsx's ES-module hooks.
+ * execArgv for a worker: the process's own Node options (profiling and the like) without tsx's entries, an
+ * inline script or V8's options, and the preload of tsx's ES-module hooks.
  */
-export function workerExecArgv(inherited: readonly string[] = process.execArgv): string[] {
+export function workerExecArgv(inherited: readonly string[] = process.execArgv, keepV8 = false): string[] {
   const preload = workerPreloadUrl();
   const out: string[] = [];
   for (let i = 0; i < inherited.length; i++) {
@@ -39,9 +57,14 @@ export function workerExecArgv(inherited: readonly string[] = process.execArgv):
       out.push(a, value);
       continue;
     }
-    // The "=value" forms (--import=…tsx…, --eval=…).
-    if (a.includes('tsx') || /^--(eval|print)=/.test(a)) continue;
+    // The "=value" forms (--import=…tsx…, --eval=…), and V8's options (they already hold in every thread).
+    if (a.includes('tsx') || /^--(eval|print)=/.test(a) || (!keepV8 && a.startsWith('--') && isV8Option(a))) continue;
     out.push(a);
   }
   return [...out, '--import', preload];
+}
+
+/** execArgv for a child process: as for a worker, but V8's options are kept (a process has its own V8). */
+export function childProcessExecArgv(inherited: readonly string[] = process.execArgv): string[] {
+  return workerExecArgv(inherited, true);
 }

@@ -12,7 +12,7 @@ import { fileURLToPath } from 'node:url';
 import { randomUUID } from 'node:crypto';
 import { LimitError, type Problem } from '../model/errors.ts';
 import type { Scenario } from '../model/scenario.ts';
-import { workerExecArgv } from '../jobs/worker-loader.ts';
+import { childProcessExecArgv } from '../jobs/worker-loader.ts';
 import type { JobStore, StoredJob, StoredJobStatus } from './job-store.ts';
 import type { LandscapeDownload, LandscapeTask, LandscapeTaskResult } from './landscape-worker.ts';
 import type { LandscapeDocument } from '../analysis/landscape-scenario.ts';
@@ -137,7 +137,7 @@ export function makeLandscapeJobs(opts: LandscapeJobOptions): LandscapeJobs {
 /** Runs one task in a fresh child process; the signal kills it. */
 function runChild(children: Set<ChildProcess>, task: Omit<LandscapeTask, 'report'>, signal: AbortSignal, onProgress: (f: number, m: string) => void) {
   return new Promise<LandscapeTaskResult>((resolve, reject) => {
-    const child = fork(fileURLToPath(new URL('./landscape-child.ts', import.meta.url)), [], { execArgv: workerExecArgv(), serialization: 'advanced', stdio: ['ignore', 'ignore', 'pipe', 'ipc'] });
+    const child = fork(fileURLToPath(new URL('./landscape-child.ts', import.meta.url)), [], { execArgv: childProcessExecArgv(), serialization: 'advanced', stdio: ['ignore', 'ignore', 'pipe', 'ipc'] });
     children.add(child);
     let stderr = '';
     child.stderr?.on('data', (b: Buffer) => (stderr = (stderr + b.toString()).slice(-2000)));
