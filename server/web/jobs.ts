@@ -24,8 +24,6 @@ import { TERMINAL, fromRow, guarded, notify, persist, update, viewOf, type Job, 
 
 export { TERMINAL, type JobRunnerOptions, type JobStatus, type JobView } from './job-state.ts';
 
-/** The tsx loader, so worker threads can load TypeScript files (briefings use it). */
-
 export interface ShutdownReport {
   /** Jobs that were running or waiting: kept in the database, resumed at the next start. */
   unfinished: { id: string; title: string; status: JobStatus; fraction: number }[];
