@@ -38,8 +38,10 @@ function isV8Option(option: string): boolean {
   return v8Names.has(name);
 }
 
+/** Options that give a script inline (dropped with their value). */
+const INLINE_SCRIPT = new Set(['--eval', '-e', '--print', '-p']);
 /** Options that take the next argument as their value (tsx's entries and a script given inline). */
-const WITH_VALUE = new Set(['--require', '-r', '--import', '--loader', '--experimental-loader', '--eval', '-e', '--print', '-p']);
+const WITH_VALUE = new Set(['--require', '-r', '--import', '--loader', '--experimental-loader', ...INLINE_SCRIPT]);
 
 /**
  * execArgv for a worker: the process's own Node options (profiling and the like) without tsx's entries, an
@@ -53,7 +55,7 @@ export function workerExecArgv(inherited: readonly string[] = process.execArgv, 
     if (WITH_VALUE.has(a)) {
       const value = inherited[i + 1] ?? '';
       i++;
-      if (value.includes('tsx') || value === preload || a === '--eval' || a === '-e' || a === '--print' || a === '-p') continue;
+      if (INLINE_SCRIPT.has(a) || value.includes('tsx') || value === preload) continue;
       out.push(a, value);
       continue;
     }
